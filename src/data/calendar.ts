@@ -1,0 +1,125 @@
+/**
+ * Regular calendars: the frequencies certa understands and arithmetic on their time stamps.
+ *
+ * Time stamps are numbers: UTC epoch milliseconds of the start of each period for calendar
+ * frequencies, and the integer itself for `index` (a plain step counter). Monthly, quarterly and
+ * yearly steps move by calendar months (Date.UTC arithmetic), never by a fixed number of days.
+ */
+
+export type Frequency = 'hourly' | 'daily' | 'weekly' | 'monthly' | 'quarterly' | 'yearly' | 'index';
+
+export const FREQUENCIES: readonly Frequency[] = ['hourly', 'daily', 'weekly', 'monthly', 'quarterly', 'yearly', 'index'];
+
+const HOUR = 3_600_000;
+const DAY = 24 * HOUR;
+
+/** Coarseness rank, used to check that `--freq` aggregates to a coarser frequency. */
+export function frequencyRank(f: Frequency): number {
+  return { index: 0, hourly: 1, daily: 2, weekly: 3, monthly: 4, quarterly: 5, yearly: 6 }[f];
+}
+
+/**
+ * The season length in periods used by seasonal terms and seasonal baselines:
+ * 24 for hourly (daily cycle), 7 for daily (weekly cycle), 52 for weekly, 12 monthly, 4 quarterly;
+ * yearly and index series have no season (null). Common practice, not a law.
+ */
+export function seasonPeriod(f: Frequency): number | null {
+  switch (f) {
+    case 'hourly':
+      return 24;
+    case 'daily':
+      return 7;
+    case 'weekly':
+      return 52;
+    case 'monthly':
+      return 12;
+    case 'quarterly':
+      return 4;
+    default:
+      return null;
+  }
+}
+
+/** Periods per year (used to express rates per year); null for index. */
+export function periodsPerYear(f: Frequency): number | null {
+  return { hourly: 8766, daily: 365.25, weekly: 52.1775, monthly: 12, quarterly: 4, yearly: 1, index: null }[f];
+}
+
+/** The time stamp k periods after t (k may be negative). */
+export function stepTime(t: number, f: Frequency, k: number): number {
+  switch (f) {
+    case 'index':
+      return t + k;
+    case 'hourly':
+      return t + k * HOUR;
+    case 'daily':
+      return t + k * DAY;
+    case 'weekly':
+      return t + k * 7 * DAY;
+    case 'monthly':
+    case 'quarterly':
+    case 'yearly': {
+      const months = f === 'monthly' ? k : f === 'quarterly' ? 3 * k : 12 * k;
+      const d = new Date(t);
+      return Date.UTC(d.getUTCFullYear(), d.getUTCMonth() + months, d.getUTCDate(), d.getUTCHours(), d.getUTCMinutes());
+    }
+  }
+}
+
+/** Whole periods from a to b (b later gives a positive count); exact for aligned stamps. */
+export function periodsBetween(a: number, b: number, f: Frequency): number {
+  switch (f) {
+    case 'index':
+      return Math.round(b - a);
+    case 'hourly':
+      return Math.round((b - a) / HOUR);
+    case 'daily':
+      return Math.round((b - a) / DAY);
+    case 'weekly':
+      return Math.round((b - a) / (7 * DAY));
+    case 'monthly':
+    case 'quarterly':
+    case 'yearly': {
+      const da = new Date(a);
+      const db = new Date(b);
+      const months = (db.getUTCFullYear() - da.getUTCFullYear()) * 12 + (db.getUTCMonth() - da.getUTCMonth());
+      return f === 'monthly' ? months : f === 'quarterly' ? Math.round(months / 3) : Math.round(months / 12);
+    }
+  }
+}
+
+/** Decimal year of a time stamp (for charts and rates); the index itself for index series. */
+export function decimalYear(t: number, f: Frequency): number {
+  if (f === 'index') return t;
+  const d = new Date(t);
+  const y = d.getUTCFullYear();
+  const start = Date.UTC(y, 0, 1);
+  const end = Date.UTC(y + 1, 0, 1);
+  return y + (t - start) / (end - start);
+}
+
+/**
+ * A time stamp as people write it for that frequency:
+ * `2021-03-05T14:00` hourly, `2021-03-05` daily and weekly (the Monday), `2021-03` monthly,
+ * `2021-Q1` quarterly, `2021` yearly, the integer for index.
+ */
+export function formatTime(t: number, f: Frequency): string {
+  if (f === 'index') return String(t);
+  const d = new Date(t);
+  const y = String(d.getUTCFullYear()).padStart(4, '0');
+  const m = String(d.getUTCMonth() + 1).padStart(2, '0');
+  const day = String(d.getUTCDate()).padStart(2, '0');
+  switch (f) {
+    case 'hourly':
+      return `${y}-${m}-${day}T${String(d.getUTCHours()).padStart(2, '0')}:00`;
+    case 'daily':
+    case 'weekly':
+      return `${y}-${m}-${day}`;
+    case 'monthly':
+      return `${y}-${m}`;
+    case 'quarterly':
+      return `${y}-Q${Math.floor(d.getUTCMonth() / 3) + 1}`;
+    case 'yearly':
+      return y;
+  }
+}

@@ -1,0 +1,27 @@
+import type { Frequency } from './calendar.js';
+
+/**
+ * A regular series: what every stage after loading works on.
+ *
+ * `time[i]` is the time stamp of observation i (see calendar.ts for units), strictly increasing
+ * by exactly one period of `frequency`. `values` has no NaN once regularised (gaps are either
+ * filled, and listed in the report, or refused). Inputs are aligned one-to-one with `values`.
+ */
+export interface Series {
+  /** Series name (column name in wide layout, id in long layout). */
+  name: string;
+  frequency: Frequency;
+  /** Season length in periods, or null (from the frequency unless the user set one). */
+  season: number | null;
+  time: Float64Array;
+  values: Float64Array;
+  /** Exogenous inputs, same length as `values`, in the order the user listed them. */
+  inputs: SeriesInput[];
+  /** Where the series came from, for messages. */
+  source?: string;
+}
+
+export interface SeriesInput {
+  name: string;
+  values: Float64Array;
+}
