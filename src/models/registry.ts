@@ -1,0 +1,91 @@
+/**
+ * The family registry: how the search finds candidate structures and how a saved spec becomes a
+ * Structure again.
+ *
+ * A family (ARX difference equations, polynomial ODEs, ...) is one `FamilyDefinition`:
+ * - `candidates(series, bounds)`: its candidate grid within the resolved bounds, in a fixed,
+ *   deterministic order (the search keeps that order and breaks score ties by `key`);
+ * - `fromSpec(spec)`: rebuilds a structure from the JSON spec it produced;
+ * - `dynamicMask(structure)` (optional): which θ entries are dynamic coefficients (AR lags,
+ *   state feedback). The residual whiteness check subtracts the number of active dynamic
+ *   coefficients from its degrees of freedom; a family without it counts none.
+ *
+ * Families are listed once in `FAMILIES` below (one line each, a fixed order), so the registry
+ * holds no hidden mutable state. The search never branches on family names.
+ *
+ * Bounds reach families already resolved: every "auto" has become the explicit list of
+ * alternatives to try, so all families read the same settings the same way.
+ */
+import type { Series } from '../data/series.js';
+import { UsageError } from '../data/errors.js';
+import type { Structure, StructureSpec, Transform } from './structure.js';
+
+/** Differencing applied to the scoring-scale target before regression. */
+export type Differencing = 'none' | 'first' | 'seasonal';
+
+/** Search bounds as families receive them: every alternative listed explicitly. */
+export interface CandidateBounds {
+  /** Largest number of AR lags (lags 1…p for p = 0…maxAr). */
+  maxAr: number;
+  /** Largest number of lags per input (lags 0…q−1 for q = 1…maxInputLags; 0 means inputs unused). */
+  maxInputLags: number;
+  /** Largest input delay d (d = 0…maxDelay). */
+  maxDelay: number;
+  /** Inputs of the series the search may use, in series order. */
+  inputs: string[];
+  /** Numbers of seasonal harmonic pairs to try, ascending (0 = none); empty when no season. */
+  harmonics: number[];
+  /** Season length used by harmonics, seasonal lag and seasonal differencing (null = none). */
+  season: number | null;
+  /** Scoring-scale transforms to try, in this order. */
+  transforms: Transform[];
+  /** Trend term alternatives to try ([false], [true] or [false, true]). */
+  trend: boolean[];
+  /** Seasonal-lag alternatives to try. */
+  seasonalLag: boolean[];
+  /** Differencing alternatives to try. */
+  differencing: Differencing[];
+}
+
+export interface FamilyDefinition {
+  readonly name: string;
+  candidates(series: Series, bounds: CandidateBounds): Structure[];
+  fromSpec(spec: StructureSpec): Structure;
+  dynamicMask?(structure: Structure): boolean[];
+}
+
+/** Built-in families, in the order their candidates enter a search. Add one line per family. */
+export const FAMILIES: readonly FamilyDefinition[] = [
+  // arx joins here with its first commit; each family adds one line.
+];
+
+/** Names of the registered families, in registry order. */
+export function familyNames(families: readonly FamilyDefinition[] = FAMILIES): string[] {
+  return families.map((f) => f.name);
+}
+
+/** The family of that name; UsageError listing the known ones otherwise. */
+export function getFamily(name: string, families: readonly FamilyDefinition[] = FAMILIES): FamilyDefinition {
+  const f = families.find((x) => x.name === name);
+  if (!f) {
+    throw new UsageError(`unknown model family "${name}"`, {
+      found: name,
+      expected: `one of ${familyNames(families).join(', ')}`,
+    });
+  }
+  return f;
+}
+
+/** Rebuilds a structure from a saved spec through its family. */
+export function structureFromSpec(spec: StructureSpec, families: readonly FamilyDefinition[] = FAMILIES): Structure {
+  if (typeof spec !== 'object' || spec === null || typeof spec.family !== 'string') {
+    throw new UsageError('a structure spec needs a "family" field', { found: JSON.stringify(spec), expected: 'an object with family' });
+  }
+  return getFamily(spec.family, families).fromSpec(spec);
+}
+
+/** Which θ entries of a structure are dynamic coefficients (all false when its family does not say). */
+export function dynamicMask(structure: Structure, families: readonly FamilyDefinition[] = FAMILIES): boolean[] {
+  const f = families.find((x) => x.name === structure.family);
+  return f?.dynamicMask ? f.dynamicMask(structure) : structure.terms.map(() => false);
+}
