@@ -68,7 +68,7 @@ export function familyNames(families: readonly FamilyDefinition[] = FAMILIES): s
 export function getFamily(name: string, families: readonly FamilyDefinition[] = FAMILIES): FamilyDefinition {
   const f = families.find((x) => x.name === name);
   if (!f) {
-    throw new UsageError(`unknown model family "${name}"`, {
+    throw new UsageError('unknown-family', `unknown model family "${name}"`, {
       found: name,
       expected: `one of ${familyNames(families).join(', ')}`,
     });
@@ -79,7 +79,7 @@ export function getFamily(name: string, families: readonly FamilyDefinition[] = 
 /** Rebuilds a structure from a saved spec through its family. */
 export function structureFromSpec(spec: StructureSpec, families: readonly FamilyDefinition[] = FAMILIES): Structure {
   if (typeof spec !== 'object' || spec === null || typeof spec.family !== 'string') {
-    throw new UsageError('a structure spec needs a "family" field', { found: JSON.stringify(spec), expected: 'an object with family' });
+    throw new UsageError('bad-spec', 'a structure spec needs a "family" field', { found: JSON.stringify(spec), expected: 'an object with family' });
   }
   return getFamily(spec.family, families).fromSpec(spec);
 }
