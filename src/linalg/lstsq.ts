@@ -1,0 +1,162 @@
+/**
+ * Ordinary least squares y = Φθ + e by Householder QR with column scaling and pivoting
+ * (never the normal equations): θ̂, residuals, σ̂², covariance, rank and condition.
+ *
+ * Formulas (Golub & Van Loan, "Matrix Computations", 4th ed. 2013, §5.3.3 QR solution of the
+ * full-rank problem and §5.5.5 basic solution; Seber & Lee, "Linear Regression Analysis", 2nd ed.
+ * 2003, §3.3 for σ̂² and Cov θ̂):
+ *   Φ·D·P = Q·R,  θ̂ = D·P·R⁻¹·(Qᵀy)[0:r],  e = y − Φθ̂,  RSS = eᵀe,
+ *   dof = n − r,  σ̂² = RSS/dof,  (ΦᵀΦ)⁻¹ = D·P·R⁻¹R⁻ᵀ·Pᵀ·D,  Cov θ̂ = σ̂²(ΦᵀΦ)⁻¹,  se_j = √Cov_jj.
+ * `condition` is the 2-norm condition number of the column-scaled Φ on the kept columns (see
+ * {@link QrFactorization.condition}); it does not depend on the units of the terms.
+ *
+ * Cost: 2np² − 2p³/3 (factorisation) + 4np (solve, residuals) + p³/3 (covariance) flops.
+ *
+ * @example
+ *   lstsq(fromRows([[1, 1], [1, 2], [1, 3]]), Float64Array.of(1, 2, 2), ['a', 'b'])
+ *   // theta ≈ [2/3, 1/2], rss = 1/6, dof = 1  (asserted in test/linalg/lstsq.test.ts)
+ */
+import { ModelError } from '../data/errors.js';
+import type { DesignMatrix } from './matrix.js';
+import { qr, type QrFactorization } from './qr.js';
+
+export interface LstsqOptions {
+  /** Relative tolerance on |R_kk|/|R_00| (default max(n, p)·2⁻⁵²). */
+  rankTolerance?: number;
+  /** What to do when the rank is below p: throw a ModelError (default) or warn and drop terms. */
+  onRankDeficient?: 'throw' | 'warn';
+}
+
+export interface LstsqResult {
+  /** θ̂ in term order; 0 for dropped terms. */
+  theta: Float64Array;
+  /** Term names in θ order (the array passed in). */
+  names: string[];
+  /** e = y − Φθ̂. */
+  residuals: Float64Array;
+  /** Φθ̂. */
+  fitted: Float64Array;
+  /** Residual sum of squares eᵀe. */
+  rss: number;
+  /** Rows n, columns p, numerical rank, residual degrees of freedom n − rank. */
+  n: number;
+  p: number;
+  rank: number;
+  dof: number;
+  /** σ̂² = rss/dof (NaN when dof = 0). */
+  sigma2: number;
+  /** σ̂²(ΦᵀΦ)⁻¹, p×p row-major; rows and columns of dropped terms are 0. */
+  cov: Float64Array;
+  /** (ΦᵀΦ)⁻¹ unscaled by σ̂², p×p row-major (on the kept terms; 0 for dropped ones). */
+  xtxInv: Float64Array;
+  /** Standard errors √cov_jj. */
+  se: Float64Array;
+  /** 2-norm condition number of the column-scaled Φ on the kept terms. */
+  condition: number;
+  /** Which terms were estimated (false for terms dropped by rank deficiency). */
+  active: boolean[];
+  warnings: string[];
+}
+
+/**
+ * Least-squares fit of y on Φ with named terms. Throws ModelError `no-rows` when Φ has no rows,
+ * `non-finite` when an entry of Φ or y is NaN or infinite, and `rank-deficient` (naming the
+ * collinear terms) when rank < p unless `onRankDeficient: 'warn'`, in which case the dropped
+ * terms get θ = 0 and are named in `warnings`. Shape mismatches are programming errors
+ * (RangeError).
+ */
+export function lstsq(phi: DesignMatrix, y: Float64Array, names: string[], options: LstsqOptions = {}): LstsqResult {
+  const n = phi.rows;
+  const p = phi.cols;
+  if (y.length !== n) throw new RangeError(`lstsq: y has ${y.length} values, Φ has ${n} rows`);
+  if (names.length !== p) throw new RangeError(`lstsq: ${names.length} names for ${p} columns`);
+  if (phi.data.length !== n * p) throw new RangeError(`lstsq: Φ data length ${phi.data.length}, expected ${n}×${p}`);
+  if (n === 0) {
+    throw new ModelError('no-rows', `no rows to estimate ${p} term${p === 1 ? '' : 's'} from`, {
+      expected: `at least ${p + 1} rows`,
+      hint: 'use a longer series or a structure with fewer lags',
+    });
+  }
+  checkFinite(phi, y, names);
+  const f = qr(phi, { rankTolerance: options.rankTolerance });
+  const warnings: string[] = [];
+  if (f.rank < p) {
+    const message = collinearityMessage(f, names);
+    if ((options.onRankDeficient ?? 'throw') === 'throw') {
+      throw new ModelError('rank-deficient', message, {
+        found: `rank ${f.rank}`,
+        expected: `rank ${p}`,
+        hint: 'remove one of the named terms, or use more varied data',
+      });
+    }
+    warnings.push(message);
+  }
+  return finish(f, phi, y, names, warnings);
+}
+
+/** Builds the result from a factorisation (shared with callers that factor once). */
+function finish(f: QrFactorization, phi: DesignMatrix, y: Float64Array, names: string[], warnings: string[]): LstsqResult {
+  const n = phi.rows;
+  const p = phi.cols;
+  const work = new Float64Array(n);
+  const theta = new Float64Array(p);
+  f.solveInto(y, theta, work);
+  const fitted = new Float64Array(n);
+  const residuals = new Float64Array(n);
+  const d = phi.data;
+  let rss = 0;
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    const o = i * p;
+    for (let j = 0; j < p; j++) s += d[o + j] * theta[j];
+    fitted[i] = s;
+    const e = y[i] - s;
+    residuals[i] = e;
+    rss += e * e;
+  }
+  const rank = f.rank;
+  const dof = n - rank;
+  const sigma2 = dof > 0 ? rss / dof : NaN;
+  if (dof === 0) warnings.push(`no residual degrees of freedom (${n} rows, rank ${rank}): noise variance and standard errors are undefined`);
+  const xtxInv = f.xtxInv();
+  const cov = new Float64Array(p * p);
+  const se = new Float64Array(p);
+  for (let k = 0; k < p * p; k++) cov[k] = sigma2 * xtxInv[k];
+  for (let j = 0; j < p; j++) se[j] = Math.sqrt(cov[j * p + j]);
+  const active = new Array<boolean>(p).fill(false);
+  for (let k = 0; k < rank; k++) active[f.perm[k]] = true;
+  return { theta, names, residuals, fitted, rss, n, p, rank, dof, sigma2, cov, xtxInv, se, condition: f.condition, active, warnings };
+}
+
+function checkFinite(phi: DesignMatrix, y: Float64Array, names: string[]): void {
+  const p = phi.cols;
+  const d = phi.data;
+  for (let i = 0; i < phi.rows; i++) {
+    if (!Number.isFinite(y[i])) {
+      throw new ModelError('non-finite', `target value in regression row ${i + 1} is not a finite number`, { found: String(y[i]), expected: 'a finite number' });
+    }
+    for (let j = 0; j < p; j++) {
+      const v = d[i * p + j];
+      if (!Number.isFinite(v)) {
+        throw new ModelError('non-finite', `term "${names[j]}" in regression row ${i + 1} is not a finite number`, { found: String(v), expected: 'a finite number' });
+      }
+    }
+  }
+}
+
+/** `terms "a" and "b" are collinear (rank 3 of 4)` and similar, naming terms, never indices. */
+function collinearityMessage(f: QrFactorization, names: string[]): string {
+  const parts: string[] = [];
+  for (const dep of f.dependencies()) {
+    const self = `"${names[dep.column]}"`;
+    if (dep.zero || dep.on.length === 0) {
+      parts.push(`term ${self} is zero in every row`);
+    } else {
+      const group = [dep.column, ...dep.on].sort((a, b) => a - b).map((j) => `"${names[j]}"`);
+      parts.push(group.length === 2 ? `terms ${group[0]} and ${group[1]} are collinear` : `terms ${group.slice(0, -1).join(', ')} and ${group[group.length - 1]} are linearly dependent`);
+    }
+  }
+  const unique = [...new Set(parts)];
+  const tooFew = f.rows < f.cols ? `; only ${f.rows} rows for ${f.cols} terms` : '';
+  return `${unique.join('; ')} (rank ${f.rank} of ${f.cols}${tooFew})`;
+}

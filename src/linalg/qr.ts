@@ -1,0 +1,481 @@
+/**
+ * Householder QR with column scaling and column pivoting, as a factor-once object.
+ *
+ * Variant. Each column of Φ is first divided by its Euclidean norm (Φ_s = Φ·D with
+ * D = diag(1/‖φ_j‖₂); a zero column keeps scale 1), then Φ_s·P = Q·R is computed by Householder
+ * reflections H_k = I − τ_k·v_k·v_kᵀ (v_k[k] = 1) with column pivoting: at step k the remaining
+ * column of largest partial norm is moved to position k, so |R_00| ≥ |R_11| ≥ … .
+ * Sources: Householder reflections and QR with column pivoting, Golub & Van Loan, "Matrix
+ * Computations", 4th ed. (2013), Algorithm 5.1.1 and §5.4.2 (Businger & Golub 1965); the
+ * partial-norm downdate with its recomputation safeguard follows Drmač & Bujanović, "On the
+ * failure of rank-revealing QR factorization software — a case study", ACM TOMS 35(2), 2008,
+ * eq. (3.4) (equation number from memory). Column scaling to unit norm: Golub & Van Loan §3.5.2
+ * (equilibration); it makes the rank tolerance and the condition number independent of the units
+ * of each term.
+ *
+ * Rank. rank = number of leading k with |R_kk| > tol·|R_00|, tol = `rankTolerance`
+ * (default max(n, p)·ε, ε = 2⁻⁵²). Columns past the rank are "dropped": the basic solution
+ * gives them coefficient 0 (Golub & Van Loan 2013, §5.5.5, basic solution).
+ *
+ * Cost: 2np² − 2p³/3 flops for the factorisation plus O(np) for scaling and norms; each
+ * `solve` costs 4np − p² + O(p) flops.
+ *
+ * @example
+ *   const f = qr(fromRows([[1, 1], [1, 2], [1, 3]]));
+ *   f.rank;                              // 2
+ *   f.solve(Float64Array.of(1, 2, 2));   // ≈ [2/3, 1/2]  (asserted in test/linalg/qr.test.ts)
+ */
+import type { DesignMatrix } from './matrix.js';
+
+/** Machine epsilon of IEEE-754 double precision, 2⁻⁵². */
+export const EPSILON = 2 ** -52;
+
+export interface QrOptions {
+  /** Relative tolerance on |R_kk|/|R_00| below which a column counts as dependent. */
+  rankTolerance?: number;
+}
+
+/** A dropped column written as a combination of the kept ones (in scaled coordinates). */
+export interface Dependency {
+  /** Original index of the dropped column. */
+  column: number;
+  /** Original indices of the kept columns it depends on (by weight, largest first). */
+  on: number[];
+  /** True when the column is zero (it depends on nothing). */
+  zero: boolean;
+}
+
+/**
+ * The factorisation Φ·D·P = Q·R. Create with {@link qr}. Every query reuses the factors; none
+ * refactors.
+ */
+export class QrFactorization {
+  /** Number of rows n and columns p of Φ. */
+  readonly rows: number;
+  readonly cols: number;
+  /** Numerical rank (see the module comment for the rule). */
+  readonly rank: number;
+  /** Column scale factors: column j of Φ was multiplied by scale[j] = 1/‖φ_j‖₂. */
+  readonly scale: Float64Array;
+  /** Pivot order: position k of the factorisation holds original column perm[k]. */
+  readonly perm: Int32Array;
+  /** Relative rank tolerance used. */
+  readonly tolerance: number;
+  /** Column-major n×p: R on and above the diagonal, Householder vectors below it. */
+  private readonly qrData: Float64Array;
+  /** Householder coefficients τ_k. */
+  private readonly tau: Float64Array;
+  /** 1 for columns of Φ that are entirely zero. */
+  private readonly zero: Uint8Array;
+  private conditionCache = -1;
+
+  /** @internal use {@link qr}. */
+  constructor(rows: number, cols: number, qrData: Float64Array, tau: Float64Array, scale: Float64Array, perm: Int32Array, tolerance: number, zero: Uint8Array) {
+    this.zero = zero;
+    this.rows = rows;
+    this.cols = cols;
+    this.qrData = qrData;
+    this.tau = tau;
+    this.scale = scale;
+    this.perm = perm;
+    this.tolerance = tolerance;
+    const m = Math.min(rows, cols);
+    let rank = 0;
+    if (m > 0) {
+      const r00 = Math.abs(qrData[0]);
+      if (r00 > 0) {
+        const limit = tolerance * r00;
+        while (rank < m && Math.abs(qrData[rank * rows + rank]) > limit) rank++;
+      }
+    }
+    this.rank = rank;
+  }
+
+  /** True when rank equals the number of columns. */
+  get isFullRank(): boolean {
+    return this.rank === this.cols;
+  }
+
+  /** R_kk of the scaled, pivoted factorisation (k < min(n, p)). */
+  diagonal(): Float64Array {
+    const m = Math.min(this.rows, this.cols);
+    const d = new Float64Array(m);
+    for (let k = 0; k < m; k++) d[k] = this.qrData[k * this.rows + k];
+    return d;
+  }
+
+  /**
+   * 2-norm condition number of the column-scaled Φ restricted to the kept columns,
+   * κ₂(Φ_s) = σ_max(R₁₁)/σ_min(R₁₁), R₁₁ the leading rank×rank block of R. Estimated by the
+   * power method (Golub & Van Loan 2013, §7.3.1) on R₁₁ᵀR₁₁ and on R₁₁⁻¹R₁₁⁻ᵀ, iterated until
+   * the Rayleigh quotient changes by less than 1e-10 relatively (at most 200 steps); a lower
+   * bound that is accurate to several digits unless the top singular values nearly coincide.
+   * Cost O(r²) per step. Infinity when rank is 0. Computed once, on first access.
+   */
+  get condition(): number {
+    if (this.conditionCache < 0) this.conditionCache = this.computeCondition();
+    return this.conditionCache;
+  }
+
+  /** Computes Qᵀ·y into `out` (length n). `y` is not modified. */
+  qtMul(y: Float64Array, out: Float64Array = new Float64Array(this.rows)): Float64Array {
+    const n = this.rows;
+    if (y.length !== n) throw new RangeError(`qtMul: vector length ${y.length}, expected ${n}`);
+    if (out !== y) out.set(y);
+    const a = this.qrData;
+    const m = Math.min(n, this.cols);
+    for (let k = 0; k < m; k++) {
+      const t = this.tau[k];
+      if (t === 0) continue;
+      const off = k * n;
+      let s = out[k];
+      for (let i = k + 1; i < n; i++) s += a[off + i] * out[i];
+      s *= t;
+      out[k] -= s;
+      for (let i = k + 1; i < n; i++) out[i] -= s * a[off + i];
+    }
+    return out;
+  }
+
+  /** Computes Q·v into `out` (length n): the reflections applied in reverse order. */
+  qMul(v: Float64Array, out: Float64Array = new Float64Array(this.rows)): Float64Array {
+    const n = this.rows;
+    if (v.length !== n) throw new RangeError(`qMul: vector length ${v.length}, expected ${n}`);
+    if (out !== v) out.set(v);
+    const a = this.qrData;
+    const m = Math.min(n, this.cols);
+    for (let k = m - 1; k >= 0; k--) {
+      const t = this.tau[k];
+      if (t === 0) continue;
+      const off = k * n;
+      let s = out[k];
+      for (let i = k + 1; i < n; i++) s += a[off + i] * out[i];
+      s *= t;
+      out[k] -= s;
+      for (let i = k + 1; i < n; i++) out[i] -= s * a[off + i];
+    }
+    return out;
+  }
+
+  /**
+   * Basic least-squares solution θ of min ‖Φθ − y‖₂ in Φ's original units: z solves
+   * R₁₁z = (Qᵀy)[0:r], dropped positions get 0, θ = D·P·z. Cost 4np − p² flops.
+   */
+  solve(y: Float64Array, work: Float64Array = new Float64Array(this.rows)): Float64Array {
+    const theta = new Float64Array(this.cols);
+    this.solveInto(y, theta, work);
+    return theta;
+  }
+
+  /** As {@link solve}, writing θ into `theta` (length p) and using `work` (length n) as scratch. */
+  solveInto(y: Float64Array, theta: Float64Array, work: Float64Array): void {
+    const n = this.rows;
+    const r = this.rank;
+    const a = this.qrData;
+    const c = this.qtMul(y, work);
+    // Back substitution R₁₁ z = c[0:r], in place in c.
+    for (let k = r - 1; k >= 0; k--) {
+      let s = c[k];
+      for (let j = k + 1; j < r; j++) s -= a[j * n + k] * c[j];
+      c[k] = s / a[k * n + k];
+    }
+    theta.fill(0);
+    for (let k = 0; k < r; k++) {
+      const j = this.perm[k];
+      theta[j] = c[k] * this.scale[j];
+    }
+  }
+
+  /**
+   * S = R₁₁⁻¹R₁₁⁻ᵀ = (P₁ᵀ Φ_sᵀ Φ_s P₁)⁻¹ on the kept columns, r×r row-major in pivoted order.
+   * Cost r³/3 flops (triangular inverse, then the product).
+   */
+  pivotedInverseGram(): Float64Array {
+    const r = this.rank;
+    const n = this.rows;
+    const a = this.qrData;
+    // U = R₁₁⁻¹ (upper triangular), row-major r×r, column by column.
+    const u = new Float64Array(r * r);
+    for (let j = 0; j < r; j++) {
+      u[j * r + j] = 1 / a[j * n + j];
+      for (let i = j - 1; i >= 0; i--) {
+        let s = 0;
+        for (let k = i + 1; k <= j; k++) s += a[k * n + i] * u[k * r + j];
+        u[i * r + j] = -s / a[i * n + i];
+      }
+    }
+    // S = U·Uᵀ, symmetric: S_ij = Σ_{k ≥ max(i,j)} U_ik U_jk.
+    const sm = new Float64Array(r * r);
+    for (let i = 0; i < r; i++) {
+      for (let j = i; j < r; j++) {
+        let s = 0;
+        for (let k = j; k < r; k++) s += u[i * r + k] * u[j * r + k];
+        sm[i * r + j] = s;
+        sm[j * r + i] = s;
+      }
+    }
+    return sm;
+  }
+
+  /**
+   * (ΦᵀΦ)⁻¹ in Φ's original units, p×p row-major: D·P₁·S·P₁ᵀ·D on the kept columns, zero rows
+   * and columns for dropped ones (then it is the inverse on the kept subspace only).
+   * Cost r³/3 + p² flops.
+   */
+  xtxInv(): Float64Array {
+    const p = this.cols;
+    const r = this.rank;
+    const sm = this.pivotedInverseGram();
+    const out = new Float64Array(p * p);
+    for (let k = 0; k < r; k++) {
+      const i = this.perm[k];
+      const si = this.scale[i];
+      for (let l = 0; l < r; l++) {
+        const j = this.perm[l];
+        out[i * p + j] = si * sm[k * r + l] * this.scale[j];
+      }
+    }
+    return out;
+  }
+
+  /** The upper-trapezoidal R (min(n,p)×p, row-major) of the scaled, pivoted factorisation. */
+  r(): DesignMatrix {
+    const n = this.rows;
+    const p = this.cols;
+    const m = Math.min(n, p);
+    const data = new Float64Array(m * p);
+    for (let i = 0; i < m; i++) for (let j = i; j < p; j++) data[i * p + j] = this.qrData[j * n + i];
+    return { rows: m, cols: p, data };
+  }
+
+  /** The thin Q (n×min(n,p), row-major, orthonormal columns), formed explicitly. Cost O(n²p). */
+  q(): DesignMatrix {
+    const n = this.rows;
+    const m = Math.min(n, this.cols);
+    const data = new Float64Array(n * m);
+    const e = new Float64Array(n);
+    for (let j = 0; j < m; j++) {
+      e.fill(0);
+      e[j] = 1;
+      this.qMul(e, e);
+      for (let i = 0; i < n; i++) data[i * m + j] = e[i];
+    }
+    return { rows: n, cols: m, data };
+  }
+
+  /**
+   * For each dropped column, the kept columns it is (numerically) a combination of: w solves
+   * R₁₁w = R₁₂[:, k], and kept column i is named when |w_i| > 1e-6·max|w| (all columns are unit
+   * norm, so w compares like with like). Cost r² per dropped column.
+   */
+  dependencies(): Dependency[] {
+    const n = this.rows;
+    const p = this.cols;
+    const r = this.rank;
+    const a = this.qrData;
+    const out: Dependency[] = [];
+    const w = new Float64Array(r);
+    for (let k = r; k < p; k++) {
+      const column = this.perm[k];
+      if (this.zero[column] === 1) {
+        out.push({ column, on: [], zero: true });
+        continue;
+      }
+      for (let i = 0; i < r; i++) w[i] = a[k * n + i];
+      for (let i = r - 1; i >= 0; i--) {
+        let s = w[i];
+        for (let j = i + 1; j < r; j++) s -= a[j * n + i] * w[j];
+        w[i] = s / a[i * n + i];
+      }
+      let big = 0;
+      for (let i = 0; i < r; i++) big = Math.max(big, Math.abs(w[i]));
+      const idx: number[] = [];
+      for (let i = 0; i < r; i++) if (Math.abs(w[i]) > 1e-6 * big) idx.push(i);
+      idx.sort((x, y) => Math.abs(w[y]) - Math.abs(w[x]) || x - y);
+      out.push({ column, on: idx.map((i) => this.perm[i]), zero: big === 0 });
+    }
+    return out;
+  }
+
+  private computeCondition(): number {
+    const r = this.rank;
+    if (r === 0) return Infinity;
+    const n = this.rows;
+    const a = this.qrData;
+    // Largest eigenvalue of RᵀR: x ← Rᵀ(R x).
+    const x = new Float64Array(r);
+    const t = new Float64Array(r);
+    const top = powerMethod(r, x, t, (v, out) => {
+      for (let i = 0; i < r; i++) {
+        let s = 0;
+        for (let j = i; j < r; j++) s += a[j * n + i] * v[j];
+        out[i] = s;
+      }
+      for (let j = r - 1; j >= 0; j--) {
+        let s = 0;
+        for (let i = 0; i <= j; i++) s += a[j * n + i] * out[i];
+        v[j] = s;
+      }
+    });
+    // Largest eigenvalue of R⁻¹R⁻ᵀ: x ← R⁻¹(R⁻ᵀ x), two triangular solves.
+    const bottom = powerMethod(r, x, t, (v) => {
+      for (let i = 0; i < r; i++) {
+        let s = v[i];
+        for (let k = 0; k < i; k++) s -= a[i * n + k] * v[k];
+        v[i] = s / a[i * n + i];
+      }
+      for (let i = r - 1; i >= 0; i--) {
+        let s = v[i];
+        for (let j = i + 1; j < r; j++) s -= a[j * n + i] * v[j];
+        v[i] = s / a[i * n + i];
+      }
+    });
+    return Math.sqrt(top * bottom);
+  }
+}
+
+/**
+ * Power method for the largest eigenvalue of a symmetric positive semi-definite operator
+ * applied in place by `apply(v, scratch)`; the start vector is (1, 1 + 1/4r, 1 + 2/4r, …).
+ * Returns ‖A·u‖ for the last unit iterate u.
+ */
+function powerMethod(r: number, v: Float64Array, scratch: Float64Array, apply: (v: Float64Array, scratch: Float64Array) => void): number {
+  for (let i = 0; i < r; i++) v[i] = 1 + i / (4 * r);
+  let lambda = 0;
+  for (let it = 0; it < 200; it++) {
+    let nn = 0;
+    for (let i = 0; i < r; i++) nn += v[i] * v[i];
+    const inv = 1 / Math.sqrt(nn);
+    for (let i = 0; i < r; i++) v[i] *= inv;
+    apply(v, scratch);
+    // For a unit vector u, ‖A·u‖ converges to the largest eigenvalue of a PSD A.
+    let aa = 0;
+    for (let i = 0; i < r; i++) aa += v[i] * v[i];
+    const next = Math.sqrt(aa);
+    if (!Number.isFinite(next)) return Infinity;
+    if (it > 0 && Math.abs(next - lambda) <= 1e-10 * next) return next;
+    lambda = next;
+  }
+  return lambda;
+}
+
+/**
+ * Factors Φ (row-major, n×p) as Φ·D·P = Q·R; see the module comment for the variant and source.
+ * Φ is copied (once, into column-major order) and left untouched. Entries must be finite.
+ */
+export function qr(phi: DesignMatrix, options: QrOptions = {}): QrFactorization {
+  const n = phi.rows;
+  const p = phi.cols;
+  if (phi.data.length !== n * p) throw new RangeError(`qr: data length ${phi.data.length}, expected ${n}×${p}`);
+  const tolerance = options.rankTolerance ?? Math.max(n, p) * EPSILON;
+  if (!(tolerance >= 0)) throw new RangeError(`qr: rankTolerance must be ≥ 0, got ${tolerance}`);
+  const src = phi.data;
+  const a = new Float64Array(n * p);
+  const scale = new Float64Array(p);
+  const zero = new Uint8Array(p);
+  // Column norms, computed with a running maximum so huge entries cannot overflow.
+  for (let j = 0; j < p; j++) {
+    let big = 0;
+    for (let i = 0; i < n; i++) {
+      const v = Math.abs(src[i * p + j]);
+      if (!(v <= Number.MAX_VALUE)) throw new RangeError(`qr: entry (${i}, ${j}) is not finite`);
+      if (v > big) big = v;
+    }
+    if (big === 0) {
+      scale[j] = 1;
+      zero[j] = 1;
+      continue;
+    }
+    const ib = 1 / big;
+    let ss = 0;
+    for (let i = 0; i < n; i++) {
+      const v = src[i * p + j] * ib;
+      ss += v * v;
+    }
+    const s = ib / Math.sqrt(ss);
+    scale[j] = s;
+    const off = j * n;
+    for (let i = 0; i < n; i++) a[off + i] = src[i * p + j] * s;
+  }
+  const tau = new Float64Array(p);
+  const perm = new Int32Array(p);
+  factorInPlace(a, n, p, tau, perm);
+  return new QrFactorization(n, p, a, tau, scale, perm, tolerance, zero);
+}
+
+/** Householder QR with column pivoting of the column-major n×p `a`, in place. */
+function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array, perm: Int32Array): void {
+  const vn1 = new Float64Array(p); // partial column norms, downdated
+  const vn2 = new Float64Array(p); // norms at last exact computation
+  for (let j = 0; j < p; j++) {
+    perm[j] = j;
+    let s = 0;
+    const off = j * n;
+    for (let i = 0; i < n; i++) s += a[off + i] * a[off + i];
+    vn1[j] = Math.sqrt(s);
+    vn2[j] = vn1[j];
+  }
+  const tol3z = Math.sqrt(EPSILON);
+  const m = Math.min(n, p);
+  for (let k = 0; k < m; k++) {
+    // Pivot: the first column of largest partial norm.
+    let pvt = k;
+    for (let j = k + 1; j < p; j++) if (vn1[j] > vn1[pvt]) pvt = j;
+    if (pvt !== k) {
+      const o1 = pvt * n;
+      const o2 = k * n;
+      for (let i = 0; i < n; i++) {
+        const t = a[o1 + i];
+        a[o1 + i] = a[o2 + i];
+        a[o2 + i] = t;
+      }
+      const tp = perm[pvt];
+      perm[pvt] = perm[k];
+      perm[k] = tp;
+      vn1[pvt] = vn1[k];
+      vn2[pvt] = vn2[k];
+    }
+    // Householder vector for a[k:n, k]: β = −sign(α)·‖x‖, τ = (β − α)/β, v = x/(α − β).
+    const ok = k * n;
+    const alpha = a[ok + k];
+    let xs = 0;
+    for (let i = k + 1; i < n; i++) xs += a[ok + i] * a[ok + i];
+    if (xs === 0) {
+      tau[k] = 0;
+    } else {
+      const norm = Math.sqrt(alpha * alpha + xs);
+      const beta = alpha >= 0 ? -norm : norm;
+      tau[k] = (beta - alpha) / beta;
+      const inv = 1 / (alpha - beta);
+      for (let i = k + 1; i < n; i++) a[ok + i] *= inv;
+      a[ok + k] = beta;
+      // Apply H_k to the remaining columns.
+      const t = tau[k];
+      for (let j = k + 1; j < p; j++) {
+        const oj = j * n;
+        let s = a[oj + k];
+        for (let i = k + 1; i < n; i++) s += a[ok + i] * a[oj + i];
+        s *= t;
+        a[oj + k] -= s;
+        for (let i = k + 1; i < n; i++) a[oj + i] -= s * a[ok + i];
+      }
+    }
+    // Downdate partial norms; recompute when cancellation makes the downdate unreliable.
+    for (let j = k + 1; j < p; j++) {
+      if (vn1[j] === 0) continue;
+      const ratio = Math.abs(a[j * n + k]) / vn1[j];
+      let temp = 1 - ratio * ratio;
+      if (temp < 0) temp = 0;
+      const q = vn1[j] / vn2[j];
+      if (temp * q * q <= tol3z) {
+        let s = 0;
+        const oj = j * n;
+        for (let i = k + 1; i < n; i++) s += a[oj + i] * a[oj + i];
+        vn1[j] = Math.sqrt(s);
+        vn2[j] = vn1[j];
+      } else {
+        vn1[j] *= Math.sqrt(temp);
+      }
+    }
+  }
+}
