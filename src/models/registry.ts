@@ -8,7 +8,9 @@
  * - `fromSpec(spec)`: rebuilds a structure from the JSON spec it produced;
  * - `dynamicMask(structure)` (optional): which θ entries are dynamic coefficients (AR lags,
  *   state feedback). The residual whiteness check subtracts the number of active dynamic
- *   coefficients from its degrees of freedom; a family without it counts none.
+ *   coefficients from its degrees of freedom; a family without it counts none;
+ * - `stable(structure, θ)` (optional): false when the fitted dynamics are explosive; the search
+ *   then lists the candidate as failed. A family without it is never rejected on this ground.
  *
  * Families are listed once in `FAMILIES` below (one line each, a fixed order), so the registry
  * holds no hidden mutable state. The search never branches on family names.
@@ -19,6 +21,7 @@
 import type { Series } from '../data/series.js';
 import { UsageError } from '../data/errors.js';
 import type { Structure, StructureSpec, Transform } from './structure.js';
+import { arxFamily } from './arx.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -52,11 +55,12 @@ export interface FamilyDefinition {
   candidates(series: Series, bounds: CandidateBounds): Structure[];
   fromSpec(spec: StructureSpec): Structure;
   dynamicMask?(structure: Structure): boolean[];
+  stable?(structure: Structure, theta: Float64Array): boolean;
 }
 
 /** Built-in families, in the order their candidates enter a search. Add one line per family. */
 export const FAMILIES: readonly FamilyDefinition[] = [
-  // arx joins here with its first commit; each family adds one line.
+  arxFamily,
 ];
 
 /** Names of the registered families, in registry order. */
@@ -88,4 +92,10 @@ export function structureFromSpec(spec: StructureSpec, families: readonly Family
 export function dynamicMask(structure: Structure, families: readonly FamilyDefinition[] = FAMILIES): boolean[] {
   const f = families.find((x) => x.name === structure.family);
   return f?.dynamicMask ? f.dynamicMask(structure) : structure.terms.map(() => false);
+}
+
+/** False when the structure's family reports explosive fitted dynamics for θ. */
+export function isStable(structure: Structure, theta: Float64Array, families: readonly FamilyDefinition[] = FAMILIES): boolean {
+  const f = families.find((x) => x.name === structure.family);
+  return f?.stable ? f.stable(structure, theta) : true;
 }

@@ -1,0 +1,505 @@
+/**
+ * The ARX family: linear difference equations with exogenous inputs, written as regressions.
+ *
+ * With z_t = g(y_t) the scoring-scale target (transforms.ts) and w_t its differenced form
+ * (w = z, w_t = z_t − z_{t−1} or w_t = z_t − z_{t−s}), the equation is
+ *
+ *   w_t = c + Σ_{i=1}^{p} a_i w_{t−i} + γ w_{t−s}
+ *           + Σ_j Σ_{l=0}^{q_j−1} b_{j,l} v_{j, t−d_j−l}
+ *           + δ·t + Σ_{k=1}^{K} (α_k sin(2πkt/s) + β_k cos(2πkt/s)) + e_t,
+ *
+ * the ARX model of Ljung 1999 ("System Identification: Theory for the User", 2nd ed., §4.2,
+ * eq. 4.7) extended by deterministic terms (terms.ts). Inputs u_j enter untransformed; v_j is
+ * u_j differenced the same way as z (so the relation between levels, and the steady-state gain,
+ * is the same as without differencing). p AR lags, q_j input lags counted from lag 0, d_j the
+ * input delay: input j first acts after d_j periods.
+ *
+ * Term names read as the equation does: `y[t-1]`, `Δln y[t-2]`, `price[t-3]`, `y[t-12]`,
+ * `trend`, `sin(2π·1·t/12)`. The target is always written `y`; inputs by their own names.
+ */
+import type { Series } from '../data/series.js';
+import { ModelError, UsageError } from '../data/errors.js';
+import type { DesignMatrix } from '../linalg/matrix.js';
+import { lstsq } from '../linalg/lstsq.js';
+import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
+import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
+import { deterministicFiller, deterministicNames, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { characteristicRoots, modulus } from './roots.js';
+import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
+
+export interface ArxInputSpec {
+  /** Input name, as in `series.inputs`. */
+  name: string;
+  /** Number q of lags, counted from lag 0 after the delay (q ≥ 1). */
+  lags: number;
+  /** Delay d ≥ 0: the input terms are u_{t−d}, …, u_{t−d−q+1}. */
+  delay: number;
+}
+
+export interface ArxSpec extends StructureSpec {
+  family: 'arx';
+  /** Number p of AR lags (lags 1…p). */
+  ar: number;
+  inputs: ArxInputSpec[];
+  trend: boolean;
+  /** Number K of seasonal harmonic pairs. */
+  harmonics: number;
+  /** Season length s (needed for harmonics, seasonal lag and seasonal differencing). */
+  season: number | null;
+  /** Include w_{t−s}. */
+  seasonalLag: boolean;
+  differencing: Differencing;
+  transform: Transform;
+}
+
+function isNonNegInt(x: unknown): x is number {
+  return typeof x === 'number' && Number.isInteger(x) && x >= 0;
+}
+
+/** Checks a spec (from a search grid or a saved file); UsageError naming the bad field. */
+export function validateArxSpec(spec: StructureSpec): ArxSpec {
+  const s = spec as Partial<ArxSpec>;
+  const bad = (field: string, expected: string): never => {
+    throw new UsageError('bad-arx-spec', `ARX spec field "${field}" is invalid`, {
+      found: JSON.stringify((spec as Record<string, unknown>)[field]),
+      expected,
+    });
+  };
+  if (s.family !== 'arx') bad('family', '"arx"');
+  if (!isNonNegInt(s.ar)) bad('ar', 'a whole number ≥ 0');
+  if (!Array.isArray(s.inputs)) bad('inputs', 'a list of {name, lags, delay}');
+  for (const i of s.inputs as ArxInputSpec[]) {
+    if (typeof i?.name !== 'string' || !Number.isInteger(i.lags) || i.lags < 1 || !isNonNegInt(i.delay)) {
+      bad('inputs', 'entries {name: text, lags ≥ 1, delay ≥ 0}');
+    }
+  }
+  if (typeof s.trend !== 'boolean') bad('trend', 'true or false');
+  if (typeof s.seasonalLag !== 'boolean') bad('seasonalLag', 'true or false');
+  if (!isNonNegInt(s.harmonics)) bad('harmonics', 'a whole number ≥ 0');
+  if (s.differencing !== 'none' && s.differencing !== 'first' && s.differencing !== 'seasonal') bad('differencing', 'none, first or seasonal');
+  if (s.transform !== 'none' && s.transform !== 'log') bad('transform', 'none or log');
+  const needsSeason = (s.harmonics as number) > 0 || s.seasonalLag || s.differencing === 'seasonal';
+  if (s.season !== null && !(Number.isInteger(s.season) && (s.season as number) >= 2)) bad('season', 'null or a whole number ≥ 2');
+  if (needsSeason && s.season === null) bad('season', 'a season length (harmonics, seasonal lag and seasonal differencing need one)');
+  if (s.season != null && (s.harmonics as number) > maxHarmonics(s.season)) bad('harmonics', `at most ⌊${s.season}/2⌋ = ${maxHarmonics(s.season)}`);
+  return {
+    family: 'arx',
+    ar: s.ar as number,
+    inputs: (s.inputs as ArxInputSpec[]).map((i) => ({ name: i.name, lags: i.lags, delay: i.delay })),
+    trend: s.trend as boolean,
+    harmonics: s.harmonics as number,
+    season: s.season ?? null,
+    seasonalLag: s.seasonalLag as boolean,
+    differencing: s.differencing as Differencing,
+    transform: s.transform as Transform,
+  };
+}
+
+/** Differencing order D (0, 1 or s). */
+function diffOrder(spec: ArxSpec): number {
+  return spec.differencing === 'none' ? 0 : spec.differencing === 'first' ? 1 : (spec.season as number);
+}
+
+function diffPrefix(spec: ArxSpec): string {
+  return spec.differencing === 'none' ? '' : spec.differencing === 'first' ? 'Δ' : `Δ${spec.season}`;
+}
+
+/** Differenced copy x_t − x_{t−D} (NaN for t < D); a copy when D = 0. */
+function difference(x: Float64Array, D: number): Float64Array {
+  if (D === 0) return Float64Array.from(x);
+  const w = new Float64Array(x.length);
+  for (let t = 0; t < x.length; t++) w[t] = t >= D ? x[t] - x[t - D] : NaN;
+  return w;
+}
+
+function fmt(x: number): string {
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a >= 1e-3 && a < 1e6) return String(Number(x.toPrecision(4)));
+  return x.toExponential(3);
+}
+
+function inputValues(series: Series, name: string): Float64Array {
+  const inp = series.inputs.find((i) => i.name === name);
+  if (!inp) {
+    throw new UsageError('unknown-input', `the model uses input "${name}", which the series does not have`, {
+      found: series.inputs.map((i) => i.name).join(', ') || 'no inputs',
+      expected: `an input named "${name}"`,
+      hint: 'load the data with the same input columns the model was built with',
+    });
+  }
+  return inp.values;
+}
+
+export class ArxStructure implements Structure {
+  readonly family = 'arx';
+  readonly spec: ArxSpec;
+  readonly key: string;
+  readonly label: string;
+  readonly terms: string[];
+  readonly history: number;
+  readonly transform: Transform;
+  /** Column positions: AR lags start at `arAt`, the seasonal lag at `slagAt` (−1 if none). */
+  private readonly arAt: number;
+  private readonly slagAt: number;
+  private readonly inputAt: number[];
+  private readonly detAt: number;
+  private readonly det: DeterministicTerms;
+  private readonly fillDet: (t: number, out: Float64Array, offset: number) => number;
+  private readonly D: number;
+
+  constructor(specIn: StructureSpec) {
+    const spec = validateArxSpec(specIn);
+    this.spec = spec;
+    this.transform = spec.transform;
+    this.D = diffOrder(spec);
+    const pre = diffPrefix(spec);
+    const yName = `${pre}${transformedName(spec.transform, 'y')}`;
+    const terms: string[] = ['const'];
+    this.arAt = 1;
+    for (let i = 1; i <= spec.ar; i++) terms.push(`${yName}[t-${i}]`);
+    this.slagAt = -1;
+    if (spec.seasonalLag) {
+      this.slagAt = terms.length;
+      terms.push(`${yName}[t-${spec.season}]`);
+    }
+    this.inputAt = [];
+    for (const inp of spec.inputs) {
+      this.inputAt.push(terms.length);
+      for (let l = 0; l < inp.lags; l++) {
+        const lag = inp.delay + l;
+        terms.push(lag === 0 ? `${pre}${inp.name}[t]` : `${pre}${inp.name}[t-${lag}]`);
+      }
+    }
+    this.detAt = terms.length;
+    this.det = { intercept: false, trend: spec.trend, harmonics: spec.harmonics, season: spec.season };
+    terms.push(...deterministicNames(this.det));
+    this.fillDet = deterministicFiller(this.det);
+    this.terms = terms;
+    let hw = spec.ar;
+    if (spec.seasonalLag) hw = Math.max(hw, spec.season as number);
+    for (const inp of spec.inputs) hw = Math.max(hw, inp.delay + inp.lags - 1);
+    this.history = hw + this.D;
+    this.key = arxKey(spec);
+    this.label = arxLabel(spec);
+  }
+
+  /** The scoring-scale target z, its differenced form w and the differenced inputs v. */
+  private prepare(series: Series, values: Float64Array, inputs: Float64Array[]): { z: Float64Array; w: Float64Array; v: Float64Array[] } {
+    if (this.transform === 'log' && !isStrictlyPositive(values)) {
+      throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
+        expected: 'all values > 0',
+        hint: 'use --transform none',
+      });
+    }
+    const z = forward(this.transform, values);
+    const w = difference(z, this.D);
+    const v = inputs.map((u) => difference(u, this.D));
+    return { z, w, v };
+  }
+
+  private inputsOf(series: Series): Float64Array[] {
+    return this.spec.inputs.map((i) => inputValues(series, i.name));
+  }
+
+  /** Writes the regressor row of time t (from w and v) into out. */
+  private fillRow(t: number, w: Float64Array, v: Float64Array[], out: Float64Array): void {
+    out[0] = 1;
+    for (let i = 1; i <= this.spec.ar; i++) out[this.arAt + i - 1] = w[t - i];
+    if (this.slagAt >= 0) out[this.slagAt] = w[t - (this.spec.season as number)];
+    for (let j = 0; j < this.spec.inputs.length; j++) {
+      const { lags, delay } = this.spec.inputs[j];
+      const vj = v[j];
+      const at = this.inputAt[j];
+      for (let l = 0; l < lags; l++) out[at + l] = vj[t - delay - l];
+    }
+    this.fillDet(t, out, this.detAt);
+  }
+
+  regression(series: Series, from: number, to: number): Regression {
+    const start = Math.max(from, this.history);
+    const end = Math.min(to, series.values.length);
+    const rows = Math.max(0, end - start);
+    const p = this.terms.length;
+    const { w, v } = this.prepare(series, series.values, this.inputsOf(series));
+    const phi: DesignMatrix = { rows, cols: p, data: new Float64Array(rows * p) };
+    const y = new Float64Array(rows);
+    const index = new Int32Array(rows);
+    for (let r = 0; r < rows; r++) {
+      const t = start + r;
+      index[r] = t;
+      y[r] = w[t];
+      this.fillRow(t, w, v, phi.data.subarray(r * p, (r + 1) * p));
+    }
+    return { index, y, phi };
+  }
+
+  estimate(series: Series, from: number, to: number): Estimate {
+    const reg = this.regression(series, from, to);
+    if (reg.y.length <= this.terms.length) {
+      throw new ModelError('too-short', `${this.label}: ${reg.y.length} rows for ${this.terms.length} coefficients`, {
+        expected: `more than ${this.terms.length} rows (series length ≥ ${this.history + this.terms.length + 1})`,
+      });
+    }
+    const fit = lstsq(reg.phi, reg.y, this.terms, { onRankDeficient: 'throw' });
+    return {
+      theta: fit.theta,
+      se: fit.se,
+      cov: fit.cov,
+      active: this.terms.map(() => true),
+      sigma2: fit.sigma2,
+      rank: fit.rank,
+      condition: fit.condition,
+      warnings: fit.warnings,
+    };
+  }
+
+  oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
+    const { z, w, v } = this.prepare(series, series.values, this.inputsOf(series));
+    const n = Math.max(0, to - from);
+    const out = new Float64Array(n).fill(NaN);
+    const p = this.terms.length;
+    const row = new Float64Array(p);
+    for (let t = Math.max(from, this.history); t < to; t++) {
+      this.fillRow(t, w, v, row);
+      let pred = 0;
+      for (let j = 0; j < p; j++) pred += row[j] * theta[j];
+      out[t - from] = this.D > 0 ? z[t - this.D] + pred : pred;
+    }
+    return out;
+  }
+
+  simulate(theta: Float64Array, series: Series, future: Float64Array[], h: number, shocks?: Float64Array): Float64Array {
+    const n = series.values.length;
+    if (n < this.history) {
+      throw new ModelError('too-short', `${this.label} needs ${this.history} past points to simulate; the series has ${n}`, {
+        expected: `at least ${this.history} points`,
+      });
+    }
+    if (future.length !== series.inputs.length) {
+      throw new UsageError('future-inputs', `simulation needs future values for ${series.inputs.length} inputs, got ${future.length}`, {
+        expected: `${series.inputs.length} arrays of ${h} values`,
+      });
+    }
+    // Extend every used input by its future values (in series order), then difference.
+    const inputs = this.spec.inputs.map((spec) => {
+      const k = series.inputs.findIndex((i) => i.name === spec.name);
+      if (k < 0) inputValues(series, spec.name);
+      if (future[k].length < h) {
+        throw new UsageError('future-inputs', `input "${spec.name}" has ${future[k].length} future values; the horizon is ${h}`, {
+          expected: `${h} future values`,
+        });
+      }
+      const u = new Float64Array(n + h);
+      u.set(series.inputs[k].values.subarray(0, n));
+      u.set(future[k].subarray(0, h), n);
+      return u;
+    });
+    const z = new Float64Array(n + h);
+    z.set(forward(this.transform, checkPositive(this, series)));
+    const w = difference(z, this.D);
+    const v = inputs.map((u) => difference(u, this.D));
+    const p = this.terms.length;
+    const row = new Float64Array(p);
+    const out = new Float64Array(h);
+    for (let t = n; t < n + h; t++) {
+      this.fillRow(t, w, v, row);
+      let pred = 0;
+      for (let j = 0; j < p; j++) pred += row[j] * theta[j];
+      if (shocks) pred += shocks[t - n];
+      w[t] = pred;
+      z[t] = this.D > 0 ? z[t - this.D] + pred : pred;
+      out[t - n] = inverse(this.transform, z[t]);
+    }
+    return out;
+  }
+
+  describe(theta: Float64Array, se?: Float64Array): string {
+    const lhs = `${diffPrefix(this.spec)}${transformedName(this.transform, 'y')}[t]`;
+    const parts: string[] = [];
+    for (let j = 0; j < this.terms.length; j++) {
+      const c = theta[j];
+      const mag = fmt(Math.abs(c)) + (se ? ` (±${fmt(se[j])})` : '');
+      const sign = c < 0 ? '−' : '+';
+      const body = this.terms[j] === 'const' ? mag : `${mag}·${this.terms[j]}`;
+      parts.push(j === 0 ? (c < 0 ? `−${body}` : body) : `${sign} ${body}`);
+    }
+    return `${lhs} = ${parts.join(' ')} + e[t]`;
+  }
+
+  /** Dynamic coefficients: the AR lags and the seasonal lag. */
+  dynamicMask(): boolean[] {
+    return this.terms.map((_, j) => (j >= this.arAt && j < this.arAt + this.spec.ar) || j === this.slagAt);
+  }
+
+  /** Coefficients of the AR recursion by lag (index i = lag i+1), the seasonal lag included. */
+  arPolynomial(theta: Float64Array): Float64Array {
+    const len = Math.max(this.spec.ar, this.spec.seasonalLag ? (this.spec.season as number) : 0);
+    const a = new Float64Array(len);
+    for (let i = 0; i < this.spec.ar; i++) a[i] = theta[this.arAt + i];
+    if (this.slagAt >= 0) a[(this.spec.season as number) - 1] += theta[this.slagAt];
+    return a;
+  }
+
+  /** True when every characteristic root of the AR recursion lies strictly inside the unit circle. */
+  isStable(theta: Float64Array): boolean {
+    const roots = characteristicRoots(this.arPolynomial(theta));
+    return roots.length === 0 || modulus(roots[0]) < 1;
+  }
+
+  /**
+   * Derived quantities:
+   * - `stable` and `spectral radius`: the largest modulus ρ of the characteristic roots of the
+   *   AR recursion (roots.ts); stable when ρ < 1.
+   * - `half-life`: periods for a disturbance to decay to half under the dominant root,
+   *   ln 0.5 / ln ρ (for a first-order system w_t = a w_{t−1}, ln 0.5 / ln a; Hamilton 1994,
+   *   "Time Series Analysis", §1.2 on dynamic multipliers a^j).
+   * - `oscillation period`: 2π/|arg λ| when the dominant root is complex.
+   * - per input, `gain`: the steady-state gain Σ_l b_{j,l} / (1 − Σ_i a_i − γ), the long-run
+   *   multiplier of a permanent unit change in u_j (Hamilton 1994, §2.5, eq. 2.5.7); on the ln
+   *   scale for log models (relative change of y per unit of u). And `delay` d_j.
+   */
+  derived(theta: Float64Array, series: Series): Derived[] {
+    void series;
+    const out: Derived[] = [];
+    const a = this.arPolynomial(theta);
+    const roots = characteristicRoots(a);
+    const rho = roots.length === 0 ? 0 : modulus(roots[0]);
+    out.push({ name: 'stable', value: rho < 1, note: 'all characteristic roots of the AR recursion inside the unit circle' });
+    out.push({ name: 'spectral radius', value: rho, note: 'largest modulus of the AR characteristic roots' });
+    if (roots.length > 0 && rho > 0 && rho < 1) {
+      out.push({ name: 'half-life', value: Math.log(0.5) / Math.log(rho), unit: 'periods', note: 'decay to half under the dominant root' });
+      const arg = Math.abs(Math.atan2(roots[0].im, roots[0].re));
+      if (roots[0].im !== 0 && arg > 0) out.push({ name: 'oscillation period', value: (2 * Math.PI) / arg, unit: 'periods' });
+    } else if (roots.length === 0) {
+      out.push({ name: 'half-life', value: 'none (no AR dynamics)' });
+    }
+    let sumA = 0;
+    for (let i = 0; i < a.length; i++) sumA += a[i];
+    for (let j = 0; j < this.spec.inputs.length; j++) {
+      const inp = this.spec.inputs[j];
+      let sumB = 0;
+      for (let l = 0; l < inp.lags; l++) sumB += theta[this.inputAt[j] + l];
+      const unit = this.transform === 'log' ? `ln(y) per unit of ${inp.name}` : `y per unit of ${inp.name}`;
+      out.push({
+        name: `gain ${inp.name}`,
+        value: rho < 1 ? sumB / (1 - sumA) : 'undefined (unstable)',
+        unit,
+        note: 'steady-state gain: Σ input coefficients / (1 − Σ AR coefficients)',
+      });
+      out.push({ name: `delay ${inp.name}`, value: inp.delay, unit: 'periods' });
+    }
+    return out;
+  }
+}
+
+function checkPositive(s: ArxStructure, series: Series): Float64Array {
+  if (s.transform === 'log' && !isStrictlyPositive(series.values)) {
+    throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
+      expected: 'all values > 0',
+    });
+  }
+  return series.values;
+}
+
+/** Stable key: `arx|ar2|price:q2d1|slag|trend|K2|diff1|log` (only the parts present). */
+export function arxKey(spec: ArxSpec): string {
+  const parts = ['arx', `ar${spec.ar}`];
+  for (const i of spec.inputs) parts.push(`${i.name}:q${i.lags}d${i.delay}`);
+  if (spec.seasonalLag) parts.push(`slag${spec.season}`);
+  if (spec.trend) parts.push('trend');
+  if (spec.harmonics > 0) parts.push(`K${spec.harmonics}s${spec.season}`);
+  if (spec.differencing === 'first') parts.push('diff1');
+  if (spec.differencing === 'seasonal') parts.push(`diff${spec.season}`);
+  if (spec.transform === 'log') parts.push('log');
+  return parts.join('|');
+}
+
+function range(n: number): string {
+  return n === 1 ? 'lag 1' : `lags 1-${n}`;
+}
+
+/** Readable label, e.g. "AR lags 1-2, price lags 0-1 after delay 2, trend, 2 harmonics, log". */
+export function arxLabel(spec: ArxSpec): string {
+  const parts: string[] = [spec.ar === 0 ? 'no AR lags' : `AR ${range(spec.ar)}`];
+  if (spec.seasonalLag) parts.push(`seasonal lag ${spec.season}`);
+  for (const i of spec.inputs) {
+    const lags = i.lags === 1 ? 'lag 0' : `lags 0-${i.lags - 1}`;
+    parts.push(i.delay > 0 ? `${i.name} ${lags} after delay ${i.delay}` : `${i.name} ${lags}`);
+  }
+  if (spec.trend) parts.push('trend');
+  if (spec.harmonics > 0) parts.push(`${spec.harmonics} harmonic${spec.harmonics > 1 ? 's' : ''}`);
+  if (spec.differencing === 'first') parts.push('first differences');
+  if (spec.differencing === 'seasonal') parts.push(`seasonal differences (${spec.season})`);
+  if (spec.transform === 'log') parts.push('log');
+  return parts.join(', ');
+}
+
+/**
+ * The input configurations of the grid, in fixed order: none; then for each input subset (by
+ * series order; every non-empty subset when at most 3 inputs, otherwise each input alone and
+ * all together), every lag count q = 1…maxInputLags and delay d = 0…maxDelay shared by the
+ * subset's inputs.
+ */
+function inputConfigs(bounds: CandidateBounds): ArxInputSpec[][] {
+  const names = bounds.inputs;
+  const configs: ArxInputSpec[][] = [[]];
+  if (names.length === 0 || bounds.maxInputLags < 1) return configs;
+  const subsets: string[][] = [];
+  if (names.length <= 3) {
+    for (let mask = 1; mask < 1 << names.length; mask++) subsets.push(names.filter((_, i) => mask & (1 << i)));
+    subsets.sort((a, b) => a.length - b.length);
+  } else {
+    for (const n of names) subsets.push([n]);
+    subsets.push([...names]);
+  }
+  for (const subset of subsets) {
+    for (let q = 1; q <= bounds.maxInputLags; q++) {
+      for (let d = 0; d <= bounds.maxDelay; d++) configs.push(subset.map((name) => ({ name, lags: q, delay: d })));
+    }
+  }
+  return configs;
+}
+
+/**
+ * The ARX candidate grid, in this fixed nesting order (outermost first): transform,
+ * differencing, trend, seasonal lag, harmonics, AR lags p = 0…maxAr, input configuration.
+ * Combinations that make no sense are left out: seasonal parts without a season, and harmonics
+ * with seasonal differencing (which removes any fixed seasonal pattern).
+ */
+export function arxCandidates(series: Series, bounds: CandidateBounds): Structure[] {
+  void series;
+  const out: Structure[] = [];
+  const s = bounds.season;
+  const inputs = inputConfigs(bounds);
+  for (const transform of bounds.transforms) {
+    for (const differencing of bounds.differencing) {
+      if (differencing === 'seasonal' && s === null) continue;
+      for (const trend of bounds.trend) {
+        for (const seasonalLag of bounds.seasonalLag) {
+          if (seasonalLag && s === null) continue;
+          const Ks = s === null ? [0] : bounds.harmonics.length > 0 ? bounds.harmonics : [0];
+          for (const harmonics of Ks) {
+            if (harmonics > 0 && differencing === 'seasonal') continue;
+            for (let ar = 0; ar <= bounds.maxAr; ar++) {
+              for (const cfg of inputs) {
+                out.push(
+                  new ArxStructure({ family: 'arx', ar, inputs: cfg, trend, harmonics, season: s, seasonalLag, differencing, transform }),
+                );
+              }
+            }
+          }
+        }
+      }
+    }
+  }
+  return out;
+}
+
+export const arxFamily: FamilyDefinition = {
+  name: 'arx',
+  candidates: arxCandidates,
+  fromSpec: (spec) => new ArxStructure(spec),
+  dynamicMask: (structure) => (structure as ArxStructure).dynamicMask(),
+  stable: (structure, theta) => (structure as ArxStructure).isStable(theta),
+};

@@ -1,0 +1,76 @@
+/**
+ * Deterministic regressors shared by model families: intercept, linear trend and seasonal
+ * Fourier pairs.
+ *
+ * Time enters as the 0-based position t in the series (the same index Structure rows use).
+ * Seasonal harmonics of period s are the pairs sin(2πkt/s), cos(2πkt/s) for k = 1…K,
+ * K ≤ ⌊s/2⌋: a trigonometric-polynomial representation of a periodic mean (Harvey 1989,
+ * "Forecasting, Structural Time Series Models and the Kalman Filter", §2.3.4). For even s the
+ * k = s/2 sine is sin(πt) = 0 at every integer t, so only its cosine is kept; K = s/2 then spans
+ * exactly the s−1 seasonal contrasts.
+ */
+
+export interface DeterministicTerms {
+  intercept: boolean;
+  trend: boolean;
+  /** Number K of harmonic pairs (0 = none). */
+  harmonics: number;
+  /** Season length s (needed when harmonics > 0). */
+  season: number | null;
+}
+
+interface HarmonicColumn {
+  kind: 'sin' | 'cos';
+  k: number;
+}
+
+/** The harmonic columns in order sin k=1, cos k=1, sin k=2, ... (without the zero sine at k = s/2). */
+function harmonicColumns(K: number, s: number): HarmonicColumn[] {
+  const cols: HarmonicColumn[] = [];
+  for (let k = 1; k <= K; k++) {
+    if (!(2 * k === s)) cols.push({ kind: 'sin', k });
+    cols.push({ kind: 'cos', k });
+  }
+  return cols;
+}
+
+/** Largest meaningful number of harmonic pairs for season s: ⌊s/2⌋. */
+export function maxHarmonics(s: number): number {
+  return Math.floor(s / 2);
+}
+
+/** Names of the deterministic columns, in the order `fillDeterministic` writes them. */
+export function deterministicNames(d: DeterministicTerms): string[] {
+  const names: string[] = [];
+  if (d.intercept) names.push('const');
+  if (d.trend) names.push('trend');
+  if (d.harmonics > 0 && d.season !== null) {
+    for (const c of harmonicColumns(d.harmonics, d.season)) names.push(`${c.kind}(2π·${c.k}·t/${d.season})`);
+  }
+  return names;
+}
+
+/** Number of deterministic columns. */
+export function deterministicCount(d: DeterministicTerms): number {
+  return deterministicNames(d).length;
+}
+
+/**
+ * A filler writing the deterministic values at time t into `out` from `offset`; returns the
+ * number of values written. Precomputes the harmonic frequencies once.
+ */
+export function deterministicFiller(d: DeterministicTerms): (t: number, out: Float64Array, offset: number) => number {
+  const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
+  const omega = cols.map((c) => (2 * Math.PI * c.k) / (d.season as number));
+  const isSin = cols.map((c) => c.kind === 'sin');
+  const s = d.season ?? 1;
+  return (t, out, offset) => {
+    let j = offset;
+    if (d.intercept) out[j++] = 1;
+    if (d.trend) out[j++] = t;
+    // Reduce t modulo s first so large positions keep full precision in sin/cos.
+    const tm = cols.length > 0 ? ((t % s) + s) % s : 0;
+    for (let c = 0; c < cols.length; c++) out[j++] = isSin[c] ? Math.sin(omega[c] * tm) : Math.cos(omega[c] * tm);
+    return j - offset;
+  };
+}
