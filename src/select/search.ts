@@ -1,0 +1,519 @@
+/**
+ * The structure search: a deterministic candidate grid from every requested family, each
+ * candidate fitted and scored on one common sample, ranked by an information criterion.
+ *
+ * Procedure.
+ * 1. Resolve the bounds (every "auto" becomes the list of alternatives) and ask each family, in
+ *    registry order, for its candidates (registry.ts). Grid order is fixed by the families.
+ * 2. Common sample: rows t ∈ [from, n) with from = the largest `history` among all candidates
+ *    (or a later `sampleStart`), so every candidate predicts the same observations.
+ * 3. Each candidate is estimated on that sample (`estimate`), its one-step predictions of
+ *    z_t = g(y_t) are formed (`oneStep`), and RSS = Σ (z_t − ẑ_t)² enters the Gaussian
+ *    criteria of criteria.ts with k = active coefficients + 1 (the noise variance) and, for log
+ *    candidates, the log-Jacobian −Σ ln y_t over the sample, so all candidates are scored on the
+ *    original scale.
+ * 4. Candidates that cannot be fitted (too few rows, rank lost, explosive fitted dynamics,
+ *    non-finite predictions, undefined criterion) stay in the ranking as failed, with the reason.
+ * 5. Fitted candidates are sorted by the criterion, ties broken by key; Δ is the distance to
+ *    the best and the Akaike weights are taken over the fitted set (criteria.ts). The winner's
+ *    residuals get a Ljung–Box whiteness check (whiteness.ts).
+ *
+ * Defaults (small enough for interactive use on a monthly series with one input, ~450
+ * candidates): maxAr 3, maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0…min(3, ⌊s/2⌋) when
+ * the series has a season), transform 'auto' (ln tried only for strictly positive series),
+ * trend 'auto' (with and without), seasonalLag 'off', differencing 'none', criterion 'aicc',
+ * all registered families and all inputs of the series.
+ */
+import type { Series } from '../data/series.js';
+import { CertaError, DataError, ModelError, UsageError } from '../data/errors.js';
+import { formatTime } from '../data/calendar.js';
+import type { Derived, Estimate, Structure, StructureSpec, Transform } from '../models/structure.js';
+import {
+  FAMILIES,
+  dynamicMask,
+  familyNames,
+  getFamily,
+  isStable,
+  type CandidateBounds,
+  type Differencing,
+  type FamilyDefinition,
+} from '../models/registry.js';
+import { forward, isStrictlyPositive, logJacobian } from '../models/transforms.js';
+import { maxHarmonics } from '../models/terms.js';
+import { akaikeWeights, criteria, type Criterion } from './criteria.js';
+import { defaultLjungBoxLags, ljungBox, type LjungBoxResult } from './whiteness.js';
+
+export type Switch = 'on' | 'off' | 'auto';
+
+export interface SearchOptions {
+  /** Families to search, by name (default: every registered family, registry order). */
+  families?: string[];
+  /** Largest number of AR lags (default 3). */
+  maxAr?: number;
+  /** Largest number of lags per input (default 2; 0 searches without inputs). */
+  maxInputLags?: number;
+  /** Largest input delay (default 2). */
+  maxDelay?: number;
+  /** Largest number of harmonic pairs, or 'auto' = min(3, ⌊s/2⌋) (default 'auto'). */
+  harmonics?: number | 'auto';
+  /** Season length for seasonal terms (default `series.season`; null switches them off). */
+  season?: number | null;
+  /** Scoring-scale transform (default 'auto': none, plus log for strictly positive series). */
+  transform?: 'auto' | 'none' | 'log';
+  /** Linear trend term (default 'auto': with and without). */
+  trend?: Switch;
+  /** Seasonal lag y[t−s] (default 'off'). */
+  seasonalLag?: Switch;
+  /** Differencing (default 'none'; 'auto' tries none, first and, with a season, seasonal). */
+  differencing?: Differencing | 'auto';
+  /** Inputs the search may use (default: all inputs of the series). */
+  inputs?: string[];
+  /** Ranking criterion (default 'aicc'). */
+  criterion?: Criterion;
+  /** First row of the common sample, when later than the largest history (to compare searches). */
+  sampleStart?: number;
+  /** Lags of the Ljung–Box check (default min(10 or 2s, ⌊n/5⌋)). */
+  whitenessLags?: number;
+  /** Family definitions to draw from (default: the registry's). */
+  registry?: readonly FamilyDefinition[];
+}
+
+export const SEARCH_DEFAULTS = {
+  maxAr: 3,
+  maxInputLags: 2,
+  maxDelay: 2,
+  harmonics: 'auto' as const,
+  autoHarmonicsCap: 3,
+  transform: 'auto' as const,
+  trend: 'auto' as const,
+  seasonalLag: 'off' as const,
+  differencing: 'none' as const,
+  criterion: 'aicc' as Criterion,
+};
+
+export interface CandidateResult {
+  key: string;
+  label: string;
+  family: string;
+  spec: StructureSpec;
+  structure: Structure;
+  status: 'fitted' | 'failed';
+  /** Why a failed candidate could not be fitted. */
+  reason?: string;
+  /** 1-based position among fitted candidates (null for failed ones). */
+  rank: number | null;
+  /** Value of the ranking criterion, its distance to the best, and the Akaike weight. */
+  score: number;
+  delta: number;
+  weight: number;
+  aic: number;
+  aicc: number;
+  bic: number;
+  logLik: number;
+  rss: number;
+  /** Parameters counted: active coefficients + 1. */
+  k: number;
+  /** Observations scored. */
+  n: number;
+  /** Time indices scored, [from, to). */
+  from: number;
+  to: number;
+  estimate?: Estimate;
+}
+
+export interface SearchSample {
+  from: number;
+  to: number;
+  n: number;
+  /** First and last scored time stamps, formatted for the frequency. */
+  start: string;
+  end: string;
+}
+
+export interface SearchWinner {
+  structure: Structure;
+  estimate: Estimate;
+  result: CandidateResult;
+  /** The fitted equation with ± standard errors. */
+  equation: string;
+  derived: Derived[];
+  /** One-step predictions ẑ and residuals z − ẑ on the common sample (scoring scale). */
+  predictions: Float64Array;
+  residuals: Float64Array;
+  whiteness: LjungBoxResult;
+}
+
+export interface SearchResult {
+  series: { name: string; frequency: string; season: number | null; length: number; inputs: string[]; source?: string };
+  criterion: Criterion;
+  bounds: CandidateBounds;
+  families: string[];
+  sample: SearchSample;
+  /** Fitted candidates best first, then failed ones in grid order. */
+  ranking: CandidateResult[];
+  fitted: number;
+  failed: number;
+  winner: SearchWinner;
+  warnings: string[];
+}
+
+function checkInt(name: string, value: number, min: number, max: number): number {
+  if (!Number.isInteger(value) || value < min || value > max) {
+    throw new UsageError('bad-search-bound', `search bound ${name} must be a whole number from ${min} to ${max}`, {
+      found: String(value),
+      expected: `${min}…${max}`,
+    });
+  }
+  return value;
+}
+
+function switchValues(s: Switch): boolean[] {
+  return s === 'on' ? [true] : s === 'off' ? [false] : [false, true];
+}
+
+/** Checks the series itself: finite target, not constant, complete inputs unlike the target. */
+function validateSeries(series: Series): void {
+  const y = series.values;
+  const where = (t: number) => formatTime(series.time[t], series.frequency);
+  for (let t = 0; t < y.length; t++) {
+    if (!Number.isFinite(y[t])) {
+      throw new DataError('missing-values', `series "${series.name}" has a missing value at ${where(t)}`, {
+        column: series.name,
+        found: String(y[t]),
+        expected: 'a complete series',
+        hint: 'fill or drop the gap when loading',
+      });
+    }
+  }
+  let min = Infinity;
+  let max = -Infinity;
+  for (let t = 0; t < y.length; t++) {
+    if (y[t] < min) min = y[t];
+    if (y[t] > max) max = y[t];
+  }
+  if (y.length > 0 && max - min <= 1e-12 * Math.max(1, Math.abs(max))) {
+    throw new ModelError('constant-series', `series "${series.name}" is constant (every value is ${y[0]}); there is nothing to identify`, {
+      column: series.name,
+      found: String(y[0]),
+      expected: 'a series that varies',
+    });
+  }
+  for (const inp of series.inputs) {
+    if (inp.values.length !== y.length) {
+      throw new DataError('input-length', `input "${inp.name}" has ${inp.values.length} values, the series ${y.length}`, {
+        column: inp.name,
+        expected: `${y.length} values`,
+      });
+    }
+    for (let t = 0; t < y.length; t++) {
+      if (!Number.isFinite(inp.values[t])) {
+        throw new DataError('input-missing', `input "${inp.name}" has a missing value at ${where(t)}`, {
+          column: inp.name,
+          found: String(inp.values[t]),
+          expected: 'a value at every time of the series',
+          hint: 'inputs must be complete: fill the gap in the file or leave the input out',
+        });
+      }
+    }
+    let same = true;
+    for (let t = 0; t < y.length && same; t++) same = inp.values[t] === y[t];
+    if (same) {
+      throw new UsageError('input-is-target', `input "${inp.name}" is identical to the series "${series.name}" itself`, {
+        column: inp.name,
+        expected: 'an input that differs from the target',
+        hint: 'an input must be another variable; leave this one out',
+      });
+    }
+  }
+}
+
+/** Resolves options to explicit bounds. */
+export function resolveBounds(series: Series, options: SearchOptions = {}): CandidateBounds {
+  const maxAr = checkInt('maxAr', options.maxAr ?? SEARCH_DEFAULTS.maxAr, 0, 24);
+  const maxInputLags = checkInt('maxInputLags', options.maxInputLags ?? SEARCH_DEFAULTS.maxInputLags, 0, 24);
+  const maxDelay = checkInt('maxDelay', options.maxDelay ?? SEARCH_DEFAULTS.maxDelay, 0, 60);
+  const season = options.season !== undefined ? options.season : series.season;
+  if (season !== null && (!Number.isInteger(season) || season < 2)) {
+    throw new UsageError('bad-season', 'the season length must be a whole number ≥ 2', { found: String(season), expected: 'an integer ≥ 2' });
+  }
+  let harmonics: number[] = [];
+  if (season !== null) {
+    const h = options.harmonics ?? SEARCH_DEFAULTS.harmonics;
+    const top = h === 'auto' ? Math.min(SEARCH_DEFAULTS.autoHarmonicsCap, maxHarmonics(season)) : checkInt('harmonics', h, 0, maxHarmonics(season));
+    harmonics = Array.from({ length: top + 1 }, (_, k) => k);
+  } else if (typeof options.harmonics === 'number' && options.harmonics > 0) {
+    throw new UsageError('no-season', `harmonics need a season; series "${series.name}" has none`, {
+      found: `harmonics ${options.harmonics}`,
+      expected: 'a season length (set one when loading) or harmonics 0',
+    });
+  }
+  const positive = isStrictlyPositive(series.values);
+  const transform = options.transform ?? SEARCH_DEFAULTS.transform;
+  let transforms: Transform[];
+  if (transform === 'log') {
+    if (!positive) {
+      throw new UsageError('log-not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
+        expected: 'all values > 0',
+        hint: 'use --transform none or auto',
+      });
+    }
+    transforms = ['log'];
+  } else if (transform === 'none') transforms = ['none'];
+  else transforms = positive ? ['none', 'log'] : ['none'];
+  const known = series.inputs.map((i) => i.name);
+  const inputs = options.inputs ?? known;
+  for (const name of inputs) {
+    if (!known.includes(name)) {
+      throw new UsageError('unknown-input', `the search was asked to use input "${name}", which the series does not have`, {
+        found: name,
+        expected: known.length > 0 ? `one of ${known.join(', ')}` : 'no inputs (the series has none)',
+      });
+    }
+  }
+  const diff = options.differencing ?? SEARCH_DEFAULTS.differencing;
+  const differencing: Differencing[] =
+    diff === 'auto' ? (season !== null ? ['none', 'first', 'seasonal'] : ['none', 'first']) : [diff];
+  if (diff === 'seasonal' && season === null) {
+    throw new UsageError('no-season', `seasonal differencing needs a season; series "${series.name}" has none`, { expected: 'a season length' });
+  }
+  const seasonalLag = season === null ? [false] : switchValues(options.seasonalLag ?? SEARCH_DEFAULTS.seasonalLag);
+  return {
+    maxAr,
+    maxInputLags,
+    maxDelay,
+    inputs: known.filter((n) => inputs.includes(n)),
+    harmonics,
+    season,
+    transforms,
+    trend: switchValues(options.trend ?? SEARCH_DEFAULTS.trend),
+    seasonalLag,
+    differencing,
+  };
+}
+
+function failed(s: Structure, reason: string, from: number, to: number): CandidateResult {
+  return {
+    key: s.key,
+    label: s.label,
+    family: s.family,
+    spec: s.spec,
+    structure: s,
+    status: 'failed',
+    reason,
+    rank: null,
+    score: NaN,
+    delta: NaN,
+    weight: 0,
+    aic: NaN,
+    aicc: NaN,
+    bic: NaN,
+    logLik: NaN,
+    rss: NaN,
+    k: s.terms.length + 1,
+    n: to - from,
+    from,
+    to,
+  };
+}
+
+/** Runs the structure search; see the file comment for the procedure and defaults. */
+export function search(series: Series, options: SearchOptions = {}): SearchResult {
+  validateSeries(series);
+  const registry = options.registry ?? FAMILIES;
+  const criterion = options.criterion ?? SEARCH_DEFAULTS.criterion;
+  if (criterion !== 'aic' && criterion !== 'aicc' && criterion !== 'bic') {
+    throw new UsageError('bad-criterion', `unknown criterion "${String(criterion)}"`, { found: String(criterion), expected: 'aicc, aic or bic' });
+  }
+  const names = options.families ?? familyNames(registry);
+  const families = names.map((n) => getFamily(n, registry));
+  const bounds = resolveBounds(series, options);
+  const candidates: Structure[] = [];
+  for (const f of families) candidates.push(...f.candidates(series, bounds));
+  if (candidates.length === 0) {
+    throw new UsageError('no-candidates', 'the search bounds leave no candidate structure', { expected: 'at least one family and valid bounds' });
+  }
+
+  const n = series.values.length;
+  let maxHistory = 0;
+  let minTerms = Infinity;
+  let maxTerms = 0;
+  for (const s of candidates) {
+    maxHistory = Math.max(maxHistory, s.history);
+    minTerms = Math.min(minTerms, s.terms.length);
+    maxTerms = Math.max(maxTerms, s.terms.length);
+  }
+  let from = maxHistory;
+  if (options.sampleStart !== undefined) {
+    if (!Number.isInteger(options.sampleStart) || options.sampleStart < maxHistory) {
+      throw new UsageError('bad-sample-start', `the common sample cannot start at ${options.sampleStart}: the candidates need ${maxHistory} past points`, {
+        found: String(options.sampleStart),
+        expected: `an index ≥ ${maxHistory}`,
+      });
+    }
+    from = options.sampleStart;
+  }
+  const to = n;
+  // The smallest candidate needs k = terms + 1 parameters and n − k − 1 > 0 rows for AICc.
+  const minRows = minTerms + 3;
+  if (to - from < minRows) {
+    throw new ModelError(
+      'too-short',
+      `series "${series.name}" has ${n} points; the search needs at least ${from + minRows} ` +
+        `(${from} past points for the longest lag plus ${minRows} rows to fit the smallest candidate; ` +
+        `${from + maxTerms + 3} to fit every candidate)`,
+      { found: `${n} points`, expected: `at least ${from + minRows} points`, hint: 'lower --max-ar, --max-delay, --max-input-lags or the seasonal options' },
+    );
+  }
+
+  const y = series.values;
+  const zByTransform = new Map<Transform, Float64Array>();
+  const jacByTransform = new Map<Transform, number>();
+  const zOf = (t: Transform) => {
+    let z = zByTransform.get(t);
+    if (!z) {
+      z = forward(t, y);
+      zByTransform.set(t, z);
+      jacByTransform.set(t, logJacobian(t, y, from, to));
+    }
+    return z;
+  };
+  const rows = to - from;
+  const results: CandidateResult[] = [];
+  for (const s of candidates) {
+    let est: Estimate;
+    try {
+      est = s.estimate(series, from, to);
+    } catch (e) {
+      if (e instanceof CertaError) {
+        results.push(failed(s, e.message, from, to));
+        continue;
+      }
+      throw e;
+    }
+    if (!isStable(s, est.theta, registry)) {
+      results.push(failed(s, 'explosive fitted dynamics (a characteristic root on or outside the unit circle)', from, to));
+      continue;
+    }
+    const pred = s.oneStep(est.theta, series, from, to);
+    const z = zOf(s.transform);
+    let rss = 0;
+    for (let t = from; t < to; t++) {
+      const e = z[t] - pred[t - from];
+      rss += e * e;
+    }
+    if (!Number.isFinite(rss)) {
+      results.push(failed(s, 'non-finite one-step predictions', from, to));
+      continue;
+    }
+    let active = 0;
+    for (const a of est.active) if (a) active++;
+    const k = active + 1;
+    if (rows - k - 1 <= 0) {
+      results.push(failed(s, `too short: ${rows} rows for ${k} parameters (AICc needs n − k − 1 > 0)`, from, to));
+      continue;
+    }
+    if (rss === 0) {
+      results.push(failed(s, 'exact fit (zero one-step errors): the target is a deterministic function of its regressors', from, to));
+      continue;
+    }
+    const c = criteria(rss, rows, k, { logJacobian: jacByTransform.get(s.transform) ?? 0 });
+    results.push({
+      key: s.key,
+      label: s.label,
+      family: s.family,
+      spec: s.spec,
+      structure: s,
+      status: 'fitted',
+      rank: null,
+      score: c[criterion],
+      delta: 0,
+      weight: 0,
+      aic: c.aic,
+      aicc: c.aicc,
+      bic: c.bic,
+      logLik: c.logLik,
+      rss,
+      k,
+      n: rows,
+      from,
+      to,
+      estimate: est,
+    });
+  }
+
+  const fitted = results.filter((r) => r.status === 'fitted');
+  const failures = results.filter((r) => r.status === 'failed');
+  if (fitted.length === 0) {
+    const reasons = [...new Set(failures.map((r) => r.reason))].slice(0, 3).join('; ');
+    throw new ModelError('no-fit', `none of the ${candidates.length} candidate structures could be fitted to "${series.name}"`, {
+      found: reasons,
+      expected: 'at least one candidate fitted',
+      hint: 'check the inputs for constant or duplicated columns, or widen the search bounds',
+    });
+  }
+  fitted.sort((a, b) => a.score - b.score || (a.key < b.key ? -1 : a.key > b.key ? 1 : 0));
+  const weights = akaikeWeights(fitted.map((r) => r.score));
+  const best = fitted[0].score;
+  fitted.forEach((r, i) => {
+    r.rank = i + 1;
+    r.delta = r.score - best;
+    r.weight = weights[i];
+  });
+
+  const top = fitted[0];
+  const structure = top.structure;
+  const estimate = top.estimate as Estimate;
+  const predictions = structure.oneStep(estimate.theta, series, from, to);
+  const z = zOf(structure.transform);
+  const residuals = new Float64Array(rows);
+  for (let t = from; t < to; t++) residuals[t - from] = z[t] - predictions[t - from];
+  const mask = dynamicMask(structure, registry);
+  let dynamic = 0;
+  mask.forEach((m, j) => {
+    if (m && estimate.active[j]) dynamic++;
+  });
+  const whiteness = ljungBox(residuals, { lags: options.whitenessLags ?? defaultLjungBoxLags(rows, bounds.season), fittedDynamic: dynamic });
+  const warnings: string[] = [...estimate.warnings];
+  if (!whiteness.white) {
+    warnings.push(
+      `the winner's residuals are not white (Ljung–Box Q = ${whiteness.q.toFixed(2)} on ${whiteness.dof} dof, p = ${whiteness.pValue.toPrecision(2)} < ${whiteness.level}): ` +
+        'structure is left in the errors; consider more lags, seasonal terms or another input',
+    );
+  }
+  if (failures.length > 0) warnings.push(`${failures.length} of ${candidates.length} candidates could not be fitted (see their reasons in the ranking)`);
+
+  return {
+    series: {
+      name: series.name,
+      frequency: series.frequency,
+      season: series.season,
+      length: n,
+      inputs: series.inputs.map((i) => i.name),
+      ...(series.source !== undefined ? { source: series.source } : {}),
+    },
+    criterion,
+    bounds,
+    families: names,
+    sample: {
+      from,
+      to,
+      n: rows,
+      start: formatTime(series.time[from], series.frequency),
+      end: formatTime(series.time[to - 1], series.frequency),
+    },
+    ranking: [...fitted, ...failures],
+    fitted: fitted.length,
+    failed: failures.length,
+    winner: {
+      structure,
+      estimate,
+      result: top,
+      equation: structure.describe(estimate.theta, estimate.se),
+      derived: structure.derived(estimate.theta, series),
+      predictions,
+      residuals,
+      whiteness,
+    },
+    warnings,
+  };
+}
