@@ -22,6 +22,7 @@ import type { Series } from '../data/series.js';
 import { UsageError } from '../data/errors.js';
 import type { Structure, StructureSpec, Transform } from './structure.js';
 import { arxFamily } from './arx.js';
+import { odeFamily } from './ode.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -61,6 +62,7 @@ export interface FamilyDefinition {
 /** Built-in families, in the order their candidates enter a search. Add one line per family. */
 export const FAMILIES: readonly FamilyDefinition[] = [
   arxFamily,
+  odeFamily,
 ];
 
 /** Names of the registered families, in registry order. */

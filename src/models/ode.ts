@@ -1,0 +1,571 @@
+/**
+ * The polynomial ODE family: dx/dτ = Σ_k θ_k·φ_k(τ, x, u), a first-order ODE whose right-hand
+ * side is linear in θ over a library of terms:
+ *   - powers of the state x^p for chosen p ∈ {0, 1, 2, 3} (p = 0 is the constant term `1`);
+ *   - inputs u_j entering linearly (term named after the input);
+ *   - seasonal harmonic pairs sin(2π·k·τ/s), cos(2π·k·τ/s) (terms.ts conventions).
+ *
+ * The state x is either the series level (x_t = y_t, term names `y`, `y^2`, ...) or its
+ * cumulative sum (x_t = X_0 + Σ_{s≤t} y_s, names `X`, `X^2`, ...), so per-period sales become the
+ * increments of cumulative adoption. Bass diffusion is the quadratic case of the cumulative state:
+ *   dX/dτ = p(m − X) + (q/m)·X(m − X) = p·m + (q − p)·X − (q/m)·X²   (Bass 1969, Management
+ *   Science 15(5):215–227, eq. for the hazard p + (q/m)·X).
+ * Logistic growth is the quadratic case of the level state without constant,
+ *   dy/dτ = r·y − (r/K)·y²   (Verhulst 1838; Pearl & Reed 1920, PNAS 6:275–288).
+ *
+ * Time. τ is measured in base periods of the series frequency (years for yearly data, months for
+ * monthly). Consecutive observations are `dt` base periods apart: by default dt is read from the
+ * time stamps (periodsBetween of consecutive stamps, which must all agree), so a yearly series
+ * sampled every ten years (decennial census) has dt = 10 and θ is per year; a regular series has
+ * dt = 1. A spec may fix dt explicitly. `periodsPerYear` (from the frequency) converts rates to
+ * per-year figures in `describe` and `derived`. The level y_t sits at τ_t = t·dt; the cumulative
+ * state X_t (after period t's increment) sits at the end of period t, τ_t = (t + 1)·dt, so the
+ * launch of a diffusion with X_0 = 0 is at τ = 0, the start of the first period.
+ *
+ * Estimation (integral form, trapezoid rule). Integrating the ODE over one sampling interval
+ * and approximating the integral by the trapezoid rule gives one regression row per t ≥ 1:
+ *   x_t − x_{t−1} = Σ_k θ_k · (dt/2)·(φ_k(τ_{t−1}, x_{t−1}, u_{t−1}) + φ_k(τ_t, x_t, u_t)),
+ * so `Regression.y` holds the increments and Φ the trapezoid-integrated library terms. The
+ * integral form avoids differentiating noisy data (Dattner & Klaassen 2015, Electronic Journal
+ * of Statistics 9:1939–1973, integral estimators for ODEs linear in parameters). It is solved by
+ * least squares, or by sequential thresholded least squares when `selection: 'sparse'`.
+ *
+ * Prediction. Inputs are linearly interpolated within a sampling interval (the same assumption
+ * the trapezoid rule makes). `oneStep` integrates the fitted ODE from the observed x_{t−1} over
+ * one interval by classical RK4 (rk4.ts) with `substeps` equal steps; for the cumulative state
+ * the prediction of y_t is X̂_t − X_{t−1}. `simulate` repeats this from the last observation,
+ * adding each step's shock to the one-step prediction on the scoring scale.
+ *
+ * Scoring scale: 'none' (z = y) or 'log' (z = ln y, for strictly positive series); the
+ * regression is always on the untransformed state, only predictions and shocks use z.
+ */
+import { z } from 'zod';
+import { periodsBetween, periodsPerYear } from '../data/calendar.js';
+import { ModelError, UsageError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import { lstsq } from '../linalg/lstsq.js';
+import { zeros } from '../linalg/matrix.js';
+import { odeDerived, odeSummary } from './ode-derived.js';
+import { equilibria } from './ode-roots.js';
+import type { CandidateBounds, FamilyDefinition } from './registry.js';
+import { rk4 } from './rk4.js';
+import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
+import { deterministicFiller, deterministicNames, maxHarmonics } from './terms.js';
+import { isStrictlyPositive } from './transforms.js';
+
+export type OdeState = 'level' | 'cumulative';
+export type OdeSelection = 'sparse' | 'dense';
+
+/** The saved form of a polynomial ODE structure (all fields explicit). */
+export interface OdeSpec extends StructureSpec {
+  family: 'ode';
+  state: OdeState;
+  /** Powers of the state in the library, ascending, distinct, each in 0…3 (0 = constant term). */
+  powers: number[];
+  /** Names of the inputs entering linearly, in series order. */
+  inputs: string[];
+  /** Number of seasonal harmonic pairs (0 = none). */
+  harmonics: number;
+  /** Season length in base periods (needed when harmonics > 0). */
+  season: number | null;
+  transform: Transform;
+  /** Sampling interval in base periods; null = read from the series' time stamps. */
+  dt: number | null;
+  /** Base periods per year, for per-year rates in descriptions; null = unknown (index series). */
+  periodsPerYear: number | null;
+  /** RK4 steps per sampling interval. */
+  substeps: number;
+  /** Dense least squares, or sequential thresholded least squares on the library. */
+  selection: OdeSelection;
+  /** Cumulative state before the first observation (X before period 0); 0 = the series starts at launch. */
+  initialCumulative: number;
+}
+
+/** Options of `odeStructure`: `powers` is required; defaults as in the comments. */
+export interface OdeOptions {
+  powers: number[];
+  /** Default 'level'. */
+  state?: OdeState;
+  /** Default none. */
+  inputs?: string[];
+  /** Default 0. */
+  harmonics?: number;
+  /** Default null. */
+  season?: number | null;
+  /** Default 'none'. */
+  transform?: Transform;
+  /** Default null (from the time stamps). */
+  dt?: number | null;
+  /** Default null (rates per period only). */
+  periodsPerYear?: number | null;
+  /** Default 8. */
+  substeps?: number;
+  /** Default 'sparse'. */
+  selection?: OdeSelection;
+  /** Default 0. */
+  initialCumulative?: number;
+}
+
+const DEFAULT_SUBSTEPS = 8;
+
+const specSchema = z.object({
+  family: z.literal('ode'),
+  state: z.enum(['level', 'cumulative']),
+  powers: z.array(z.number().int().min(0).max(3)).min(1),
+  inputs: z.array(z.string().min(1)),
+  harmonics: z.number().int().min(0),
+  season: z.number().int().min(2).nullable(),
+  transform: z.enum(['none', 'log']),
+  dt: z.number().positive().nullable(),
+  periodsPerYear: z.number().positive().nullable(),
+  substeps: z.number().int().min(1).max(1000),
+  selection: z.enum(['sparse', 'dense']),
+  initialCumulative: z.number().finite(),
+});
+
+/** Completes and checks options into a spec; UsageError naming the bad field otherwise. */
+export function odeSpec(options: OdeOptions): OdeSpec {
+  const spec = {
+    family: 'ode' as const,
+    state: options.state ?? 'level',
+    powers: [...new Set(options.powers)].sort((a, b) => a - b),
+    inputs: [...(options.inputs ?? [])],
+    harmonics: options.harmonics ?? 0,
+    season: options.season ?? null,
+    transform: options.transform ?? 'none',
+    dt: options.dt ?? null,
+    periodsPerYear: options.periodsPerYear ?? null,
+    substeps: options.substeps ?? DEFAULT_SUBSTEPS,
+    selection: options.selection ?? 'sparse',
+    initialCumulative: options.initialCumulative ?? 0,
+  };
+  return checkSpec(spec);
+}
+
+function checkSpec(raw: unknown): OdeSpec {
+  const parsed = specSchema.safeParse(raw);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw new UsageError('bad-ode-spec', `invalid ODE structure spec: ${issue.path.join('.') || 'spec'}: ${issue.message}`, {
+      found: JSON.stringify(raw),
+      expected: 'state level|cumulative, powers in 0…3, harmonics ≥ 0 with a season, dt > 0 or null',
+    });
+  }
+  const spec = parsed.data as OdeSpec;
+  if (new Set(spec.powers).size !== spec.powers.length || spec.powers.some((p, i) => i > 0 && p <= spec.powers[i - 1])) {
+    throw new UsageError('bad-ode-spec', 'ODE powers must be ascending and distinct', { found: JSON.stringify(spec.powers) });
+  }
+  if (spec.harmonics > 0 && (spec.season === null || spec.harmonics > maxHarmonics(spec.season))) {
+    throw new UsageError('bad-ode-spec', 'seasonal harmonics need a season length s with harmonics ≤ s/2', {
+      found: `harmonics ${spec.harmonics}, season ${spec.season}`,
+    });
+  }
+  return spec;
+}
+
+/** Rebuilds an ODE structure from its saved spec (checked). */
+export function odeFromSpec(spec: StructureSpec): Structure {
+  return new OdeStructure(checkSpec(spec));
+}
+
+/** An ODE structure from options (see OdeSpec for fields and defaults). */
+export function odeStructure(options: OdeOptions): Structure {
+  return new OdeStructure(odeSpec(options));
+}
+
+/** Name of the state symbol in terms and equations. */
+export function stateSymbol(state: OdeState): string {
+  return state === 'level' ? 'y' : 'X';
+}
+
+function powerName(symbol: string, p: number): string {
+  return p === 0 ? '1' : p === 1 ? symbol : `${symbol}^${p}`;
+}
+
+function shapeTag(powers: number[]): string {
+  const top = powers[powers.length - 1];
+  const from1 = Array.from({ length: top }, (_, i) => i + 1);
+  const from0 = [0, ...from1];
+  if (powers.join() === from1.join()) return `deg${top}`;
+  if (powers.join() === from0.join()) return `deg${top}+c`;
+  return `pow${powers.join('')}`;
+}
+
+function shapeLabel(state: OdeState, powers: number[]): string {
+  const where = state === 'level' ? 'ODE in level' : 'ODE in cumulative sum';
+  const tag = shapeTag(powers);
+  const names: Record<string, string> = state === 'level'
+    ? {
+        deg1: 'exponential growth (dy/dt = r·y)',
+        'deg1+c': 'linear relaxation (dy/dt = a + b·y)',
+        deg2: 'quadratic (logistic-type)',
+        'deg2+c': 'quadratic with constant',
+        deg3: 'cubic',
+        'deg3+c': 'cubic with constant',
+      }
+    : {
+        deg1: 'linear through the origin',
+        'deg1+c': 'linear (external-influence diffusion)',
+        deg2: 'quadratic through the origin',
+        'deg2+c': 'quadratic (Bass-type diffusion)',
+        deg3: 'cubic',
+        'deg3+c': 'cubic with constant',
+      };
+  return `${where}, ${names[tag] ?? `powers ${powers.join(', ')}`}`;
+}
+
+/** The sampling interval of a series in base periods, from its time stamps (all steps equal). */
+export function samplingInterval(series: Series): number {
+  const n = series.time.length;
+  if (n < 2) {
+    throw new ModelError('series-too-short', 'an ODE needs at least two observations to know its sampling interval', {
+      found: `${n} observation(s)`,
+      expected: 'at least 2',
+    });
+  }
+  const first = periodsBetween(series.time[0], series.time[1], series.frequency);
+  for (let i = 2; i < n; i++) {
+    const d = periodsBetween(series.time[i - 1], series.time[i], series.frequency);
+    if (d !== first) {
+      throw new ModelError('irregular-sampling', `an ODE needs equally spaced observations; series "${series.name}" steps by ${first} then ${d} periods`, {
+        found: `step ${d} at observation ${i}`,
+        expected: `${first} periods between every pair of observations`,
+      });
+    }
+  }
+  if (!(first > 0)) throw new ModelError('irregular-sampling', 'time stamps must increase', { found: String(first) });
+  return first;
+}
+
+class OdeStructure implements Structure {
+  readonly family = 'ode';
+  readonly key: string;
+  readonly label: string;
+  readonly spec: OdeSpec;
+  readonly terms: string[];
+  readonly history = 1;
+  readonly transform: Transform;
+  private readonly harmonicNames: string[];
+
+  constructor(spec: OdeSpec) {
+    this.spec = spec;
+    this.transform = spec.transform;
+    const symbol = stateSymbol(spec.state);
+    this.harmonicNames = deterministicNames({ intercept: false, trend: false, harmonics: spec.harmonics, season: spec.season });
+    this.terms = [...spec.powers.map((p) => powerName(symbol, p)), ...spec.inputs, ...this.harmonicNames];
+    const parts = [`ode:${spec.state}:${shapeTag(spec.powers)}`];
+    if (spec.inputs.length > 0) parts.push(`in(${spec.inputs.join(',')})`);
+    if (spec.harmonics > 0) parts.push(`h${spec.harmonics}`);
+    if (spec.transform === 'log') parts.push('log');
+    this.key = parts.join(':');
+    const extra: string[] = [];
+    if (spec.inputs.length > 0) extra.push(`input${spec.inputs.length > 1 ? 's' : ''} ${spec.inputs.join(', ')}`);
+    if (spec.harmonics > 0) extra.push(`${spec.harmonics} seasonal harmonic${spec.harmonics > 1 ? 's' : ''}`);
+    if (spec.transform === 'log') extra.push('scored on log scale');
+    this.label = [shapeLabel(spec.state, spec.powers), ...extra].join(', ');
+  }
+
+  /** Sampling interval used on this series. */
+  dt(series: Series): number {
+    return this.spec.dt ?? samplingInterval(series);
+  }
+
+  /** The state x_t at every observation (level or cumulative sum), checked. */
+  state(series: Series): Float64Array {
+    const y = series.values;
+    for (let i = 0; i < y.length; i++) {
+      if (!Number.isFinite(y[i])) {
+        throw new ModelError('non-finite-value', `series "${series.name}" has a missing or non-finite value at observation ${i}`, { found: String(y[i]) });
+      }
+    }
+    if (this.spec.state === 'level') return Float64Array.from(y);
+    const x = new Float64Array(y.length);
+    let acc = this.spec.initialCumulative;
+    for (let i = 0; i < y.length; i++) {
+      if (y[i] < 0) {
+        throw new ModelError('negative-for-cumulative', `a cumulative-state ODE needs non-negative per-period values; series "${series.name}" has ${y[i]} at observation ${i}`, {
+          found: String(y[i]),
+          expected: 'values ≥ 0 (counts, sales, installations)',
+          hint: 'use a level-state ODE for series that can be negative',
+        });
+      }
+      acc += y[i];
+      x[i] = acc;
+    }
+    return x;
+  }
+
+  /** τ of observation t in base periods (see module comment). */
+  tau(t: number, dt: number): number {
+    return (t + (this.spec.state === 'cumulative' ? 1 : 0)) * dt;
+  }
+
+  private inputColumns(series: Series): Float64Array[] {
+    return this.spec.inputs.map((name) => {
+      const input = series.inputs.find((u) => u.name === name);
+      if (!input) {
+        throw new UsageError('unknown-input', `the ODE uses input "${name}", which series "${series.name}" does not have`, {
+          found: name,
+          expected: series.inputs.length > 0 ? `one of ${series.inputs.map((u) => u.name).join(', ')}` : 'a series with inputs',
+        });
+      }
+      return input.values;
+    });
+  }
+
+  /** Writes w·φ(τ, x, u) into out[offset…] (adds when `add`). */
+  private library(): (tau: number, x: number, u: ArrayLike<number>, w: number, out: Float64Array, offset: number, add: boolean) => void {
+    const powers = this.spec.powers;
+    const nh = this.harmonicNames.length;
+    const harm = deterministicFiller({ intercept: false, trend: false, harmonics: this.spec.harmonics, season: this.spec.season });
+    const buf = new Float64Array(nh);
+    return (tau, x, u, w, out, offset, add) => {
+      let j = offset;
+      for (const p of powers) {
+        const v = w * (p === 0 ? 1 : p === 1 ? x : p === 2 ? x * x : x * x * x);
+        out[j] = add ? out[j] + v : v;
+        j++;
+      }
+      for (let k = 0; k < u.length; k++) {
+        out[j] = add ? out[j] + w * u[k] : w * u[k];
+        j++;
+      }
+      if (nh > 0) {
+        harm(tau, buf, 0);
+        for (let k = 0; k < nh; k++) {
+          out[j] = add ? out[j] + w * buf[k] : w * buf[k];
+          j++;
+        }
+      }
+    };
+  }
+
+  /**
+   * The right-hand side f(τ, x) over one sampling interval [τa, τa + dt], inputs linearly
+   * interpolated from ua (at τa) to ub (at τa + dt).
+   */
+  private rhs(theta: Float64Array, tauA: number, dt: number, ua: ArrayLike<number>, ub: ArrayLike<number>): (tau: number, x: number) => number {
+    const powers = this.spec.powers;
+    const np = powers.length;
+    const ni = ua.length;
+    const nh = this.harmonicNames.length;
+    const harm = deterministicFiller({ intercept: false, trend: false, harmonics: this.spec.harmonics, season: this.spec.season });
+    const buf = new Float64Array(nh);
+    const poly = [0, 0, 0, 0];
+    for (let k = 0; k < np; k++) poly[powers[k]] = theta[k];
+    return (tau, x) => {
+      let f = poly[0] + x * (poly[1] + x * (poly[2] + x * poly[3]));
+      if (ni > 0) {
+        const s = (tau - tauA) / dt;
+        for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
+      }
+      if (nh > 0) {
+        harm(tau, buf, 0);
+        for (let k = 0; k < nh; k++) f += theta[np + ni + k] * buf[k];
+      }
+      return f;
+    };
+  }
+
+  regression(series: Series, from: number, to: number): Regression {
+    const x = this.state(series);
+    const dt = this.dt(series);
+    const cols = this.inputColumns(series);
+    const lo = Math.max(from, this.history);
+    const hi = Math.min(to, x.length);
+    const rows = Math.max(0, hi - lo);
+    const p = this.terms.length;
+    const phi = zeros(rows, p);
+    const y = new Float64Array(rows);
+    const index = new Int32Array(rows);
+    const fill = this.library();
+    const ua = new Float64Array(cols.length);
+    const ub = new Float64Array(cols.length);
+    for (let r = 0; r < rows; r++) {
+      const t = lo + r;
+      for (let k = 0; k < cols.length; k++) {
+        ua[k] = cols[k][t - 1];
+        ub[k] = cols[k][t];
+      }
+      index[r] = t;
+      y[r] = x[t] - x[t - 1];
+      fill(this.tau(t - 1, dt), x[t - 1], ua, dt / 2, phi.data, r * p, false);
+      fill(this.tau(t, dt), x[t], ub, dt / 2, phi.data, r * p, true);
+    }
+    return { index, y, phi };
+  }
+
+  estimate(series: Series, from: number, to: number): Estimate {
+    const reg = this.regression(series, from, to);
+    const p = this.terms.length;
+    if (reg.y.length < p + 1) {
+      throw new ModelError('series-too-short', `${this.label} needs at least ${p + 1} increments to estimate ${p} coefficient(s); series "${series.name}" gives ${reg.y.length}`, {
+        found: `${reg.y.length} increments`,
+        expected: `at least ${p + 1}`,
+        hint: 'use a longer series or a structure with fewer terms',
+      });
+    }
+    return fitOde(this.spec.selection, reg, this.terms);
+  }
+
+  oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
+    if (from < this.history) throw new RangeError(`oneStep needs from ≥ ${this.history}, got ${from}`);
+    const x = this.state(series);
+    const dt = this.dt(series);
+    const cols = this.inputColumns(series);
+    const hi = Math.min(to, x.length);
+    const out = new Float64Array(Math.max(0, hi - from));
+    const ua = new Float64Array(cols.length);
+    const ub = new Float64Array(cols.length);
+    for (let t = from; t < hi; t++) {
+      for (let k = 0; k < cols.length; k++) {
+        ua[k] = cols[k][t - 1];
+        ub[k] = cols[k][t];
+      }
+      const tauA = this.tau(t - 1, dt);
+      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, x[t - 1], dt, this.spec.substeps);
+      const yhat = this.spec.state === 'level' ? next : next - x[t - 1];
+      out[t - from] = this.spec.transform === 'log' ? Math.log(yhat) : yhat;
+    }
+    return out;
+  }
+
+  simulate(theta: Float64Array, series: Series, future: Float64Array[], h: number, shocks?: Float64Array): Float64Array {
+    const x = this.state(series);
+    const n = x.length;
+    if (n < 1) throw new ModelError('series-too-short', 'cannot simulate from an empty series', { found: '0 observations' });
+    const dt = this.dt(series);
+    const cols = this.inputColumns(series);
+    const idx = this.spec.inputs.map((name) => series.inputs.findIndex((u) => u.name === name));
+    for (const i of idx) {
+      if (!future[i] || future[i].length < h) {
+        throw new UsageError('missing-future-inputs', `simulating ${h} steps needs ${h} future values of input "${series.inputs[i].name}"`, {
+          found: future[i] ? `${future[i].length} values` : 'none',
+          expected: `${h} values`,
+        });
+      }
+    }
+    if (shocks && shocks.length < h) throw new RangeError(`shocks has ${shocks.length} values, expected ${h}`);
+    const out = new Float64Array(h);
+    const ua = new Float64Array(cols.length);
+    const ub = new Float64Array(cols.length);
+    for (let k = 0; k < cols.length; k++) ua[k] = cols[k][n - 1];
+    let state = x[n - 1];
+    for (let j = 0; j < h; j++) {
+      for (let k = 0; k < cols.length; k++) ub[k] = future[idx[k]][j];
+      const tauA = this.tau(n - 1 + j, dt);
+      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, state, dt, this.spec.substeps);
+      let yhat = this.spec.state === 'level' ? next : next - state;
+      if (shocks) yhat = this.spec.transform === 'log' ? Math.exp(Math.log(yhat) + shocks[j]) : yhat + shocks[j];
+      out[j] = yhat;
+      state = this.spec.state === 'level' ? yhat : state + yhat;
+      ua.set(ub);
+    }
+    return out;
+  }
+
+  describe(theta: Float64Array, se?: Float64Array): string {
+    return odeSummary(this.spec, this.terms, theta, se);
+  }
+
+  derived(theta: Float64Array, series: Series): Derived[] {
+    const x = this.state(series);
+    return odeDerived(this.spec, this.terms, theta, { series, state: x, dt: this.dt(series) });
+  }
+}
+
+/** θ estimate of the trapezoid regression: dense least squares or sparse selection. */
+function fitOde(selection: OdeSelection, reg: Regression, names: string[]): Estimate {
+  const fit = lstsq(reg.phi, reg.y, names);
+  void selection;
+  return {
+    theta: fit.theta,
+    se: fit.se,
+    cov: fit.cov,
+    active: [...fit.active],
+    sigma2: fit.sigma2,
+    rank: fit.rank,
+    condition: fit.condition,
+    warnings: [...fit.warnings],
+  };
+}
+
+/** Which θ entries are state feedback (powers ≥ 1 of the state), for the residual checks. */
+export function odeDynamicMask(structure: Structure): boolean[] {
+  const spec = structure.spec as OdeSpec;
+  return structure.terms.map((_, k) => k < spec.powers.length && spec.powers[k] >= 1);
+}
+
+/**
+ * The family's explosiveness check: false when the state polynomial (inputs and seasonal terms
+ * at zero) has degree ≥ 2 and no stable equilibrium, so every trajectory not resting at an
+ * equilibrium reaches ±∞ in finite time (for degree d ≥ 2, ∫dx/f(x) converges at infinity).
+ * Linear ODEs are never rejected: exponential growth or decay is what they are for.
+ */
+export function odeStable(structure: Structure, theta: Float64Array): boolean {
+  const spec = structure.spec as OdeSpec;
+  const poly = [0, 0, 0, 0];
+  spec.powers.forEach((p, k) => (poly[p] = theta[k]));
+  const degree = poly[3] !== 0 ? 3 : poly[2] !== 0 ? 2 : 1;
+  if (degree < 2) return true;
+  return equilibria(poly).some((e) => e.stable);
+}
+
+/** The level-state shapes offered by the search, in order. */
+const LEVEL_SHAPES: number[][] = [[1], [0, 1], [1, 2], [0, 1, 2], [1, 2, 3], [0, 1, 2, 3]];
+/** The cumulative-state shapes offered (for non-negative series only). */
+const CUMULATIVE_SHAPES: number[][] = [[0, 1, 2]];
+
+/**
+ * The ODE candidate grid for a series within the search bounds, in a fixed order: for each
+ * scoring transform, level shapes (exponential, linear relaxation, logistic-type with and
+ * without constant, cubic with and without constant), then Bass-type diffusion in the
+ * cumulative state when every value is ≥ 0; each without inputs, then with all allowed inputs
+ * (not for exponential growth); each with every allowed number of harmonic pairs. A candidate
+ * is left out when the series gives fewer than (terms + 2) increments, when the log transform
+ * meets a non-positive value, or when the time stamps are not equally spaced.
+ */
+export function odeCandidates(series: Series, bounds: CandidateBounds): Structure[] {
+  const n = series.values.length;
+  let dt: number;
+  try {
+    dt = samplingInterval(series);
+  } catch (e) {
+    if (e instanceof ModelError) return [];
+    throw e;
+  }
+  for (let i = 0; i < n; i++) if (!Number.isFinite(series.values[i])) return [];
+  const nonNegative = series.values.every((v) => v >= 0) && series.values.some((v) => v > 0);
+  const positive = isStrictlyPositive(series.values);
+  const inputSets: string[][] = [[]];
+  if (bounds.inputs.length > 0 && bounds.maxInputLags > 0) inputSets.push([...bounds.inputs]);
+  const harmonics = bounds.season !== null && bounds.harmonics.length > 0 ? bounds.harmonics : [0];
+  const ppy = periodsPerYear(series.frequency);
+  const out: Structure[] = [];
+  for (const transform of bounds.transforms) {
+    if (transform === 'log' && !positive) continue;
+    const shapes: [OdeState, number[]][] = LEVEL_SHAPES.map((s) => ['level', s] as [OdeState, number[]]);
+    if (nonNegative) for (const s of CUMULATIVE_SHAPES) shapes.push(['cumulative', s]);
+    for (const [state, powers] of shapes) {
+      for (const inputs of inputSets) {
+        if (inputs.length > 0 && powers.length === 1) continue;
+        for (const k of harmonics) {
+          if (k > 0 && powers.length === 1) continue;
+          const s = odeStructure({ state, powers, inputs, harmonics: k, season: k > 0 ? bounds.season : null, transform, dt, periodsPerYear: ppy });
+          if (n - 1 < s.terms.length + 2) continue;
+          out.push(s);
+        }
+      }
+    }
+  }
+  return out;
+}
+
+/** The ODE family as the registry sees it. */
+export const odeFamily: FamilyDefinition = {
+  name: 'ode',
+  candidates: odeCandidates,
+  fromSpec: odeFromSpec,
+  dynamicMask: odeDynamicMask,
+  stable: odeStable,
+};
