@@ -123,3 +123,40 @@ export function formatTime(t: number, f: Frequency): string {
       return y;
   }
 }
+
+/**
+ * The start of the period of frequency f that contains t: the hour, the UTC midnight, the
+ * Monday of the ISO week, the first of the month, quarter (Jan, Apr, Jul, Oct) or year.
+ * Index stamps are returned unchanged.
+ */
+export function periodStart(t: number, f: Frequency): number {
+  switch (f) {
+    case 'index':
+      return t;
+    case 'hourly':
+      return Math.floor(t / HOUR) * HOUR;
+    case 'daily':
+      return Math.floor(t / DAY) * DAY;
+    case 'weekly': {
+      const day = Math.floor(t / DAY) * DAY;
+      const isoWeekday = new Date(day).getUTCDay() || 7; // Monday = 1 … Sunday = 7
+      return day - (isoWeekday - 1) * DAY;
+    }
+    case 'monthly':
+    case 'quarterly':
+    case 'yearly': {
+      const d = new Date(t);
+      const m = d.getUTCMonth();
+      const month = f === 'monthly' ? m : f === 'quarterly' ? m - (m % 3) : 0;
+      const start = new Date(0);
+      start.setUTCFullYear(d.getUTCFullYear(), month, 1);
+      return start.getTime();
+    }
+  }
+}
+
+/** The name of one period, for messages: "month", "day", "step" for index. */
+export function periodName(f: Frequency, count = 1): string {
+  const one = { hourly: 'hour', daily: 'day', weekly: 'week', monthly: 'month', quarterly: 'quarter', yearly: 'year', index: 'step' }[f];
+  return count === 1 ? one : `${one}s`;
+}

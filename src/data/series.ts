@@ -25,3 +25,13 @@ export interface SeriesInput {
   name: string;
   values: Float64Array;
 }
+
+/** Observations [from, to) of a series as a new Series sharing the same buffers (no copy). */
+export function sliceSeries(series: Series, from: number, to: number): Series {
+  return {
+    ...series,
+    time: series.time.subarray(from, to),
+    values: series.values.subarray(from, to),
+    inputs: series.inputs.map((i) => ({ name: i.name, values: i.values.subarray(from, to) })),
+  };
+}

@@ -1,0 +1,207 @@
+/**
+ * Which column is what. Two layouts:
+ *   wide — a time column and one column per series (`date,north,south`);
+ *   long — an id column, a time column and a value column (`region,date,sales`).
+ * Options name columns explicitly (`--time`, `--id`, `--value`, `--inputs`); otherwise:
+ *   time  — the first column named like a time (date, time, period, month, year, …) whose cells
+ *           read as times, else the first column whose first cells read as calendar times;
+ *   id    — the first other column whose cells are mostly text and repeat (long layout);
+ *   value — in long layout the one numeric column left (or one named "value").
+ * In wide layout every column other than time and inputs is a series (`--value` keeps one).
+ */
+import { DataError, UsageError } from './errors.js';
+import { numericDayMonthFields, parseTimeText } from './dates.js';
+import { cellNumber, isMissingText } from './numbers.js';
+import { ExcelSerial, type Cell, type Table } from './table.js';
+
+export interface Layout {
+  kind: 'wide' | 'long';
+  time: string;
+  /** The id column (long layout). */
+  id: string | null;
+  /** Series columns (wide) or the one value column (long). */
+  values: string[];
+  /** Exogenous input columns, in the order given. */
+  inputs: string[];
+  /** Columns present but not used. */
+  ignored: string[];
+}
+
+export interface LayoutOptions {
+  time?: string;
+  value?: string;
+  inputs?: string[];
+  id?: string;
+}
+
+const TIME_NAMES = /^(date|time|timestamp|datetime|date_?time|period|day|week|month|quarter|year|ds|when)$/i;
+const TIME_WORDS = /(date|time|period|month|year)/i;
+const SAMPLE = 200;
+
+export function detectLayout(table: Table, options: LayoutOptions = {}): Layout {
+  const named = (name: string, option: string): number => {
+    const c = table.header.indexOf(name);
+    if (c < 0) {
+      const close = table.header.find((h) => h.toLowerCase() === name.toLowerCase());
+      throw new UsageError('column-unknown', `no column named "${name}" (${option})`, {
+        file: table.source,
+        found: name,
+        expected: `one of ${table.header.map((h) => `"${h}"`).join(', ')}`,
+        ...(close ? { hint: `column names are case-sensitive: did you mean "${close}"?` } : {}),
+      });
+    }
+    return c;
+  };
+  const inputs = (options.inputs ?? []).map((n) => named(n, '--inputs'));
+  const time = options.time !== undefined ? named(options.time, '--time') : findTimeColumn(table);
+  if (inputs.includes(time)) throw sameColumn(table, table.header[time], '--time', '--inputs');
+  const taken = new Set<number>([time, ...inputs]);
+
+  let id: number | null = null;
+  if (options.id !== undefined) {
+    id = named(options.id, '--id');
+    if (taken.has(id)) throw sameColumn(table, table.header[id], '--id', id === time ? '--time' : '--inputs');
+  } else {
+    for (let c = 0; c < table.header.length; c++) {
+      if (!taken.has(c) && (options.value === undefined || table.header[c] !== options.value) && looksLikeId(table.columns[c])) {
+        id = c;
+        break;
+      }
+    }
+  }
+  if (id !== null) taken.add(id);
+
+  if (id === null) {
+    let values: number[];
+    if (options.value !== undefined) {
+      const v = named(options.value, '--value');
+      if (taken.has(v)) throw sameColumn(table, table.header[v], '--value', v === time ? '--time' : '--inputs');
+      values = [v];
+    } else values = table.header.map((_, c) => c).filter((c) => !taken.has(c));
+    if (values.length === 0) {
+      throw new DataError('layout-no-values', 'the file has no value column', {
+        file: table.source,
+        found: `columns ${table.header.map((h) => `"${h}"`).join(', ')}`,
+        expected: 'a time column and at least one column of numbers',
+      });
+    }
+    const used = new Set([...taken, ...values]);
+    return {
+      kind: 'wide',
+      time: table.header[time],
+      id: null,
+      values: values.map((c) => table.header[c]),
+      inputs: inputs.map((c) => table.header[c]),
+      ignored: table.header.filter((_, c) => !used.has(c)),
+    };
+  }
+
+  let value: number;
+  if (options.value !== undefined) {
+    value = named(options.value, '--value');
+    if (taken.has(value)) throw sameColumn(table, table.header[value], '--value', value === time ? '--time' : value === id ? '--id' : '--inputs');
+  } else {
+    const numeric = table.header.map((_, c) => c).filter((c) => !taken.has(c) && !looksLikeText(table.columns[c]));
+    const byName = numeric.filter((c) => /^value$/i.test(table.header[c]));
+    if (numeric.length === 1) value = numeric[0];
+    else if (byName.length === 1) value = byName[0];
+    else {
+      throw new UsageError('layout-value-ambiguous', numeric.length === 0 ? 'the file has no numeric value column' : 'the file has several numeric columns; which holds the values?', {
+        file: table.source,
+        found: numeric.length === 0 ? `columns ${table.header.map((h) => `"${h}"`).join(', ')}` : numeric.map((c) => `"${table.header[c]}"`).join(', '),
+        expected: `one value column beside the id "${table.header[id]}" and time "${table.header[time]}"`,
+        hint: numeric.length === 0 ? 'name it with --value' : `name it with --value (e.g. --value ${quoteArg(table.header[numeric[0]])}), and any others with --inputs`,
+      });
+    }
+  }
+  const used = new Set([...taken, value]);
+  return {
+    kind: 'long',
+    time: table.header[time],
+    id: table.header[id],
+    values: [table.header[value]],
+    inputs: inputs.map((c) => table.header[c]),
+    ignored: table.header.filter((_, c) => !used.has(c)),
+  };
+}
+
+function quoteArg(s: string): string {
+  return /^[\w.-]+$/.test(s) ? s : JSON.stringify(s);
+}
+
+function sameColumn(table: Table, name: string, a: string, b: string): UsageError {
+  return new UsageError('column-twice', `column "${name}" is named by both ${a} and ${b}`, {
+    file: table.source,
+    column: name,
+    expected: 'each column in one role',
+  });
+}
+
+function findTimeColumn(table: Table): number {
+  for (const pattern of [TIME_NAMES, TIME_WORDS]) {
+    for (let c = 0; c < table.header.length; c++) if (pattern.test(table.header[c]) && readsAsTime(table.columns[c], true)) return c;
+  }
+  for (let c = 0; c < table.header.length; c++) if (readsAsTime(table.columns[c], c === 0)) return c;
+  throw new UsageError('layout-no-time', 'no time column found', {
+    file: table.source,
+    found: `columns ${table.header.map((h) => `"${h}"`).join(', ')}`,
+    expected: 'a column of dates or periods (e.g. 2021-03-05, 2021-03, 2021-Q1, 2021)',
+    hint: 'name it with --time',
+  });
+}
+
+/** The first present cells all read as times; integers count only when `integersToo`. */
+function readsAsTime(cells: readonly Cell[], integersToo: boolean): boolean {
+  let seen = 0;
+  for (let r = 0; r < cells.length && seen < 20; r++) {
+    const c = cells[r];
+    if (c === null) continue;
+    if (c instanceof ExcelSerial) {
+      seen++;
+      continue;
+    }
+    if (typeof c === 'number') {
+      if (!integersToo || !Number.isInteger(c)) return false;
+      seen++;
+      continue;
+    }
+    if (typeof c !== 'string') return false;
+    const s = c.trim();
+    if (isMissingText(s)) continue;
+    if (numericDayMonthFields(s)) {
+      seen++;
+      continue;
+    }
+    const p = parseTimeText(s, null);
+    if (!p || (!integersToo && (p.kind === 'index' || p.kind === 'year'))) return false;
+    seen++;
+  }
+  return seen > 0;
+}
+
+/** Mostly non-numeric cells (more than half of the first present ones). */
+function looksLikeText(cells: readonly Cell[]): boolean {
+  let text = 0;
+  let seen = 0;
+  for (let r = 0; r < cells.length && seen < SAMPLE; r++) {
+    const c = cells[r];
+    if (c === null || (typeof c === 'string' && isMissingText(c))) continue;
+    seen++;
+    if (cellNumber(c) === undefined) text++;
+  }
+  return seen > 0 && text * 2 > seen;
+}
+
+/** Text cells that repeat (fewer distinct values than rows, or a single value): an id column. */
+function looksLikeId(cells: readonly Cell[]): boolean {
+  if (!looksLikeText(cells)) return false;
+  const distinct = new Set<string>();
+  let present = 0;
+  for (const c of cells) {
+    if (c === null) continue;
+    present++;
+    distinct.add(String(c));
+    if (distinct.size > 10_000) return distinct.size < present;
+  }
+  return distinct.size < present || distinct.size === 1;
+}

@@ -1,0 +1,281 @@
+/**
+ * The loader's public entry points:
+ *
+ *   loadTable(source, options)  → Table                       (cells as read)
+ *   loadSeries(source, options) → { series: Series[], report } (regular, no NaN)
+ *
+ * `source` is a path, or `{ name, bytes }` for bytes already read (standard input is
+ * `{ name: '-', bytes }`). Every user-caused problem is thrown as a CertaError naming the file,
+ * row and column; nothing is printed.
+ */
+import { periodStart, type Frequency } from './calendar.js';
+import { parseDelimited, sniffDelimiter } from './csv.js';
+import { kindFrequency, type DateFormat } from './dates.js';
+import { DataError, UsageError } from './errors.js';
+import { inferFrequency, type FrequencyEvidence, type StampRun } from './frequency.js';
+import { parseJsonRecords } from './json.js';
+import { detectLayout, type Layout } from './layout.js';
+import { cellNumber, isMissingText, numberExpectation } from './numbers.js';
+import { regularise, sortAndResolveDuplicates, type DuplicatePolicyName, type RawSeries, type SeriesReport } from './regularise.js';
+import type { AggregatorName } from './aggregators.js';
+import type { GapPolicyName } from './gaps.js';
+import type { Series } from './series.js';
+import { decodeText, readSource, sniffFormat, type TableSource } from './source.js';
+import { parseTimeColumn } from './time-column.js';
+import type { Cell, Table, TableFormat } from './table.js';
+import { parseXlsx } from './xlsx.js';
+
+export interface TableOptions {
+  /** Override the sniffed format. */
+  format?: TableFormat;
+  /** Override the sniffed delimiter (CSV/TSV). */
+  delimiter?: string;
+  /** Sheet to read from a workbook (default: the first). */
+  sheet?: string;
+}
+
+export interface LoadOptions extends TableOptions {
+  time?: string;
+  value?: string;
+  inputs?: string[];
+  id?: string;
+  /** Keep only this series (a column name in wide layout, an id in long layout). */
+  series?: string;
+  dateFormat?: DateFormat;
+  /** Aggregate to this (coarser) frequency. */
+  freq?: Frequency;
+  /** How `freq` combines periods (default sum). */
+  aggregate?: AggregatorName;
+  /** Rows sharing a time stamp (default error). */
+  duplicates?: DuplicatePolicyName;
+  /** Interior gaps (default interpolate, at most 3 periods). */
+  gaps?: GapPolicyName;
+}
+
+export interface LoadReport {
+  source: string;
+  format: TableFormat;
+  delimiter: string | null;
+  sheet: string | null;
+  /** Data rows read. */
+  rows: number;
+  columns: string[];
+  layout: Layout;
+  /** How the time cells were read, e.g. "dates" or "months (YYYY-MM)". */
+  timeForm: string;
+  /** The data's own frequency and the evidence for it. */
+  frequency: FrequencyEvidence;
+  /** Set when `--freq` folded the data into a coarser frequency. */
+  aggregated: { from: Frequency; to: Frequency; by: AggregatorName } | null;
+  series: SeriesReport[];
+  notes: string[];
+}
+
+export async function loadTable(source: string | TableSource, options: TableOptions = {}): Promise<Table> {
+  const src = typeof source === 'string' ? await readSource(source) : source;
+  const format = options.format ?? sniffFormat(src);
+  if (format === 'xlsx') return parseXlsx(src.bytes, src.name, options.sheet);
+  if (options.sheet !== undefined) {
+    throw new UsageError('sheet-not-workbook', '--sheet applies only to .xlsx workbooks', { file: src.name, found: `a ${format.toUpperCase()} file` });
+  }
+  const text = decodeText(src);
+  if (format === 'json') return parseJsonRecords(text, src.name);
+  const delimiter = options.delimiter ?? (format === 'tsv' ? '\t' : sniffDelimiter(text));
+  return parseDelimited(text, delimiter, src.name, delimiter === '\t' ? 'tsv' : 'csv');
+}
+
+export async function loadSeries(source: string | TableSource, options: LoadOptions = {}): Promise<{ series: Series[]; report: LoadReport }> {
+  const table = await loadTable(source, options);
+  return seriesFromTable(table, options);
+}
+
+/** The second half of loadSeries, for a table already in memory. */
+export function seriesFromTable(table: Table, options: LoadOptions = {}): { series: Series[]; report: LoadReport } {
+  const file = table.source;
+  const layout = detectLayout(table, options);
+  const col = (name: string): Cell[] => table.columns[table.header.indexOf(name)];
+  const notes: string[] = [];
+
+  const timeCol = parseTimeColumn(col(layout.time), table.rows, { file, column: layout.time }, options.dateFormat ?? 'auto');
+  const { times } = timeCol;
+
+  // Rows with no time: skipped when the whole row is empty, refused otherwise.
+  const keep: number[] = [];
+  let skipped = 0;
+  for (let r = 0; r < times.length; r++) {
+    if (times[r] === times[r]) {
+      keep.push(r);
+      continue;
+    }
+    if (table.columns.every((c) => c[r] === null || (typeof c[r] === 'string' && isMissingText(c[r] as string)))) {
+      skipped++;
+      continue;
+    }
+    throw new DataError('time-missing', 'the row has values but no time', {
+      file,
+      row: table.rows[r],
+      column: layout.time,
+      found: String(col(layout.time)[r] ?? ''),
+      expected: 'a time in every row that has values',
+    });
+  }
+  if (skipped > 0) notes.push(`${skipped} empty row${skipped === 1 ? '' : 's'} skipped`);
+  const all = keep.length === times.length;
+
+  const numbers = (name: string, idx: ArrayLike<number>): Float64Array => {
+    const cells = col(name);
+    const out = new Float64Array(idx.length);
+    for (let i = 0; i < idx.length; i++) {
+      const r = idx[i];
+      const v = cellNumber(cells[r]);
+      if (v === undefined) {
+        throw new DataError('value-not-number', 'the cell is not a number', {
+          file,
+          row: table.rows[r],
+          column: name,
+          found: String(cells[r]),
+          expected: numberExpectation(String(cells[r])),
+          ...(layout.kind === 'wide' && i === 0 ? { hint: 'name the value columns with --value, or an id column with --id for long layout' } : {}),
+        });
+      }
+      out[i] = v;
+    }
+    return out;
+  };
+
+  let raws: RawSeries[];
+  if (layout.kind === 'wide') {
+    const idx = all ? Int32Array.from({ length: times.length }, (_, i) => i) : Int32Array.from(keep);
+    const t = all ? times : Float64Array.from(idx, (r) => times[r]);
+    const rows = Int32Array.from(idx, (r) => table.rows[r]);
+    let names = layout.values;
+    if (options.series !== undefined) {
+      if (!names.includes(options.series)) throw unknownSeries(file, options.series, names, 'column');
+      names = [options.series];
+    }
+    const inputs = layout.inputs.map((name) => ({ name, values: numbers(name, idx) }));
+    raws = names.map((name) => ({ name, times: t, values: numbers(name, idx), inputs, rows }));
+  } else {
+    raws = groupLong(table, layout, keep, times, numbers, options.series);
+  }
+
+  const labelFreq = kindFrequency(timeCol.kind);
+  const duplicatePolicy = options.duplicates ?? 'error';
+  const resolved = raws.map((raw) =>
+    sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq),
+  );
+  if (resolved.some((r) => r.sorted)) notes.push('rows were not in time order; sorted by time');
+
+  const runs: StampRun[] = (layout.kind === 'wide' ? resolved.slice(0, 1) : resolved).map((r) => ({ name: r.series.name, times: r.series.times, rows: r.series.rows }));
+  const evidence = inferFrequency(runs, timeCol.kind, { file, column: layout.time });
+  const f = evidence.frequency;
+  if (runs.some((run) => run.times.some((t) => periodStart(t, f) !== t))) notes.push(`time stamps moved to the start of their ${f === 'daily' ? 'day' : f.replace(/ly$/, '')}`);
+
+  const aggregate = options.aggregate ?? 'sum';
+  const gaps = options.gaps ?? 'interpolate';
+  const series: Series[] = [];
+  const reports: SeriesReport[] = [];
+  for (const r of resolved) {
+    const where = { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? r.series.name : layout.values[0] };
+    const out = regularise(r.series, { frequency: f, freq: options.freq, aggregate, duplicates: duplicatePolicy, gaps }, where, r.duplicates);
+    series.push(out.series);
+    reports.push(out.report);
+    const { leading, trailing } = out.report.trimmed;
+    if (leading + trailing > 0) {
+      notes.push(`series "${r.series.name}": trimmed ${leading} leading and ${trailing} trailing period${leading + trailing === 1 ? '' : 's'} with missing values`);
+    }
+  }
+  if (layout.ignored.length > 0) notes.push(`columns not used: ${layout.ignored.map((c) => `"${c}"`).join(', ')}`);
+  const target = options.freq ?? f;
+  const report: LoadReport = {
+    source: file,
+    format: table.format,
+    delimiter: table.delimiter ?? null,
+    sheet: table.sheet ?? null,
+    rows: table.rows.length,
+    columns: table.header,
+    layout,
+    timeForm: timeCol.form,
+    frequency: evidence,
+    aggregated: target !== f ? { from: f, to: target, by: aggregate } : null,
+    series: reports,
+    notes,
+  };
+  return { series, report };
+}
+
+function unknownSeries(file: string, name: string, names: string[], what: 'column' | 'id'): UsageError {
+  const shown = names.slice(0, 10).map((n) => `"${n}"`).join(', ') + (names.length > 10 ? `, … (${names.length} in all)` : '');
+  return new UsageError('series-unknown', `no series named "${name}"`, {
+    file,
+    found: name,
+    expected: `a series ${what === 'column' ? 'column' : 'id'}: ${shown}`,
+  });
+}
+
+/** Long layout: rows grouped by id (first-seen order), by a counting sort over row indices. */
+function groupLong(
+  table: Table,
+  layout: Layout,
+  keep: number[],
+  times: Float64Array,
+  numbers: (name: string, idx: ArrayLike<number>) => Float64Array,
+  only: string | undefined,
+): RawSeries[] {
+  const idCells = table.columns[table.header.indexOf(layout.id as string)];
+  const groupIndex = new Map<string, number>();
+  const names: string[] = [];
+  const groupOf = new Int32Array(keep.length);
+  const counts: number[] = [];
+  for (let i = 0; i < keep.length; i++) {
+    const r = keep[i];
+    const cell = idCells[r];
+    if (cell === null || (typeof cell === 'string' && cell.trim() === '')) {
+      throw new DataError('id-missing', 'the row has no series id', {
+        file: table.source,
+        row: table.rows[r],
+        column: layout.id as string,
+        expected: 'an id in every row (long layout)',
+      });
+    }
+    const key = typeof cell === 'string' ? cell.trim() : String(cell);
+    let g = groupIndex.get(key);
+    if (g === undefined) {
+      g = names.length;
+      groupIndex.set(key, g);
+      names.push(key);
+      counts.push(0);
+    }
+    groupOf[i] = g;
+    counts[g]++;
+  }
+  let wanted: number[] = names.map((_, g) => g);
+  if (only !== undefined) {
+    const g = groupIndex.get(only);
+    if (g === undefined) throw unknownSeries(table.source, only, names, 'id');
+    wanted = [g];
+  }
+  const offsets = new Int32Array(names.length + 1);
+  for (let g = 0; g < names.length; g++) offsets[g + 1] = offsets[g] + counts[g];
+  const fill = offsets.slice(0, names.length);
+  const order = new Int32Array(keep.length);
+  for (let i = 0; i < keep.length; i++) order[fill[groupOf[i]]++] = keep[i];
+  const value = layout.values[0];
+  const allValues = numbers(value, order);
+  const allInputs = layout.inputs.map((name) => ({ name, values: numbers(name, order) }));
+  const allTimes = Float64Array.from(order, (r) => times[r]);
+  const allRows = Int32Array.from(order, (r) => table.rows[r]);
+  return wanted.map((g) => {
+    const a = offsets[g];
+    const b = offsets[g + 1];
+    return {
+      name: names[g],
+      times: allTimes.subarray(a, b),
+      values: allValues.subarray(a, b),
+      inputs: allInputs.map((x) => ({ name: x.name, values: x.values.subarray(a, b) })),
+      rows: allRows.subarray(a, b),
+    };
+  });
+}
+
+

@@ -1,0 +1,107 @@
+/**
+ * XLSX workbook → Table, through exceljs. The first sheet is read unless a sheet name is given;
+ * its first non-empty row is the header. Date cells become `ExcelSerial` values in the
+ * workbook's date system (1900 or 1904), so dates.ts maps them by the ECMA-376 rules rather
+ * than by the library's conversion. Formula cells contribute their cached result.
+ */
+import ExcelJS from 'exceljs';
+import { DataError, UsageError } from './errors.js';
+import { checkHeader } from './csv.js';
+import { ExcelSerial, type Cell, type Table } from './table.js';
+
+const DAY = 86_400_000;
+/** Serial of 1970-01-01 in the 1900 system as exceljs counts it (its conversion is `(serial − 25569) days`). */
+const UNIX_EPOCH_SERIAL = 25569;
+/** Days between the 1900 and 1904 epochs as exceljs offsets them. */
+const EPOCH_1904_OFFSET = 1462;
+
+export async function parseXlsx(bytes: Buffer, file: string, sheetName?: string): Promise<Table> {
+  const workbook = new ExcelJS.Workbook();
+  try {
+    await workbook.xlsx.load(bytes as unknown as ArrayBuffer);
+  } catch (e) {
+    throw new DataError('xlsx-corrupt', 'the workbook cannot be read', {
+      file,
+      found: e instanceof Error ? e.message : String(e),
+      expected: 'an .xlsx workbook (Office Open XML)',
+    });
+  }
+  const sheets = workbook.worksheets;
+  if (sheets.length === 0) throw new DataError('xlsx-no-sheets', 'the workbook has no sheets', { file, expected: 'at least one sheet' });
+  const sheet = sheetName === undefined ? sheets[0] : sheets.find((s) => s.name === sheetName);
+  if (!sheet) {
+    throw new UsageError('xlsx-unknown-sheet', `no sheet named "${sheetName}"`, {
+      file,
+      found: sheetName,
+      expected: `one of ${sheets.map((s) => `"${s.name}"`).join(', ')}`,
+      hint: `pass --sheet ${JSON.stringify(sheets[0].name)}`,
+    });
+  }
+  const date1904 = Boolean((workbook.properties as { date1904?: boolean }).date1904);
+  let header: string[] | null = null;
+  let headerRow = 0;
+  let columns: Cell[][] = [];
+  const rows: number[] = [];
+  sheet.eachRow({ includeEmpty: false }, (row, rowNumber) => {
+    const values = row.values as unknown[];
+    if (header === null) {
+      const width = values.length - 1;
+      header = [];
+      for (let c = 1; c <= width; c++) header.push(textOf(values[c]).trim());
+      while (header.length > 0 && header[header.length - 1] === '') header.pop();
+      headerRow = rowNumber;
+      checkHeader(header, file, rowNumber);
+      columns = header.map(() => []);
+      return;
+    }
+    const width = header.length;
+    for (let c = values.length - 1; c > width; c--) {
+      if (cellOf(values[c], date1904) !== null) {
+        throw new DataError('xlsx-too-many-fields', `the row has a value beyond the header's ${width} columns`, {
+          file,
+          row: rowNumber,
+          column: String(c),
+          found: textOf(values[c]),
+          expected: `values only under the ${width} named columns`,
+        });
+      }
+    }
+    for (let c = 0; c < width; c++) columns[c].push(cellOf(values[c + 1], date1904));
+    rows.push(rowNumber);
+  });
+  if (header === null) throw new DataError('file-empty', `sheet "${sheet.name}" is empty`, { file, expected: 'a header row and data rows' });
+  if (rows.length === 0) {
+    throw new DataError('file-no-rows', `sheet "${sheet.name}" has a header but no data rows`, {
+      file,
+      row: headerRow,
+      expected: 'at least one data row under the header',
+    });
+  }
+  return { source: file, format: 'xlsx', sheet: sheet.name, header: header as string[], columns, rows: Int32Array.from(rows) };
+}
+
+function cellOf(v: unknown, date1904: boolean): Cell {
+  if (v === null || v === undefined) return null;
+  if (typeof v === 'number' || typeof v === 'boolean') return v;
+  if (typeof v === 'string') return v;
+  if (v instanceof Date) {
+    // Undo the library's conversion to recover the serial stored in the file.
+    const serial = v.getTime() / DAY + UNIX_EPOCH_SERIAL - (date1904 ? EPOCH_1904_OFFSET : 0);
+    return new ExcelSerial(Math.round(serial * DAY) / DAY, date1904);
+  }
+  if (typeof v === 'object') {
+    const o = v as Record<string, unknown>;
+    if ('result' in o || 'formula' in o || 'sharedFormula' in o) return cellOf(o.result, date1904);
+    if ('richText' in o && Array.isArray(o.richText)) return (o.richText as { text: string }[]).map((p) => p.text).join('');
+    if ('text' in o && typeof o.text === 'string') return o.text;
+    if ('error' in o) return String(o.error);
+  }
+  return String(v);
+}
+
+function textOf(v: unknown): string {
+  const c = cellOf(v, false);
+  if (c === null) return '';
+  if (c instanceof ExcelSerial) return String(c.serial);
+  return String(c);
+}
