@@ -1,0 +1,179 @@
+/**
+ * The main job as one function: search on the training part, evaluate on the holdout, refit the
+ * asserted structure on all data, forecast with intervals. `certa forecast`, the library's
+ * `forecast()` and the accuracy benchmark all run this same code path.
+ *
+ * Defaults: horizon = two seasons (8 periods without a season); holdout = the smaller of two
+ * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
+ * 80 and 95 %; forgetting λ = 1; future inputs held at their last values unless given.
+ */
+import type { Series } from '../data/series.js';
+import { sliceSeries } from '../data/series.js';
+import { stepTime } from '../data/calendar.js';
+import { ModelError, UsageError } from '../data/errors.js';
+import { search, type SearchOptions, type SearchResult } from '../select/search.js';
+import type { Derived, Estimate, Structure } from '../models/structure.js';
+import { forward, inverse } from '../models/transforms.js';
+import { backtest, type Backtest } from '../evaluate/backtest.js';
+import { forecastWithIntervals, type ForecastPaths, type IntervalMethod } from './intervals.js';
+import { futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
+import { Learner } from './online.js';
+
+export interface ForecastOptions {
+  search?: SearchOptions;
+  horizon?: number;
+  holdout?: number;
+  levels?: number[];
+  /** Forgetting factor of online learning λ ∈ (0, 1]. */
+  forgetting?: number;
+  inputPolicy?: InputPolicy;
+  /** Future inputs for the final forecast (from a file); overrides `inputPolicy`. */
+  future?: (history: Series, h: number, times: number[]) => FutureInputs;
+  intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean };
+}
+
+export interface AssertedModel {
+  structure: Structure;
+  estimate: Estimate;
+  /** Estimation sample [from, to) of the refit on all data. */
+  from: number;
+  to: number;
+  equation: string;
+  derived: Derived[];
+  learner: Learner;
+}
+
+export interface ForecastRun {
+  series: Series;
+  horizon: number;
+  holdout: number;
+  levels: number[];
+  forgetting: number;
+  /** Search on the training part (all data when holdout is 0). */
+  search: SearchResult;
+  evaluation: Backtest | null;
+  asserted: AssertedModel;
+  /** One-step fitted values on the original scale over the estimation sample of the refit. */
+  fitted: { index: Int32Array; values: Float64Array };
+  forecast: { times: Float64Array; paths: ForecastPaths; inputs: FutureInputs };
+  warnings: string[];
+}
+
+export function defaultHorizon(series: Series): number {
+  return series.season ? 2 * series.season : 8;
+}
+
+export function defaultHoldout(series: Series): number {
+  const cap = series.season ? 2 * series.season : 8;
+  return Math.min(cap, Math.floor(0.2 * series.values.length));
+}
+
+function checkWhole(name: string, v: number, min: number, hint?: string): number {
+  if (!Number.isInteger(v) || v < min) {
+    throw new UsageError(`bad-${name}`, `--${name} must be a whole number ≥ ${min}`, { found: String(v), expected: `an integer ≥ ${min}`, hint });
+  }
+  return v;
+}
+
+/** Runs the main job on one regular series (see the module comment). */
+export function forecastSeries(series: Series, options: ForecastOptions = {}): ForecastRun {
+  const n = series.values.length;
+  const horizon = checkWhole('horizon', options.horizon ?? defaultHorizon(series), 1);
+  const holdout = checkWhole('holdout', options.holdout ?? defaultHoldout(series), 0);
+  if (holdout >= n) {
+    throw new UsageError('holdout-too-long', `--holdout ${holdout} leaves no training data: series "${series.name}" has ${n} points`, {
+      found: String(holdout),
+      expected: `fewer than ${n} points (and enough left to fit a model)`,
+      hint: 'lower --holdout, or use --holdout 0 to skip evaluation',
+    });
+  }
+  const levels = (options.levels ?? [80, 95]).map((l) => {
+    if (!(l > 0 && l < 100)) throw new UsageError('bad-level', 'interval levels must lie strictly between 0 and 100', { found: String(l), expected: 'e.g. 80,95' });
+    return l;
+  });
+  const forgetting = options.forgetting ?? 1;
+  if (!(forgetting > 0 && forgetting <= 1)) {
+    throw new UsageError('bad-forgetting', 'the forgetting factor must lie in (0, 1]', { found: String(forgetting), expected: 'a number such as 1, 0.99 or 0.95' });
+  }
+  const intervalOptions = { levels, ...options.intervals };
+  const warnings: string[] = [];
+
+  const nTrain = n - holdout;
+  const train = sliceSeries(series, 0, nTrain);
+  let found: SearchResult;
+  try {
+    found = search(train, options.search);
+  } catch (e) {
+    if (e instanceof ModelError && holdout > 0 && e.code === 'too-short') {
+      throw new ModelError(e.code, `${e.message} after holding out the last ${holdout}`, { ...e.context, hint: 'lower --holdout or use --holdout 0' });
+    }
+    throw e;
+  }
+  warnings.push(...found.warnings);
+  const { structure } = found.winner;
+  const from = found.sample.from;
+
+  let evaluation: Backtest | null = null;
+  if (holdout > 0) {
+    evaluation = backtest(structure, found.winner.estimate, series, nTrain, found.winner.residuals, {
+      horizon,
+      lambda: forgetting,
+      intervals: intervalOptions,
+      sampleFrom: from,
+    });
+    warnings.push(...evaluation.warnings);
+  }
+
+  // Assert: the chosen structure refitted on all data.
+  const estimate = holdout > 0 ? structure.estimate(series, from, n) : found.winner.estimate;
+  const learner = Learner.start(structure, estimate.active, series, from, n, { lambda: forgetting });
+  const pred = structure.oneStep(estimate.theta, series, from, n);
+  const z = forward(structure.transform, series.values);
+  const residuals = new Float64Array(pred.length);
+  const fittedValues = new Float64Array(pred.length);
+  const index = new Int32Array(pred.length);
+  for (let i = 0; i < pred.length; i++) {
+    residuals[i] = z[from + i] - pred[i];
+    fittedValues[i] = inverse(structure.transform, pred[i]);
+    index[i] = from + i;
+  }
+
+  const times = new Float64Array(horizon);
+  const last = series.time[n - 1];
+  for (let j = 0; j < horizon; j++) times[j] = stepTime(last, series.frequency, j + 1);
+  const inputs =
+    series.inputs.length === 0
+      ? { values: [], source: 'no inputs' }
+      : options.future
+        ? options.future(series, horizon, Array.from(times))
+        : futureByPolicy(series, horizon, options.inputPolicy ?? 'hold');
+  const paths = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, intervalOptions);
+  for (let j = 0; j < horizon; j++) {
+    if (!Number.isFinite(paths.point[j])) {
+      warnings.push(`the forecast is not finite from step ${j + 1} on: the asserted equation diverges over this horizon`);
+      break;
+    }
+  }
+
+  return {
+    series,
+    horizon,
+    holdout,
+    levels,
+    forgetting,
+    search: found,
+    evaluation,
+    asserted: {
+      structure,
+      estimate,
+      from,
+      to: n,
+      equation: structure.describe(estimate.theta, estimate.se),
+      derived: structure.derived(estimate.theta, series),
+      learner,
+    },
+    fitted: { index, values: fittedValues },
+    forecast: { times, paths, inputs },
+    warnings,
+  };
+}
