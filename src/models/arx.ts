@@ -24,7 +24,7 @@ import { lstsq } from '../linalg/lstsq.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
 import { deterministicFiller, deterministicNames, maxHarmonics, type DeterministicTerms } from './terms.js';
-import { characteristicRoots, modulus } from './roots.js';
+import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
 
 export interface ArxInputSpec {
@@ -104,9 +104,9 @@ function diffPrefix(spec: ArxSpec): string {
   return spec.differencing === 'none' ? '' : spec.differencing === 'first' ? 'Δ' : `Δ${spec.season}`;
 }
 
-/** Differenced copy x_t − x_{t−D} (NaN for t < D); a copy when D = 0. */
+/** Differenced copy x_t − x_{t−D} (NaN for t < D); x itself when D = 0 (callers only read it). */
 function difference(x: Float64Array, D: number): Float64Array {
-  if (D === 0) return Float64Array.from(x);
+  if (D === 0) return x;
   const w = new Float64Array(x.length);
   for (let t = 0; t < x.length; t++) w[t] = t >= D ? x[t] - x[t - D] : NaN;
   return w;
@@ -192,7 +192,7 @@ export class ArxStructure implements Structure {
         hint: 'use --transform none',
       });
     }
-    const z = forward(this.transform, values);
+    const z = this.transform === 'none' ? values : forward(this.transform, values);
     const w = difference(z, this.D);
     const v = inputs.map((u) => difference(u, this.D));
     return { z, w, v };
@@ -202,18 +202,22 @@ export class ArxStructure implements Structure {
     return this.spec.inputs.map((i) => inputValues(series, i.name));
   }
 
-  /** Writes the regressor row of time t (from w and v) into out. */
-  private fillRow(t: number, w: Float64Array, v: Float64Array[], out: Float64Array): void {
-    out[0] = 1;
-    for (let i = 1; i <= this.spec.ar; i++) out[this.arAt + i - 1] = w[t - i];
-    if (this.slagAt >= 0) out[this.slagAt] = w[t - (this.spec.season as number)];
-    for (let j = 0; j < this.spec.inputs.length; j++) {
-      const { lags, delay } = this.spec.inputs[j];
+  /** Writes the regressor row of time t (from w and v) into out[o …]. */
+  private fillRow(t: number, w: Float64Array, v: Float64Array[], out: Float64Array, o: number): void {
+    out[o] = 1;
+    const ar = this.spec.ar;
+    const arAt = o + this.arAt - 1;
+    for (let i = 1; i <= ar; i++) out[arAt + i] = w[t - i];
+    if (this.slagAt >= 0) out[o + this.slagAt] = w[t - (this.spec.season as number)];
+    const inputs = this.spec.inputs;
+    for (let j = 0; j < inputs.length; j++) {
+      const lags = inputs[j].lags;
+      const first = t - inputs[j].delay;
       const vj = v[j];
-      const at = this.inputAt[j];
-      for (let l = 0; l < lags; l++) out[at + l] = vj[t - delay - l];
+      const at = o + this.inputAt[j];
+      for (let l = 0; l < lags; l++) out[at + l] = vj[first - l];
     }
-    this.fillDet(t, out, this.detAt);
+    this.fillDet(t, out, o + this.detAt);
   }
 
   regression(series: Series, from: number, to: number): Regression {
@@ -229,7 +233,7 @@ export class ArxStructure implements Structure {
       const t = start + r;
       index[r] = t;
       y[r] = w[t];
-      this.fillRow(t, w, v, phi.data.subarray(r * p, (r + 1) * p));
+      this.fillRow(t, w, v, phi.data, r * p);
     }
     return { index, y, phi };
   }
@@ -261,7 +265,7 @@ export class ArxStructure implements Structure {
     const p = this.terms.length;
     const row = new Float64Array(p);
     for (let t = Math.max(from, this.history); t < to; t++) {
-      this.fillRow(t, w, v, row);
+      this.fillRow(t, w, v, row, 0);
       let pred = 0;
       for (let j = 0; j < p; j++) pred += row[j] * theta[j];
       out[t - from] = this.D > 0 ? z[t - this.D] + pred : pred;
@@ -303,7 +307,7 @@ export class ArxStructure implements Structure {
     const row = new Float64Array(p);
     const out = new Float64Array(h);
     for (let t = n; t < n + h; t++) {
-      this.fillRow(t, w, v, row);
+      this.fillRow(t, w, v, row, 0);
       let pred = 0;
       for (let j = 0; j < p; j++) pred += row[j] * theta[j];
       if (shocks) pred += shocks[t - n];
@@ -341,10 +345,9 @@ export class ArxStructure implements Structure {
     return a;
   }
 
-  /** True when every characteristic root of the AR recursion lies strictly inside the unit circle. */
+  /** True when every characteristic root of the AR recursion lies strictly inside the unit circle (Schur–Cohn test). */
   isStable(theta: Float64Array): boolean {
-    const roots = characteristicRoots(this.arPolynomial(theta));
-    return roots.length === 0 || modulus(roots[0]) < 1;
+    return isStableRecursion(this.arPolynomial(theta));
   }
 
   /**

@@ -58,3 +58,33 @@ export function spectralRadius(a: ArrayLike<number>): number {
   const r = characteristicRoots(a);
   return r.length === 0 ? 0 : modulus(r[0]);
 }
+
+/**
+ * Stability of the AR recursion w_t = a_1 w_{t−1} + … + a_p w_{t−p} without computing roots:
+ * the Schur–Cohn test by the step-down (reverse Levinson) recursion. For the monic
+ * characteristic polynomial c(λ) = λ^p + c_1 λ^{p−1} + … + c_p (c_i = −a_i), take the reflection
+ * coefficient k = c_p; if |k| ≥ 1 some root has |λ| ≥ 1; otherwise step down to degree p−1 with
+ *   c'_i = (c_i − k·c_{p−i}) / (1 − k²),  i = 1…p−1,
+ * and repeat. All roots lie strictly inside the unit circle iff every |k| < 1 (Jury 1964,
+ * "Theory and Application of the z-Transform Method", §3.4; Hayes 1996, "Statistical Digital
+ * Signal Processing and Modeling", §5.2.7, the step-down recursion and its stability property).
+ * Cost O(p²), one scratch array. Agrees with `spectralRadius(a) < 1` (asserted in
+ * test/models/roots.test.ts).
+ */
+export function isStableRecursion(a: ArrayLike<number>): boolean {
+  let p = a.length;
+  while (p > 0 && a[p - 1] === 0) p--;
+  if (p === 0) return true;
+  const c = new Float64Array(p + 1);
+  const next = new Float64Array(p + 1);
+  c[0] = 1;
+  for (let i = 1; i <= p; i++) c[i] = -a[i - 1];
+  for (let m = p; m >= 1; m--) {
+    const k = c[m];
+    if (!(Math.abs(k) < 1)) return false;
+    const d = 1 - k * k;
+    for (let i = 1; i < m; i++) next[i] = (c[i] - k * c[m - i]) / d;
+    for (let i = 1; i < m; i++) c[i] = next[i];
+  }
+  return true;
+}

@@ -57,20 +57,30 @@ export function deterministicCount(d: DeterministicTerms): number {
 
 /**
  * A filler writing the deterministic values at time t into `out` from `offset`; returns the
- * number of values written. Precomputes the harmonic frequencies once.
+ * number of values written. The harmonic values depend only on t mod s, so they are tabulated
+ * once per filler (s rows), and filling a row costs no sin/cos evaluation.
  */
 export function deterministicFiller(d: DeterministicTerms): (t: number, out: Float64Array, offset: number) => number {
   const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
-  const omega = cols.map((c) => (2 * Math.PI * c.k) / (d.season as number));
-  const isSin = cols.map((c) => c.kind === 'sin');
   const s = d.season ?? 1;
+  const m = cols.length;
+  const table = new Float64Array(m * s);
+  for (let r = 0; r < s && m > 0; r++) {
+    for (let c = 0; c < m; c++) {
+      const angle = (2 * Math.PI * cols[c].k * r) / s;
+      table[r * m + c] = cols[c].kind === 'sin' ? Math.sin(angle) : Math.cos(angle);
+    }
+  }
+  const intercept = d.intercept;
+  const trend = d.trend;
   return (t, out, offset) => {
     let j = offset;
-    if (d.intercept) out[j++] = 1;
-    if (d.trend) out[j++] = t;
-    // Reduce t modulo s first so large positions keep full precision in sin/cos.
-    const tm = cols.length > 0 ? ((t % s) + s) % s : 0;
-    for (let c = 0; c < cols.length; c++) out[j++] = isSin[c] ? Math.sin(omega[c] * tm) : Math.cos(omega[c] * tm);
+    if (intercept) out[j++] = 1;
+    if (trend) out[j++] = t;
+    if (m > 0) {
+      const base = (((t % s) + s) % s) * m;
+      for (let c = 0; c < m; c++) out[j++] = table[base + c];
+    }
     return j - offset;
   };
 }

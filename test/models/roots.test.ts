@@ -33,3 +33,34 @@ describe('characteristicRoots / spectralRadius', () => {
     expect(spectralRadius(a)).toBeCloseTo(0.9 ** (1 / 12), 10);
   });
 });
+
+describe('isStableRecursion', () => {
+  it('agrees with the companion-matrix spectral radius on 2000 seeded random recursions of order 1-13', async () => {
+    const { createRng } = await import('../../src/linalg/random.js');
+    const { isStableRecursion } = await import('../../src/models/roots.js');
+    const rng = createRng(2024);
+    let stable = 0;
+    let checked = 0;
+    for (let trial = 0; trial < 2000; trial++) {
+      const p = 1 + rng.int(13);
+      const a = Array.from({ length: p }, () => (rng.uniform() * 2 - 1) * (1.6 / p));
+      const rho = spectralRadius(a);
+      if (Math.abs(rho - 1) < 1e-9) continue; // too close to the boundary to call
+      checked++;
+      expect(isStableRecursion(a)).toBe(rho < 1);
+      if (rho < 1) stable++;
+    }
+    expect(stable).toBeGreaterThan(100);
+    expect(checked - stable).toBeGreaterThan(100);
+  });
+  it('calls the stationarity triangle edges of a second-order recursion (|a2| < 1, a1 + a2 < 1, a2 − a1 < 1)', async () => {
+    const { isStableRecursion } = await import('../../src/models/roots.js');
+    expect(isStableRecursion([0.5, 0.49])).toBe(true);
+    expect(isStableRecursion([0.5, 0.51])).toBe(false);
+    expect(isStableRecursion([-0.5, 0.49])).toBe(true);
+    expect(isStableRecursion([-0.5, 0.51])).toBe(false);
+    expect(isStableRecursion([0, -1])).toBe(false);
+    expect(isStableRecursion([1])).toBe(false);
+    expect(isStableRecursion([])).toBe(true);
+  });
+});
