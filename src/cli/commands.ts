@@ -3,8 +3,8 @@
  */
 import type { Command } from 'commander';
 import type { CliIO } from './main.js';
+import { register as registerInspect } from './inspect.js';
 
 export function registerCommands(program: Command, io: CliIO): void {
-  void program;
-  void io;
+  registerInspect(program, io);
 }

@@ -41,12 +41,23 @@ export function buildProgram(io: CliIO): Command {
       'Identify the equation behind a time series, assert it, forecast with it and keep it learning.\n' +
         'Start with:  certa inspect <file>   (what certa reads in your file)',
     )
-    .option('--debug', 'print stack traces of internal errors')
-    .showHelpAfterError('(run with --help for usage)')
-    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) })
-    .exitOverride();
+    .option('--debug', 'print stack traces of internal errors');
   registerCommands(program, io);
+  configureTree(program, io);
   return program;
+}
+
+/**
+ * Every command, however it was added, writes through io and throws instead of exiting; its
+ * own usage errors (unknown option, missing argument) are not printed here but by `main`, as
+ * one `certa:` line.
+ */
+function configureTree(command: Command, io: CliIO): void {
+  command
+    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s), outputError: () => undefined })
+    .showHelpAfterError(false)
+    .exitOverride();
+  for (const sub of command.commands) configureTree(sub, io);
 }
 
 /** Runs the CLI and resolves to the exit code; never calls process.exit. */
@@ -61,6 +72,9 @@ export async function main(argv: string[], io: CliIO = processIO): Promise<numbe
     if (e instanceof CommanderError) {
       // help and version are "errors" to commander; their text is already written.
       if (e.code === 'commander.helpDisplayed' || e.code === 'commander.version' || e.code === 'commander.help') return 0;
+      if (e.code === 'commander.executeSubCommandAsync') return e.exitCode;
+      io.err(`certa: ${e.message.replace(/^error: /, '').split('\n')[0]}\n`);
+      io.err(`hint: run certa ${commandPath(program, argv)}--help for usage\n`);
       return 2;
     }
     if (isCertaError(e)) {
@@ -74,6 +88,13 @@ export async function main(argv: string[], io: CliIO = processIO): Promise<numbe
     io.err(debug && err.stack ? `${err.stack}\n` : 'hint: this is a bug in certa; rerun with --debug for the stack trace\n');
     return 1;
   }
+}
+
+/** `inspect ` when argv names a known command, '' otherwise (for the usage hint). */
+function commandPath(program: Command, argv: string[]): string {
+  const words = argv.slice(2).filter((a) => !a.startsWith('-'));
+  const sub = words.length > 0 ? program.commands.find((c) => c.name() === words[0] || c.aliases().includes(words[0])) : undefined;
+  return sub ? `${sub.name()} ` : '';
 }
 
 async function readStdin(): Promise<Buffer> {

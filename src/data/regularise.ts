@@ -313,13 +313,12 @@ function gapError(name: string, refused: { column: string; gap: Gap }[], gridRow
   const missingWord = refused.length === 1 ? 'a gap' : `${refused.length} gaps`;
   const message =
     policyName === 'interpolate'
-      ? `series "${name}" has ${missingWord} longer than ${MAX_INTERPOLATED_RUN} ${periodName(f, 2)}, which --gaps interpolate does not fill`
-      : `series "${name}" has ${missingWord} of missing ${periodName(f, 2)}, refused by --gaps error`;
+      ? `series "${name}" has ${missingWord} longer than ${MAX_INTERPOLATED_RUN} ${periodName(f, 2)}, which --gaps interpolate does not fill: ${shown}`
+      : `series "${name}" has ${missingWord} of missing ${periodName(f, 2)}, refused by --gaps error: ${shown}`;
   return new DataError('gap-refused', message, {
     file: where.file,
     row: after > 0 ? after : undefined,
     column: firstGap.column,
-    found: shown,
     expected: policyName === 'interpolate' ? `runs of at most ${MAX_INTERPOLATED_RUN} missing ${periodName(f, 2)}` : 'no missing periods',
     hint:
       policyName === 'interpolate'
