@@ -4,7 +4,8 @@
  * Variant. Each column of Φ is first divided by its Euclidean norm (Φ_s = Φ·D with
  * D = diag(1/‖φ_j‖₂); a zero column keeps scale 1), then Φ_s·P = Q·R is computed by Householder
  * reflections H_k = I − τ_k·v_k·v_kᵀ (v_k[k] = 1) with column pivoting: at step k the remaining
- * column of largest partial norm is moved to position k, so |R_00| ≥ |R_11| ≥ … .
+ * column of largest partial norm is moved to position k, so |R_00| ≥ |R_11| ≥ … (near-ties,
+ * within 1e-12 relatively, go to the earlier column, so of two duplicated terms the later drops).
  * Sources: Householder reflections and QR with column pivoting, Golub & Van Loan, "Matrix
  * Computations", 4th ed. (2013), Algorithm 5.1.1 and §5.4.2 (Businger & Golub 1965); the
  * partial-norm downdate with its recomputation safeguard follows Drmač & Bujanović, "On the
@@ -418,9 +419,14 @@ function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array,
   const tol3z = Math.sqrt(EPSILON);
   const m = Math.min(n, p);
   for (let k = 0; k < m; k++) {
-    // Pivot: the first column of largest partial norm.
+    // Pivot: the column of largest partial norm; near-ties (within 1e-12 relatively, as
+    // for duplicated terms) go to the earlier original column, so the later one is dropped.
     let pvt = k;
-    for (let j = k + 1; j < p; j++) if (vn1[j] > vn1[pvt]) pvt = j;
+    for (let j = k + 1; j < p; j++) {
+      const a1 = vn1[j];
+      const a0 = vn1[pvt];
+      if (a1 > a0 * (1 + 1e-12) || (a1 >= a0 * (1 - 1e-12) && perm[j] < perm[pvt])) pvt = j;
+    }
     if (pvt !== k) {
       const o1 = pvt * n;
       const o2 = k * n;
