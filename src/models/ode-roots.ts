@@ -18,20 +18,21 @@ import { modulus, polynomialRoots } from './roots.js';
  *   Computations", 4th ed. 2013, §7.4.6), keeping those whose imaginary part is below 1e-9 of the largest
  *   modulus, each polished by two Newton steps.
  * A constant polynomial has no roots (an identically zero one is reported as none as well).
+ * Roots are returned with −0 normalised to 0.
  */
 export function realRoots(coefficients: readonly number[]): number[] {
   const c = [...coefficients];
   while (c.length > 0 && c[c.length - 1] === 0) c.pop();
   const degree = c.length - 1;
   if (degree < 1) return [];
-  if (degree === 1) return [-c[0] / c[1]];
+  if (degree === 1) return [-c[0] / c[1] + 0];
   if (degree === 2) {
     const [c0, c1, c2] = c;
     const disc = c1 * c1 - 4 * c2 * c0;
     if (disc < 0) return [];
     const q = -0.5 * (c1 + (c1 >= 0 ? 1 : -1) * Math.sqrt(disc));
     if (q === 0) return [0, 0];
-    return [q / c2, c0 / q].sort((a, b) => a - b);
+    return [q / c2 + 0, c0 / q + 0].sort((a, b) => a - b);
   }
   if (degree > 3) throw new RangeError(`realRoots handles degree ≤ 3, got ${degree}`);
   const complex = polynomialRoots([c[3], c[2], c[1], c[0]]);
@@ -46,7 +47,7 @@ export function realRoots(coefficients: readonly number[]): number[] {
       if (df === 0) break;
       x -= f / df;
     }
-    roots.push(x);
+    roots.push(x + 0);
   }
   return roots.sort((a, b) => a - b);
 }

@@ -50,7 +50,7 @@ import { equilibria } from './ode-roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 import { rk4 } from './rk4.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
-import { deterministicFiller, deterministicNames, maxHarmonics } from './terms.js';
+import { deterministicNames, maxHarmonics } from './terms.js';
 import { isStrictlyPositive } from './transforms.js';
 
 export type OdeState = 'level' | 'cumulative';
@@ -171,6 +171,33 @@ export function odeFromSpec(spec: StructureSpec): Structure {
 /** An ODE structure from options (see OdeSpec for fields and defaults). */
 export function odeStructure(options: OdeOptions): Structure {
   return new OdeStructure(odeSpec(options));
+}
+
+/**
+ * Seasonal harmonics at a continuous time τ (base periods): sin(2πkτ/s), cos(2πkτ/s) for
+ * k = 1…K in the column order and naming of terms.ts (the sine of k = s/2 left out, since it
+ * vanishes at every sample). RK4 evaluates them between samples, so they are computed from τ
+ * reduced modulo s rather than tabulated at whole periods.
+ */
+function harmonicFiller(K: number, season: number | null): (tau: number, out: Float64Array, offset: number) => void {
+  const omega: number[] = [];
+  const isSin: boolean[] = [];
+  if (season !== null) {
+    for (let k = 1; k <= K; k++) {
+      const w = (2 * Math.PI * k) / season;
+      if (2 * k !== season) {
+        omega.push(w);
+        isSin.push(true);
+      }
+      omega.push(w);
+      isSin.push(false);
+    }
+  }
+  const s = season ?? 1;
+  return (tau, out, offset) => {
+    const tm = ((tau % s) + s) % s;
+    for (let c = 0; c < omega.length; c++) out[offset + c] = isSin[c] ? Math.sin(omega[c] * tm) : Math.cos(omega[c] * tm);
+  };
 }
 
 /** Name of the state symbol in terms and equations. */
@@ -317,7 +344,7 @@ class OdeStructure implements Structure {
   private library(): (tau: number, x: number, u: ArrayLike<number>, w: number, out: Float64Array, offset: number, add: boolean) => void {
     const powers = this.spec.powers;
     const nh = this.harmonicNames.length;
-    const harm = deterministicFiller({ intercept: false, trend: false, harmonics: this.spec.harmonics, season: this.spec.season });
+    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
     const buf = new Float64Array(nh);
     return (tau, x, u, w, out, offset, add) => {
       let j = offset;
@@ -349,7 +376,7 @@ class OdeStructure implements Structure {
     const np = powers.length;
     const ni = ua.length;
     const nh = this.harmonicNames.length;
-    const harm = deterministicFiller({ intercept: false, trend: false, harmonics: this.spec.harmonics, season: this.spec.season });
+    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
     const buf = new Float64Array(nh);
     const poly = [0, 0, 0, 0];
     for (let k = 0; k < np; k++) poly[powers[k]] = theta[k];
