@@ -14,6 +14,12 @@
  * `criterion` (select/criteria.ts) with k = |A| + 1 (coefficients + noise variance) on all n
  * rows, and the lowest score wins. Ties (scores within 1e-9 relatively, or both −Infinity) go to
  * the smaller active set, then to the larger τ.
+ * Rounding floor: before scoring, RSS is raised to at least (γ·‖y‖₂)², γ = npε/(1 − npε),
+ * ε = 2⁻⁵², the size of residual that rounding alone can leave in a Householder least-squares
+ * solve (Higham, "Accuracy and Stability of Numerical Algorithms", 2nd ed. 2002, §20.2, the
+ * backward error bound of Theorem 20.3 with γ_k = kε/(1 − kε) — theorem number from memory).
+ * Below it, RSS differences are rounding noise, so on exact data (e.g. noise-free derivatives)
+ * every exact candidate ties and the smallest wins; on noisy data the floor never binds.
  * Default grid: τ = 0 and τ = 10^(−6 + i/4), i = 0…24 (1e-6 to 1), ascending.
  * Cost: at most (grid size)·(maxIterations + 1) least-squares fits of ≤ p columns, each
  * 2np² flops; distinct active sets are fitted once.
@@ -112,6 +118,8 @@ export function sparseRegression(phi: DesignMatrix, y: Float64Array, names: stri
   let yy = 0;
   for (let i = 0; i < n; i++) yy += y[i] * y[i];
   const yNorm = Math.sqrt(yy);
+  const npe = n * p * 2 ** -52;
+  const rssFloor = npe < 1 ? ((npe / (1 - npe)) * yNorm) ** 2 : yy;
 
   const fits = new Map<string, { fit: LstsqResult; theta: Float64Array; score: number; size: number }>();
   const evaluate = (active: boolean[]) => {
@@ -124,7 +132,7 @@ export function sparseRegression(phi: DesignMatrix, y: Float64Array, names: stri
       const fit = lstsq(sub, y, cols.map((j) => names[j]), { rankTolerance: options.rankTolerance, onRankDeficient: options.onRankDeficient });
       const theta = new Float64Array(p);
       cols.forEach((j, k) => (theta[j] = fit.theta[k]));
-      const score = criteria(fit.rss, n, cols.length + 1, { logJacobian: options.logJacobian })[criterion];
+      const score = criteria(Math.max(fit.rss, rssFloor), n, cols.length + 1, { logJacobian: options.logJacobian })[criterion];
       e = { fit, theta, score, size: cols.length };
       fits.set(key, e);
     }
