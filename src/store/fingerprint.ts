@@ -1,0 +1,66 @@
+/**
+ * The data fingerprint of a model: a running hash over every row the model has seen, so a model
+ * file can tell whether a data file is the one it was fitted and updated on, and can be extended
+ * row by row as online updates add data, without keeping the data.
+ *
+ * Definition (a hash chain over SHA-256, FIPS 180-4):
+ *   H₀ = SHA-256("certa data fingerprint v1")
+ *   Hᵢ = SHA-256(hex(Hᵢ₋₁) ‖ "\n" ‖ canonicalJson([tᵢ, yᵢ, x₁ᵢ, …, x_mᵢ]))
+ * where tᵢ is the row's time stamp (calendar.ts units), yᵢ the raw observation and x the raw
+ * inputs in the series' input order, all written by canonicalJson (shortest round-trip numbers).
+ * The fingerprint is `{ hash: "sha256:" + hex(H_n), rows: n }`. Extending by rows a then b equals
+ * extending by a, saving, and later extending by b; the order of rows matters, and so does every
+ * digit of every value.
+ */
+import { createHash } from 'node:crypto';
+import type { Series } from '../data/series.js';
+import { canonicalJson } from './canonical-json.js';
+
+export interface Fingerprint {
+  /** `sha256:` followed by 64 lowercase hex digits. */
+  hash: string;
+  /** Rows hashed so far. */
+  rows: number;
+}
+
+/** One observation: time stamp, raw value, raw inputs in the series' input order. */
+export interface DataRow {
+  time: number;
+  value: number;
+  inputs: readonly number[];
+}
+
+const SEED_TEXT = 'certa data fingerprint v1';
+
+/** The fingerprint of no data (H₀). */
+export function emptyFingerprint(): Fingerprint {
+  return { hash: `sha256:${sha256Hex(SEED_TEXT)}`, rows: 0 };
+}
+
+/** The fingerprint after `rows` are appended to the data behind `fp`. */
+export function extendFingerprint(fp: Fingerprint, rows: Iterable<DataRow>): Fingerprint {
+  let hex = fp.hash.startsWith('sha256:') ? fp.hash.slice(7) : fp.hash;
+  let count = fp.rows;
+  for (const row of rows) {
+    hex = sha256Hex(`${hex}\n${canonicalJson([row.time, row.value, ...row.inputs])}`);
+    count += 1;
+  }
+  return { hash: `sha256:${hex}`, rows: count };
+}
+
+/** Rows [from, to) of a series, for `extendFingerprint`. */
+export function* seriesRows(series: Series, from = 0, to = series.values.length): Generator<DataRow> {
+  for (let i = from; i < to; i++) {
+    yield { time: series.time[i], value: series.values[i], inputs: series.inputs.map((input) => input.values[i]) };
+  }
+}
+
+/** The fingerprint of rows [from, to) of a series, starting from no data. */
+export function fingerprintSeries(series: Series, from = 0, to = series.values.length): Fingerprint {
+  return extendFingerprint(emptyFingerprint(), seriesRows(series, from, to));
+}
+
+/** Lowercase hex SHA-256 of a UTF-8 text. */
+export function sha256Hex(text: string): string {
+  return createHash('sha256').update(text, 'utf8').digest('hex');
+}
