@@ -45,6 +45,7 @@ import { ModelError, UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { lstsq } from '../linalg/lstsq.js';
 import { zeros } from '../linalg/matrix.js';
+import { sparseRegression } from '../linalg/sparse.js';
 import { odeDerived, odeSummary } from './ode-derived.js';
 import { equilibria } from './ode-roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
@@ -100,7 +101,7 @@ export interface OdeOptions {
   periodsPerYear?: number | null;
   /** Default 8. */
   substeps?: number;
-  /** Default 'sparse'. */
+  /** Default 'dense'. */
   selection?: OdeSelection;
   /** Default 0. */
   initialCumulative?: number;
@@ -136,7 +137,7 @@ export function odeSpec(options: OdeOptions): OdeSpec {
     dt: options.dt ?? null,
     periodsPerYear: options.periodsPerYear ?? null,
     substeps: options.substeps ?? DEFAULT_SUBSTEPS,
-    selection: options.selection ?? 'sparse',
+    selection: options.selection ?? 'dense',
     initialCumulative: options.initialCumulative ?? 0,
   };
   return checkSpec(spec);
@@ -288,6 +289,7 @@ class OdeStructure implements Structure {
     const extra: string[] = [];
     if (spec.inputs.length > 0) extra.push(`input${spec.inputs.length > 1 ? 's' : ''} ${spec.inputs.join(', ')}`);
     if (spec.harmonics > 0) extra.push(`${spec.harmonics} seasonal harmonic${spec.harmonics > 1 ? 's' : ''}`);
+    if (spec.selection === 'sparse') extra.push('terms selected by thresholded least squares');
     if (spec.transform === 'log') extra.push('scored on log scale');
     this.label = [shapeLabel(spec.state, spec.powers), ...extra].join(', ');
   }
@@ -501,20 +503,31 @@ class OdeStructure implements Structure {
   }
 }
 
-/** θ estimate of the trapezoid regression: dense least squares or sparse selection. */
+/**
+ * θ estimate of the trapezoid regression. `dense`: least squares on every term (lstsq.ts).
+ * `sparse`: sequential thresholded least squares with the threshold picked by BIC
+ * (sparse.ts); pruned terms get θ = 0, se = 0 and zero rows/columns in the covariance.
+ */
 function fitOde(selection: OdeSelection, reg: Regression, names: string[]): Estimate {
-  const fit = lstsq(reg.phi, reg.y, names);
-  void selection;
-  return {
-    theta: fit.theta,
-    se: fit.se,
-    cov: fit.cov,
-    active: [...fit.active],
-    sigma2: fit.sigma2,
-    rank: fit.rank,
-    condition: fit.condition,
-    warnings: [...fit.warnings],
-  };
+  if (selection === 'dense') {
+    const fit = lstsq(reg.phi, reg.y, names);
+    return { theta: fit.theta, se: fit.se, cov: fit.cov, active: [...fit.active], sigma2: fit.sigma2, rank: fit.rank, condition: fit.condition, warnings: [...fit.warnings] };
+  }
+  const sparse = sparseRegression(reg.phi, reg.y, names);
+  const p = names.length;
+  const cols: number[] = [];
+  for (let j = 0; j < p; j++) if (sparse.active[j]) cols.push(j);
+  const q = cols.length;
+  const se = new Float64Array(p);
+  const cov = new Float64Array(p * p);
+  cols.forEach((j, a) => {
+    se[j] = sparse.fit.se[a];
+    cols.forEach((k, b) => (cov[j * p + k] = sparse.fit.cov[a * q + b]));
+  });
+  const pruned = names.filter((_, j) => !sparse.active[j]);
+  const warnings = [...sparse.warnings];
+  if (pruned.length > 0) warnings.push(`sparse selection set ${pruned.map((t) => `"${t}"`).join(', ')} to zero`);
+  return { theta: sparse.theta, se, cov, active: [...sparse.active], sigma2: sparse.fit.sigma2, rank: sparse.fit.rank, condition: sparse.fit.condition, warnings };
 }
 
 /** Which θ entries are state feedback (powers ≥ 1 of the state), for the residual checks. */
@@ -538,19 +551,30 @@ export function odeStable(structure: Structure, theta: Float64Array): boolean {
   return equilibria(poly).some((e) => e.stable);
 }
 
-/** The level-state shapes offered by the search, in order. */
-const LEVEL_SHAPES: number[][] = [[1], [0, 1], [1, 2], [0, 1, 2], [1, 2, 3], [0, 1, 2, 3]];
-/** The cumulative-state shapes offered (for non-negative series only). */
-const CUMULATIVE_SHAPES: number[][] = [[0, 1, 2]];
+/**
+ * The level-state shapes offered by the search, in order, with their estimation: each named
+ * hypothesis (exponential, linear relaxation, logistic with and without constant) is fitted
+ * densely, so it stays the equation it names; the full cubic library 1, y, y², y³ is fitted by
+ * sparse selection, which lets the data switch terms off.
+ */
+const LEVEL_SHAPES: [number[], OdeSelection][] = [
+  [[1], 'dense'],
+  [[0, 1], 'dense'],
+  [[1, 2], 'dense'],
+  [[0, 1, 2], 'dense'],
+  [[0, 1, 2, 3], 'sparse'],
+];
+/** The cumulative-state shapes offered (non-negative series only): Bass-type diffusion. */
+const CUMULATIVE_SHAPES: [number[], OdeSelection][] = [[[0, 1, 2], 'dense']];
 
 /**
  * The ODE candidate grid for a series within the search bounds, in a fixed order: for each
- * scoring transform, level shapes (exponential, linear relaxation, logistic-type with and
- * without constant, cubic with and without constant), then Bass-type diffusion in the
- * cumulative state when every value is ≥ 0; each without inputs, then with all allowed inputs
- * (not for exponential growth); each with every allowed number of harmonic pairs. A candidate
- * is left out when the series gives fewer than (terms + 2) increments, when the log transform
- * meets a non-positive value, or when the time stamps are not equally spaced.
+ * scoring transform, the level shapes above, then Bass-type diffusion in the cumulative state
+ * when every value is ≥ 0 (and some > 0); each without inputs, then with all allowed inputs
+ * (not for exponential growth); each with every allowed number of harmonic pairs (not for
+ * exponential growth). A candidate is left out when the series gives fewer than (terms + 2)
+ * increments, when the log transform meets a non-positive value, or when the time stamps are
+ * not equally spaced. dt and periods per year are fixed in each spec from the series.
  */
 export function odeCandidates(series: Series, bounds: CandidateBounds): Structure[] {
   const n = series.values.length;
@@ -571,14 +595,14 @@ export function odeCandidates(series: Series, bounds: CandidateBounds): Structur
   const out: Structure[] = [];
   for (const transform of bounds.transforms) {
     if (transform === 'log' && !positive) continue;
-    const shapes: [OdeState, number[]][] = LEVEL_SHAPES.map((s) => ['level', s] as [OdeState, number[]]);
-    if (nonNegative) for (const s of CUMULATIVE_SHAPES) shapes.push(['cumulative', s]);
-    for (const [state, powers] of shapes) {
+    const shapes: [OdeState, number[], OdeSelection][] = LEVEL_SHAPES.map(([p, sel]) => ['level', p, sel]);
+    if (nonNegative) for (const [p, sel] of CUMULATIVE_SHAPES) shapes.push(['cumulative', p, sel]);
+    for (const [state, powers, selection] of shapes) {
       for (const inputs of inputSets) {
         if (inputs.length > 0 && powers.length === 1) continue;
         for (const k of harmonics) {
           if (k > 0 && powers.length === 1) continue;
-          const s = odeStructure({ state, powers, inputs, harmonics: k, season: k > 0 ? bounds.season : null, transform, dt, periodsPerYear: ppy });
+          const s = odeStructure({ state, powers, inputs, harmonics: k, season: k > 0 ? bounds.season : null, transform, dt, periodsPerYear: ppy, selection });
           if (n - 1 < s.terms.length + 2) continue;
           out.push(s);
         }
