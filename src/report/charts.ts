@@ -1,0 +1,618 @@
+/**
+ * The charts of a certa report, each a pure function from plain data to PNG bytes.
+ *
+ * The library writes no files: callers write the returned Buffer (atomically). Time stamps are
+ * those of calendar.ts (epoch ms for calendar frequencies, the step number for `index`); values
+ * may contain NaN, drawn as gaps. All charts share the palette of palette.ts: observed in dark
+ * slate, fitted in teal, forecasts in orange with translucent interval bands, legend above the
+ * plot area so it never covers data.
+ */
+import { Chart, type ChartConfiguration, type ChartDataset, type LegendItem, type Plugin, type Scale } from 'chart.js';
+import type { Frequency } from '../data/calendar.js';
+import { sampleAutocorrelations } from '../evaluate/autocorrelation.js';
+import { axisValue, formatValueTick, tickLabelChars, timeRange, timeTicks, type AxisTick } from './chart-axis.js';
+import { font, renderChart, renderStacked, resolveSize, type ChartSize } from './chart-canvas.js';
+import { look, palette } from './palette.js';
+
+export type { ChartSize } from './chart-canvas.js';
+
+/** Texts every time chart carries. */
+export interface ChartText {
+  title: string;
+  /** A second, smaller line under the title (series name, data source...). */
+  subtitle?: string;
+  /** What the values are, for the y axis title, e.g. "units sold". */
+  valueLabel?: string;
+  /** Unit of the values, shown in brackets after `valueLabel`, e.g. "kettles / month". */
+  unit?: string;
+}
+
+/** A series on the chart's time axis. */
+export interface TimeLine {
+  time: ArrayLike<number>;
+  values: ArrayLike<number>;
+}
+
+/** Input of `historyChart`. */
+export interface HistoryChartInput extends ChartText, ChartSize {
+  frequency: Frequency;
+  time: ArrayLike<number>;
+  actual: ArrayLike<number>;
+  /** Fitted (one-step) values aligned with `time`; NaN where the model has none. */
+  fitted?: ArrayLike<number>;
+  /** Time stamp of the first holdout period: drawn as a dashed marker with the holdout shaded. */
+  holdoutStart?: number;
+}
+
+/** One prediction interval level, aligned with the forecast times. */
+export interface IntervalBand {
+  /** Nominal coverage, e.g. 0.8 or 0.95. */
+  level: number;
+  lower: ArrayLike<number>;
+  upper: ArrayLike<number>;
+}
+
+/** Input of `forecastChart`. */
+export interface ForecastChartInput extends ChartText, ChartSize {
+  frequency: Frequency;
+  history: TimeLine;
+  forecast: {
+    time: ArrayLike<number>;
+    mean: ArrayLike<number>;
+    /** Up to two levels are shaded distinctly (narrowest darkest); more reuse the lightest shade. */
+    bands?: IntervalBand[];
+  };
+}
+
+/** One set of forecasts over the holdout, e.g. fixed-origin or rolling-origin. */
+export interface HoldoutForecast {
+  label: string;
+  values: ArrayLike<number>;
+}
+
+/** Input of `holdoutChart`. */
+export interface HoldoutChartInput extends ChartText, ChartSize {
+  frequency: Frequency;
+  /** The training data shown before the holdout, for context (e.g. its last few seasons). */
+  context?: TimeLine;
+  /** Holdout time stamps, actuals and the forecasts of each method, all aligned. */
+  time: ArrayLike<number>;
+  actual: ArrayLike<number>;
+  forecasts: HoldoutForecast[];
+}
+
+/** Input of `rankingChart`. */
+export interface RankingChartInput extends ChartSize {
+  title: string;
+  subtitle?: string;
+  /** Name of the criterion, e.g. "AICc". */
+  criterion: string;
+  /** Candidates with their criterion difference from the best (Δ ≥ 0, best 0). */
+  candidates: ReadonlyArray<{ name: string; delta: number }>;
+  /** How many candidates to show, best first; default 15. */
+  top?: number;
+}
+
+/** Input of `residualChart`. */
+export interface ResidualChartInput extends ChartSize {
+  title: string;
+  subtitle?: string;
+  frequency: Frequency;
+  time: ArrayLike<number>;
+  residuals: ArrayLike<number>;
+  /** Unit of the residuals for the axis title. */
+  unit?: string;
+  /** Largest lag of the autocorrelation panel; default 2 seasons (at least 12) or 20, below n. */
+  maxLag?: number;
+  /** Season length, for the default `maxLag`. */
+  season?: number | null;
+}
+
+type Point = { x: number; y: number | null };
+/** How a dataset appears in the legend: a line sample, a filled box, or not at all. */
+type LegendStyle =
+  | { kind: 'line'; color: string; width: number; dash: number[] }
+  | { kind: 'rect'; color: string }
+  | { kind: 'none' };
+
+const NO_LEGEND: LegendStyle = { kind: 'none' };
+
+/** The legend line sample of a line dataset: its own colour, width and dash. */
+function lineLegend(ds: { borderColor?: unknown; borderWidth?: unknown; borderDash?: unknown }): LegendStyle {
+  return { kind: 'line', color: String(ds.borderColor), width: Number(ds.borderWidth ?? look.lineWidth), dash: (ds.borderDash as number[] | undefined) ?? [] };
+}
+
+function points(time: ArrayLike<number>, values: ArrayLike<number>, frequency: Frequency): Point[] {
+  if (time.length !== values.length) throw new RangeError(`chart: ${time.length} time stamps but ${values.length} values; pass aligned arrays`);
+  const out: Point[] = [];
+  for (let i = 0; i < time.length; i++) {
+    const v = values[i];
+    out.push({ x: axisValue(time[i], frequency), y: Number.isFinite(v) ? v : null });
+  }
+  return out;
+}
+
+function finiteBounds(...arrays: ArrayLike<number>[]): { first: number; last: number } {
+  let first = Number.POSITIVE_INFINITY;
+  let last = Number.NEGATIVE_INFINITY;
+  for (const a of arrays) {
+    for (let i = 0; i < a.length; i++) {
+      if (Number.isFinite(a[i])) {
+        if (a[i] < first) first = a[i];
+        if (a[i] > last) last = a[i];
+      }
+    }
+  }
+  return { first, last };
+}
+
+function axisTitle(text: string): { display: boolean; text: string; color: string; font: ReturnType<typeof font>; padding: number } {
+  return { display: text !== '', text, color: palette.mutedText, font: font(look.labelSize), padding: 4 };
+}
+
+function valueTitle(t: ChartText): string {
+  const label = t.valueLabel ?? 'value';
+  return t.unit ? `${label} (${t.unit})` : label;
+}
+
+const FREQUENCY_WORD: Record<Frequency, string> = {
+  hourly: 'hourly',
+  daily: 'daily',
+  weekly: 'weekly',
+  monthly: 'monthly',
+  quarterly: 'quarterly',
+  yearly: 'yearly',
+  index: 'step',
+};
+
+function timeTitle(f: Frequency): string {
+  return f === 'index' ? 'step' : `time (${FREQUENCY_WORD[f]} data)`;
+}
+
+/** The linear time axis with calendar ticks (see chart-axis.ts). */
+function timeScale(first: number, last: number, frequency: Frequency, width: number): Record<string, unknown> {
+  const range = timeRange(first, last, frequency);
+  const plotWidth = Math.max(100, width - 130);
+  const maxTicks = Math.floor(plotWidth / (tickLabelChars(frequency) * 7.4 + 34));
+  const ticks: AxisTick[] = timeTicks(range.from, range.to, frequency, maxTicks);
+  return {
+    type: 'linear',
+    min: range.min,
+    max: range.max,
+    afterBuildTicks: (axis: Scale) => {
+      axis.ticks = ticks.map((t) => ({ value: t.value }));
+    },
+    ticks: {
+      autoSkip: false,
+      maxRotation: 0,
+      color: palette.mutedText,
+      font: font(look.tickSize),
+      callback: (_value: unknown, index: number) => ticks[index]?.label ?? '',
+    },
+    grid: { color: palette.grid, drawTicks: true, tickLength: 4 },
+    border: { color: palette.axis },
+    title: axisTitle(timeTitle(frequency)),
+  };
+}
+
+function valueScale(title: string, extra: Record<string, unknown> = {}): Record<string, unknown> {
+  return {
+    type: 'linear',
+    grace: '4%',
+    // a common minimum width keeps stacked panels' plot areas aligned
+    afterFit: (axis: Scale) => {
+      if (axis.isHorizontal()) return;
+      axis.width = Math.max(axis.width, 78);
+    },
+    ticks: {
+      color: palette.mutedText,
+      font: font(look.tickSize),
+      maxTicksLimit: 8,
+      callback: (value: number | string, _index: number, ticks: { value: number }[]) => {
+        const v = Number(value);
+        const step = ticks.length > 1 ? Math.abs(ticks[1].value - ticks[0].value) : Math.abs(v) || 1;
+        const maxAbs = ticks.reduce((m, t) => Math.max(m, Math.abs(t.value)), 0);
+        return formatValueTick(v, step, maxAbs);
+      },
+    },
+    grid: { color: palette.grid, tickLength: 4 },
+    border: { color: palette.axis },
+    title: axisTitle(title),
+    ...extra,
+  };
+}
+
+/** Title, subtitle, legend (above the plot; legend styles by dataset), no tooltips. */
+function frame(title: string, subtitle: string | undefined, styles: LegendStyle[]): Record<string, unknown> {
+  return {
+    title: {
+      display: true,
+      text: title,
+      align: 'start',
+      color: palette.text,
+      font: font(look.titleSize, 'bold'),
+      padding: { top: 4, bottom: subtitle ? 2 : 8 },
+    },
+    subtitle: {
+      display: subtitle !== undefined && subtitle !== '',
+      text: subtitle ?? '',
+      align: 'start',
+      color: palette.mutedText,
+      font: font(look.subtitleSize),
+      padding: { top: 0, bottom: 8 },
+    },
+    legend: {
+      display: styles.some((s) => s.kind !== 'none'),
+      position: 'top',
+      align: 'end',
+      labels: {
+        color: palette.text,
+        font: font(look.legendSize),
+        usePointStyle: true,
+        pointStyleWidth: 26,
+        boxHeight: 10,
+        padding: 14,
+        generateLabels: (chart: Chart): LegendItem[] => {
+          const items: LegendItem[] = [];
+          styles.forEach((style, datasetIndex) => {
+            if (style.kind === 'none') return;
+            const text = String(chart.data.datasets[datasetIndex]?.label ?? '');
+            if (style.kind === 'rect') {
+              items.push({ text, datasetIndex, fillStyle: style.color, strokeStyle: style.color, lineWidth: 0, pointStyle: 'rect', hidden: false });
+            } else {
+              items.push({ text, datasetIndex, fillStyle: style.color, strokeStyle: style.color, lineWidth: style.width, lineDash: style.dash, pointStyle: 'line', hidden: false });
+            }
+          });
+          return items;
+        },
+      },
+    },
+    tooltip: { enabled: false },
+  };
+}
+
+const LAYOUT = { padding: { left: 10, right: 22, top: 8, bottom: 6 } };
+
+/** Dashed vertical marker at axis value `x` with a small label, the region after it shaded. */
+function markerPlugin(x: number | null, label: string, shade: boolean): Plugin {
+  return {
+    id: 'certaMarker',
+    beforeDatasetsDraw(chart) {
+      if (x === null || !Number.isFinite(x)) return;
+      const scale = chart.scales.x;
+      const area = chart.chartArea;
+      const px = scale.getPixelForValue(x);
+      if (px < area.left || px > area.right) return;
+      const ctx = chart.ctx;
+      ctx.save();
+      if (shade) {
+        ctx.fillStyle = palette.holdoutShade;
+        ctx.fillRect(px, area.top, area.right - px, area.bottom - area.top);
+      }
+      ctx.strokeStyle = palette.marker;
+      ctx.lineWidth = 1.25;
+      ctx.setLineDash([5, 4]);
+      ctx.beginPath();
+      ctx.moveTo(px, area.top);
+      ctx.lineTo(px, area.bottom);
+      ctx.stroke();
+      ctx.setLineDash([]);
+      const f = font(look.tickSize);
+      ctx.font = `${f.size}px ${f.family}`;
+      ctx.fillStyle = palette.mutedText;
+      ctx.textBaseline = 'top';
+      const textWidth = ctx.measureText(label).width;
+      const room = area.right - px;
+      if (room >= textWidth + 10) {
+        ctx.textAlign = 'left';
+        ctx.fillText(label, px + 5, area.top + 4);
+      } else {
+        ctx.textAlign = 'right';
+        ctx.fillText(label, px - 5, area.top + 4);
+      }
+      ctx.restore();
+    },
+  };
+}
+
+function lineDataset(label: string, data: Point[], color: string, options: { width?: number; dash?: number[]; points?: boolean; order?: number } = {}): ChartDataset<'line', Point[]> {
+  return {
+    label,
+    data,
+    borderColor: color,
+    backgroundColor: color,
+    borderWidth: options.width ?? look.lineWidth,
+    borderDash: options.dash ?? [],
+    pointRadius: options.points ? look.pointRadius : 0,
+    pointBorderWidth: 0,
+    pointBackgroundColor: color,
+    fill: false,
+    tension: 0,
+    spanGaps: false,
+    order: options.order ?? 0,
+  };
+}
+
+function showPoints(n: number): boolean {
+  return n <= 48;
+}
+
+/**
+ * History with fitted values: the observed series in slate, the fitted values in dashed teal,
+ * optionally a dashed marker at the start of the holdout with the holdout period shaded.
+ */
+export function historyChart(input: HistoryChartInput): Buffer {
+  const { width, height } = resolveSize(input);
+  const f = input.frequency;
+  const n = input.time.length;
+  const datasets: ChartDataset<'line', Point[]>[] = [lineDataset('observed', points(input.time, input.actual, f), palette.observed, { points: showPoints(n), order: 1 })];
+  if (input.fitted !== undefined) {
+    datasets.push(lineDataset('fitted', points(input.time, input.fitted, f), palette.fitted, { dash: [7, 4], order: 0 }));
+  }
+  const styles = datasets.map(lineLegend);
+  const { first, last } = finiteBounds(input.time);
+  const marker = input.holdoutStart === undefined ? null : axisValue(input.holdoutStart, f);
+  const config: ChartConfiguration = {
+    type: 'line',
+    data: { datasets },
+    options: {
+      layout: LAYOUT,
+      plugins: frame(input.title, input.subtitle, styles),
+      scales: { x: timeScale(first, last, f, width), y: valueScale(valueTitle(input)) },
+    },
+    plugins: [markerPlugin(marker, 'holdout', true)],
+  } as ChartConfiguration;
+  return renderChart(config, width, height);
+}
+
+function levelText(level: number): string {
+  return `${Math.round(level * 1000) / 10} % interval`;
+}
+
+/**
+ * Forecast after the history: observed in slate, the point forecast in orange (joined to the
+ * last observation), interval bands shaded in translucent orange, narrowest level darkest.
+ */
+export function forecastChart(input: ForecastChartInput): Buffer {
+  const { width, height } = resolveSize(input);
+  const f = input.frequency;
+  const hist = points(input.history.time, input.history.values, f);
+  const fc = points(input.forecast.time, input.forecast.mean, f);
+  let anchor: Point | null = null;
+  for (let i = hist.length - 1; i >= 0; i--) {
+    if (hist[i].y !== null) {
+      anchor = hist[i];
+      break;
+    }
+  }
+  const forecastLine = anchor !== null && fc.length > 0 && anchor.x < fc[0].x ? [anchor, ...fc] : fc;
+  const datasets: ChartDataset<'line', Point[]>[] = [
+    lineDataset('observed', hist, palette.observed, { points: showPoints(hist.length), order: 1 }),
+    lineDataset('forecast', forecastLine, palette.forecast, { points: showPoints(fc.length) && fc.length > 1, order: 0 }),
+  ];
+  const styles: LegendStyle[] = datasets.map(lineLegend);
+  const bands = [...(input.forecast.bands ?? [])].sort((a, b) => a.level - b.level);
+  bands.forEach((band, i) => {
+    const color = palette.bands[Math.min(i, palette.bands.length - 1)];
+    const upper = points(input.forecast.time, band.upper, f);
+    const lower = points(input.forecast.time, band.lower, f);
+    const order = 10 + i;
+    datasets.push({ ...lineDataset(levelText(band.level), upper, color, { width: 0, order }), backgroundColor: color, fill: '+1' });
+    datasets.push({ ...lineDataset('', lower, color, { width: 0, order }), fill: false });
+    styles.push({ kind: 'rect', color }, NO_LEGEND);
+  });
+  const { first, last } = finiteBounds(input.history.time, input.forecast.time);
+  const config: ChartConfiguration = {
+    type: 'line',
+    data: { datasets },
+    options: {
+      layout: LAYOUT,
+      plugins: { ...frame(input.title, input.subtitle, styles), filler: { propagate: false } },
+      scales: { x: timeScale(first, last, f, width), y: valueScale(valueTitle(input)) },
+    },
+  } as ChartConfiguration;
+  return renderChart(config, width, height);
+}
+
+/**
+ * Holdout actuals against forecasts: training context in thin slate, holdout actuals in slate
+ * with points, each forecast (e.g. fixed origin, rolling origin) in its own colour and dash, a
+ * marker at the start of the holdout.
+ */
+export function holdoutChart(input: HoldoutChartInput): Buffer {
+  const { width, height } = resolveSize(input);
+  const f = input.frequency;
+  const datasets: ChartDataset<'line', Point[]>[] = [];
+  if (input.context !== undefined) {
+    datasets.push(lineDataset('observed (training)', points(input.context.time, input.context.values, f), palette.marker, { width: look.thinLineWidth, order: 3 }));
+  }
+  datasets.push(lineDataset('observed (holdout)', points(input.time, input.actual, f), palette.observed, { points: true, order: 2 }));
+  const dashes = [[], [7, 4], [2, 3], [10, 3, 2, 3]];
+  input.forecasts.forEach((fcast, i) => {
+    const color = palette.cycle[i % palette.cycle.length];
+    datasets.push(lineDataset(fcast.label, points(input.time, fcast.values, f), color, { dash: dashes[i % dashes.length], points: showPoints(input.time.length), order: 0 }));
+  });
+  const styles = datasets.map(lineLegend);
+  const { first, last } = finiteBounds(input.context?.time ?? [], input.time);
+  const marker = input.context !== undefined && input.time.length > 0 ? axisValue(input.time[0], f) : null;
+  const config: ChartConfiguration = {
+    type: 'line',
+    data: { datasets },
+    options: {
+      layout: LAYOUT,
+      plugins: frame(input.title, input.subtitle, styles),
+      scales: { x: timeScale(first, last, f, width), y: valueScale(valueTitle(input)) },
+    },
+    plugins: [markerPlugin(marker, 'holdout', true)],
+  } as ChartConfiguration;
+  return renderChart(config, width, height);
+}
+
+function shorten(name: string, max: number): string {
+  return name.length > max ? `${name.slice(0, max - 1)}…` : name;
+}
+
+function deltaText(d: number): string {
+  return d === 0 ? '0 (best)' : `+${d < 10 ? d.toFixed(2) : d < 100 ? d.toFixed(1) : d.toFixed(0)}`;
+}
+
+/**
+ * Ranking of candidates: horizontal bars of Δcriterion (difference from the best candidate),
+ * best at the top in orange, the rest in teal, each bar labelled with its Δ. Candidates with a
+ * non-finite Δ are left out and counted in the subtitle.
+ */
+export function rankingChart(input: RankingChartInput): Buffer {
+  const { width, height } = resolveSize(input);
+  const top = input.top ?? 15;
+  if (!Number.isInteger(top) || top < 1) throw new RangeError(`rankingChart: top must be an integer ≥ 1, got ${top}`);
+  const finite = input.candidates.map((c, i) => ({ ...c, i })).filter((c) => Number.isFinite(c.delta));
+  finite.sort((a, b) => a.delta - b.delta || a.i - b.i);
+  const shown = finite.slice(0, top);
+  const notes: string[] = [];
+  if (input.subtitle) notes.push(input.subtitle);
+  if (finite.length > shown.length) notes.push(`best ${shown.length} of ${finite.length} candidates`);
+  const dropped = input.candidates.length - finite.length;
+  if (dropped > 0) notes.push(`${dropped} without a finite score not shown`);
+  const bestDelta = shown.length > 0 ? shown[0].delta : 0;
+  const maxDelta = shown.reduce((m, c) => Math.max(m, c.delta), 0);
+  const valueLabels: Plugin = {
+    id: 'certaBarValues',
+    afterDatasetsDraw(chart) {
+      const meta = chart.getDatasetMeta(0);
+      const ctx = chart.ctx;
+      ctx.save();
+      const f = font(look.tickSize);
+      ctx.font = `${f.size}px ${f.family}`;
+      ctx.fillStyle = palette.text;
+      ctx.textBaseline = 'middle';
+      ctx.textAlign = 'left';
+      meta.data.forEach((bar, i) => {
+        const { x, y } = bar.getProps(['x', 'y'], true) as { x: number; y: number };
+        ctx.fillText(deltaText(shown[i].delta), x + 6, y);
+      });
+      ctx.restore();
+    },
+  };
+  const config: ChartConfiguration = {
+    type: 'bar',
+    data: {
+      labels: shown.map((c) => shorten(c.name, 56)),
+      datasets: [
+        {
+          label: `Δ${input.criterion}`,
+          data: shown.map((c) => c.delta),
+          backgroundColor: shown.map((c) => (c.delta === bestDelta ? palette.bestBar : palette.bar)),
+          borderWidth: 0,
+          minBarLength: 4,
+          barPercentage: 0.78,
+          categoryPercentage: 0.9,
+        },
+      ],
+    },
+    options: {
+      indexAxis: 'y',
+      layout: { padding: { left: 10, right: 30, top: 8, bottom: 6 } },
+      plugins: frame(input.title, notes.join(' · '), [NO_LEGEND]),
+      scales: {
+        x: valueScale(`Δ${input.criterion} (difference from the best candidate; lower is better)`, {
+          min: 0,
+          suggestedMax: maxDelta > 0 ? maxDelta * 1.14 : 1,
+          grace: 0,
+        }),
+        y: {
+          type: 'category',
+          grid: { display: false },
+          border: { color: palette.axis },
+          ticks: { color: palette.text, font: font(look.tickSize), autoSkip: false },
+        },
+      },
+    },
+    plugins: [valueLabels],
+  } as ChartConfiguration;
+  return renderChart(config, width, height);
+}
+
+/** The default largest lag of the residual autocorrelation panel. */
+function defaultMaxLag(n: number, season: number | null | undefined): number {
+  const wanted = season ? Math.max(12, 2 * season) : 20;
+  return Math.max(0, Math.min(wanted, 48, n - 1));
+}
+
+/**
+ * Residual diagnostics in one image of two panels: the residuals over time with a zero line
+ * (top), and their sample autocorrelations r_1 … r_L as bars with the approximate 95 % bounds
+ * ±1.96/√n of white noise, n the number of finite residuals (bottom).
+ * Autocorrelations: `sampleAutocorrelations` (missing residuals skipped pairwise). The bounds:
+ * Box, Jenkins, Reinsel & Ljung, "Time Series Analysis", 5th ed. (2015), section 2.1.6
+ * (standard error 1/√n of r_k for white noise).
+ */
+export function residualChart(input: ResidualChartInput): Buffer {
+  const { width, height } = resolveSize(input, 760);
+  const f = input.frequency;
+  const res = points(input.time, input.residuals, f);
+  let n = 0;
+  for (let i = 0; i < input.residuals.length; i++) if (Number.isFinite(input.residuals[i])) n++;
+  const maxLag = input.maxLag ?? defaultMaxLag(input.residuals.length, input.season);
+  if (!Number.isInteger(maxLag) || maxLag < 0) throw new RangeError(`residualChart: maxLag must be an integer ≥ 0, got ${maxLag}`);
+  const acf = sampleAutocorrelations(input.residuals, maxLag);
+  const bound = n > 0 ? 1.96 / Math.sqrt(n) : Number.NaN;
+  const { first, last } = finiteBounds(input.time);
+  const range = timeRange(first, last, f);
+  const zero = [{ x: range.min, y: 0 }, { x: range.max, y: 0 }];
+  const topHeight = Math.round(height * 0.54);
+  const residualLine = lineDataset('residual (observed − fitted)', res, palette.observed, { width: look.thinLineWidth, points: true, order: 0 });
+  const top: ChartConfiguration = {
+    type: 'line',
+    data: { datasets: [residualLine, lineDataset('', zero, palette.axis, { width: 1, order: 1 })] },
+    options: {
+      layout: LAYOUT,
+      plugins: frame(input.title, input.subtitle, [lineLegend(residualLine), NO_LEGEND]),
+      scales: { x: timeScale(first, last, f, width), y: valueScale(input.unit ? `residual (${input.unit})` : 'residual') },
+    },
+  } as ChartConfiguration;
+  const lags = Array.from({ length: maxLag }, (_, k) => String(k + 1));
+  const finiteAcf = Array.from(acf, (r) => (Number.isFinite(r) ? r : null));
+  const boundLine = (sign: number) => ({
+    type: 'line' as const,
+    label: sign > 0 ? '±1.96/√n' : '',
+    data: lags.map(() => (Number.isFinite(bound) ? sign * bound : null)),
+    borderColor: palette.bound,
+    backgroundColor: palette.bound,
+    borderWidth: 1.25,
+    borderDash: [6, 4],
+    pointRadius: 0,
+    fill: false,
+    order: 0,
+  });
+  const span = Number.isFinite(bound) ? bound * 1.6 : 0.5;
+  const bottom: ChartConfiguration = {
+    type: 'bar',
+    data: {
+      labels: lags,
+      datasets: [
+        { type: 'bar', label: 'autocorrelation', data: finiteAcf, backgroundColor: palette.fitted, borderWidth: 0, barPercentage: 0.6, order: 1 },
+        boundLine(1),
+        boundLine(-1),
+      ],
+    },
+    options: {
+      layout: LAYOUT,
+      plugins: frame('Autocorrelation of the residuals', `n = ${n} residuals, lags 1–${maxLag}`, [
+        { kind: 'rect', color: palette.fitted },
+        lineLegend(boundLine(1)),
+        NO_LEGEND,
+      ]),
+      scales: {
+        x: {
+          type: 'category',
+          grid: { display: false },
+          border: { color: palette.axis },
+          ticks: { color: palette.mutedText, font: font(look.tickSize), autoSkip: true, maxRotation: 0 },
+          title: axisTitle('lag (periods)'),
+        },
+        y: valueScale('autocorrelation', { suggestedMin: -span, suggestedMax: span, grace: 0 }),
+      },
+    },
+  } as ChartConfiguration;
+  return renderStacked([{ config: top, height: topHeight }, { config: bottom, height: height - topHeight }], width);
+}
