@@ -1,0 +1,357 @@
+/**
+ * `certa search <file>`: the structure search on each series of a file. Prints the ranking (the
+ * best `--top` candidates) with the winner's equation, derived quantities and whiteness check,
+ * or the same as one JSON document with `--json`; writes `candidates.csv` (every candidate, the
+ * failed ones with their reason) and the winner as `model.json` into the output folder.
+ *
+ * Output folder: `--out` (default `output/<series name>`). When the file holds several series
+ * each gets `<out>/<series name>` (default `output/<series name>`). Files are replaced
+ * atomically (store/atomic.ts, store/model-file.ts).
+ */
+import type { Command } from 'commander';
+import { join } from 'node:path';
+import { z } from 'zod';
+import { UsageError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import { familyNames } from '../models/registry.js';
+import { search, SEARCH_DEFAULTS, type CandidateResult, type SearchOptions, type SearchResult } from '../select/search.js';
+import { toCsv, type Cell } from '../report/tables.js';
+import { writeFileAtomic } from '../store/atomic.js';
+import { writeModelFile, MODEL_FORMAT, MODEL_VERSION } from '../store/model-file.js';
+import { modelBody } from '../store/asserted.js';
+import { Learner } from '../forecast/online.js';
+import { addDataOptions, loadSeriesFromCli } from './data-options.js';
+import type { CliIO } from './main.js';
+
+const switchValue = (option: string) => z.enum(['on', 'off', 'auto'], { message: `${option}|on, off or auto` });
+const wholeNumber = (option: string) =>
+  z
+    .string()
+    .regex(/^\d+$/, { message: `${option}|a whole number ≥ 0` })
+    .transform(Number);
+
+const optionsSchema = z.object({
+  maxAr: wholeNumber('--max-ar').optional(),
+  maxInputLags: wholeNumber('--max-input-lags').optional(),
+  maxDelay: wholeNumber('--max-delay').optional(),
+  harmonics: z
+    .string()
+    .regex(/^(\d+|auto)$/, { message: '--harmonics|a whole number or auto' })
+    .transform((v) => (v === 'auto' ? ('auto' as const) : Number(v)))
+    .optional(),
+  families: z
+    .string()
+    .transform((v) => v.split(',').map((s) => s.trim()))
+    .refine((list) => list.every((f) => familyNames().includes(f)), { message: `--families|a comma-separated list of ${familyNames().join(', ')}` })
+    .optional(),
+  transform: z.enum(['auto', 'none', 'log'], { message: '--transform|auto, none or log' }).optional(),
+  criterion: z.enum(['aicc', 'aic', 'bic'], { message: '--criterion|aicc, aic or bic' }).optional(),
+  trend: switchValue('--trend').optional(),
+  seasonalLag: switchValue('--seasonal-lag').optional(),
+  differencing: z.enum(['none', 'first', 'seasonal', 'auto'], { message: '--differencing|none, first, seasonal or auto' }).optional(),
+  top: z
+    .string()
+    .regex(/^[1-9]\d*$/, { message: '--top|a whole number ≥ 1' })
+    .transform(Number)
+    .optional(),
+  out: z.string().min(1, { message: '--out|a folder path' }).optional(),
+  json: z.boolean().optional(),
+});
+
+const OPTION_NAMES: Record<string, string> = {
+  maxAr: '--max-ar',
+  maxInputLags: '--max-input-lags',
+  maxDelay: '--max-delay',
+  harmonics: '--harmonics',
+  families: '--families',
+  transform: '--transform',
+  criterion: '--criterion',
+  trend: '--trend',
+  seasonalLag: '--seasonal-lag',
+  differencing: '--differencing',
+  top: '--top',
+  out: '--out',
+};
+
+interface CliSearchOptions {
+  search: SearchOptions;
+  top: number;
+  out?: string;
+  json: boolean;
+}
+
+/** Checks the search options of the command line (a zod schema); UsageError naming the option. */
+export function parseSearchOptions(opts: Record<string, unknown>): CliSearchOptions {
+  const picked: Record<string, unknown> = {};
+  for (const key of Object.keys(optionsSchema.shape)) if (opts[key] !== undefined) picked[key] = opts[key];
+  const result = optionsSchema.safeParse(picked);
+  if (!result.success) {
+    const issue = result.error.issues[0];
+    const key = String(issue.path[0]);
+    const [option, expected] = issue.message.includes('|') ? issue.message.split('|') : [OPTION_NAMES[key] ?? `--${key}`, issue.message];
+    throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(picked[key]), expected });
+  }
+  const o = result.data;
+  const s: SearchOptions = {};
+  if (o.maxAr !== undefined) s.maxAr = o.maxAr;
+  if (o.maxInputLags !== undefined) s.maxInputLags = o.maxInputLags;
+  if (o.maxDelay !== undefined) s.maxDelay = o.maxDelay;
+  if (o.harmonics !== undefined) s.harmonics = o.harmonics;
+  if (o.families !== undefined) s.families = o.families;
+  if (o.transform !== undefined) s.transform = o.transform;
+  if (o.criterion !== undefined) s.criterion = o.criterion;
+  if (o.trend !== undefined) s.trend = o.trend;
+  if (o.seasonalLag !== undefined) s.seasonalLag = o.seasonalLag;
+  if (o.differencing !== undefined) s.differencing = o.differencing;
+  return { search: s, top: o.top ?? 10, ...(o.out !== undefined ? { out: o.out } : {}), json: o.json ?? false };
+}
+
+export function register(program: Command, io: CliIO): void {
+  const d = SEARCH_DEFAULTS;
+  const command = program
+    .command('search')
+    .description('search model structures for each series of a file, rank them and save the winner')
+    .argument('<file>', 'CSV, TSV, XLSX or JSON file, or - for standard input')
+    .option('--max-ar <n>', `largest number of AR lags (default ${d.maxAr})`)
+    .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
+    .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
+    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
+    .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
+    .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
+    .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')
+    .option('--trend <how>', 'linear trend term: on, off or auto (default auto: with and without)')
+    .option('--seasonal-lag <how>', 'seasonal lag y[t-s]: on, off or auto (default off)')
+    .option('--differencing <how>', 'none, first, seasonal or auto (default none)')
+    .option('--top <n>', 'how many candidates to show (default 10)')
+    .option('--out <folder>', 'where to write candidates.csv and model.json (default output/<series>)')
+    .option('--json', 'print a JSON document instead of text');
+  addDataOptions(command);
+  command.action(async (file: string, opts: Record<string, unknown>) => {
+    const cli = parseSearchOptions(opts);
+    const { series } = await loadSeriesFromCli(file, opts, io);
+    const docs: SearchDocument[] = [];
+    const texts: string[] = [];
+    for (const s of series) {
+      const result = search(s, cli.search);
+      const folder = outputFolder(s, series.length, cli.out);
+      const written = await writeOutputs(result, s, folder);
+      const doc = searchDocument(result, cli.top, written);
+      docs.push(doc);
+      texts.push(renderText(doc));
+    }
+    io.out(cli.json ? `${JSON.stringify(docs.length === 1 ? docs[0] : docs, null, 2)}\n` : texts.join('\n'));
+  });
+  program.addHelpText('after', '\nFind the equation behind a series:\n  certa search datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
+}
+
+function outputFolder(s: Series, count: number, out: string | undefined): string {
+  const safe = s.name.replace(/[^\p{L}\p{N}._-]+/gu, '_') || 'series';
+  if (out === undefined) return join('output', safe);
+  return count > 1 ? join(out, safe) : out;
+}
+
+/** The candidates.csv columns, one row per candidate (fitted ones by rank, then failed ones). */
+export const CANDIDATE_COLUMNS = [
+  'rank', 'status', 'key', 'family', 'structure', 'criterion', 'score', 'delta', 'weight',
+  'aicc', 'aic', 'bic', 'loglik', 'rss', 'k', 'n', 'first', 'last', 'reason',
+];
+
+export function candidatesCsv(result: SearchResult): string {
+  const rows: Cell[][] = result.ranking.map((c) => [
+    c.rank,
+    c.status,
+    c.key,
+    c.family,
+    c.label,
+    result.criterion,
+    c.score,
+    c.delta,
+    c.weight,
+    c.aicc,
+    c.aic,
+    c.bic,
+    c.logLik,
+    c.rss,
+    c.k,
+    c.n,
+    result.sample.start,
+    result.sample.end,
+    c.reason ?? null,
+  ]);
+  return toCsv(CANDIDATE_COLUMNS, rows);
+}
+
+interface Written {
+  candidates: string;
+  model: string;
+}
+
+async function writeOutputs(result: SearchResult, series: Series, folder: string): Promise<Written> {
+  const candidates = join(folder, 'candidates.csv');
+  const model = join(folder, 'model.json');
+  await writeFileAtomic(candidates, candidatesCsv(result), { mkdir: true });
+  const w = result.winner;
+  const learner = Learner.start(w.structure, w.estimate.active, series, result.sample.from, result.sample.to);
+  const body = modelBody({ structure: w.structure, learner, se: w.estimate.se }, series, {
+    criterion: result.criterion,
+    criterionValue: w.result.score,
+    now: new Date().toISOString(),
+    meta: {
+      search: {
+        label: w.result.label,
+        key: w.result.key,
+        equation: w.equation,
+        sample: result.sample,
+        cov: Array.from(w.estimate.cov),
+        rank: w.estimate.rank,
+        condition: w.estimate.condition,
+        derived: w.derived,
+        whiteness: { q: w.whiteness.q, dof: w.whiteness.dof, lags: w.whiteness.lags, p: w.whiteness.pValue, white: w.whiteness.white },
+        candidates: { fitted: result.fitted, failed: result.failed },
+      },
+    },
+  });
+  await writeModelFile(model, body, { mkdir: true });
+  return { candidates, model };
+}
+
+interface RankingRow {
+  rank: number | null;
+  structure: string;
+  key: string;
+  family: string;
+  score: number | null;
+  delta: number | null;
+  weight: number;
+  aicc: number | null;
+  aic: number | null;
+  bic: number | null;
+  rss: number | null;
+  k: number;
+  n: number;
+}
+
+/** What `certa search --json` prints for one series, keys in the order they are printed. */
+export interface SearchDocument {
+  series: SearchResult['series'];
+  criterion: string;
+  sample: SearchResult['sample'];
+  candidates: { total: number; fitted: number; failed: number };
+  ranking: RankingRow[];
+  winner: {
+    structure: string;
+    key: string;
+    spec: unknown;
+    terms: string[];
+    theta: number[];
+    se: number[];
+    sigma2: number;
+    equation: string;
+    derived: { name: string; value: number | string | boolean; unit: string | null }[];
+    whiteness: { q: number; dof: number; lags: number; p: number; white: boolean };
+  };
+  failed: { structure: string; key: string; reason: string }[];
+  warnings: string[];
+  files: { candidates: string; model: string; format: string; version: number };
+}
+
+const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
+
+function rankingRow(c: CandidateResult): RankingRow {
+  return {
+    rank: c.rank,
+    structure: c.label,
+    key: c.key,
+    family: c.family,
+    score: finiteOrNull(c.score),
+    delta: finiteOrNull(c.delta),
+    weight: c.weight,
+    aicc: finiteOrNull(c.aicc),
+    aic: finiteOrNull(c.aic),
+    bic: finiteOrNull(c.bic),
+    rss: finiteOrNull(c.rss),
+    k: c.k,
+    n: c.n,
+  };
+}
+
+export function searchDocument(result: SearchResult, top: number, files: Written): SearchDocument {
+  const w = result.winner;
+  return {
+    series: result.series,
+    criterion: result.criterion,
+    sample: result.sample,
+    candidates: { total: result.ranking.length, fitted: result.fitted, failed: result.failed },
+    ranking: result.ranking.slice(0, Math.min(top, result.fitted)).map(rankingRow),
+    winner: {
+      structure: w.result.label,
+      key: w.result.key,
+      spec: w.structure.spec,
+      terms: [...w.structure.terms],
+      theta: Array.from(w.estimate.theta),
+      se: Array.from(w.estimate.se),
+      sigma2: w.estimate.sigma2,
+      equation: w.equation,
+      derived: w.derived.map((d) => ({ name: d.name, value: typeof d.value === 'number' ? (finiteOrNull(d.value) ?? String(d.value)) : d.value, unit: d.unit ?? null })),
+      whiteness: { q: w.whiteness.q, dof: w.whiteness.dof, lags: w.whiteness.lags, p: w.whiteness.pValue, white: w.whiteness.white },
+    },
+    failed: result.ranking.filter((c) => c.status === 'failed').map((c) => ({ structure: c.label, key: c.key, reason: c.reason ?? '' })),
+    warnings: result.warnings,
+    files: { ...files, format: MODEL_FORMAT, version: MODEL_VERSION },
+  };
+}
+
+/** Numbers for people: up to 4 significant digits (6 for large magnitudes), no exponent below 1e6. */
+function num(v: number | null, digits = 4): string {
+  if (v === null) return '—';
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  if (a >= 1e6 || a < 1e-4) return v.toExponential(2);
+  if (a >= 10 ** digits) return v.toFixed(0);
+  return String(Number(v.toPrecision(digits)));
+}
+
+function fixed(v: number | null, places: number): string {
+  return v === null ? '—' : v.toFixed(places);
+}
+
+const CRITERION_LABEL: Record<string, string> = { aicc: 'AICc', aic: 'AIC', bic: 'BIC' };
+
+export function renderText(doc: SearchDocument): string {
+  const out: string[] = [];
+  const s = doc.series;
+  const crit = CRITERION_LABEL[doc.criterion] ?? doc.criterion;
+  out.push(`series "${s.name}" (${s.frequency}, ${s.length} points${s.inputs.length > 0 ? `; inputs ${s.inputs.join(', ')}` : ''})`);
+  out.push(`sample ${doc.sample.start} to ${doc.sample.end}: ${doc.sample.n} one-step errors, the same for every candidate`);
+  out.push(`${doc.candidates.fitted} of ${doc.candidates.total} candidates fitted${doc.candidates.failed > 0 ? ` (${doc.candidates.failed} could not be: reasons in candidates.csv)` : ''}`);
+  out.push('');
+  const header = ['rank', crit, `Δ${crit}`, 'weight', 'k', 'RSS', 'structure'];
+  const rows = doc.ranking.map((r) => [String(r.rank), fixed(r.score, 2), fixed(r.delta, 2), fixed(r.weight, 3), String(r.k), num(r.rss), r.structure]);
+  const widths = header.map((h, j) => Math.max(h.length, ...rows.map((r) => r[j].length)));
+  const line = (cells: string[]) =>
+    cells
+      .map((c, j) => (j === cells.length - 1 ? c : c.padStart(widths[j])))
+      .join('  ')
+      .trimEnd();
+  out.push(line(header));
+  for (const r of rows) out.push(line(r));
+  out.push('');
+  const w = doc.winner;
+  out.push(`winner: ${w.structure}`);
+  out.push(`  ${w.equation}`);
+  for (const d of w.derived) {
+    const value = typeof d.value === 'boolean' ? (d.value ? 'yes' : 'no') : typeof d.value === 'number' ? num(d.value) : d.value;
+    out.push(`  ${d.name}: ${value}${d.unit ? ` ${d.unit}` : ''}`);
+  }
+  const wh = w.whiteness;
+  out.push(`  residuals: Ljung–Box Q = ${num(wh.q)} on ${wh.dof} dof (${wh.lags} lags), p = ${num(wh.p, 2)}: ${wh.white ? 'no evidence against white noise' : 'NOT white'}`);
+  if (doc.warnings.length > 0) {
+    out.push('');
+    out.push('warnings');
+    for (const x of doc.warnings) out.push(`  - ${x}`);
+  }
+  out.push('');
+  out.push(`wrote ${doc.files.candidates}`);
+  out.push(`wrote ${doc.files.model}`);
+  return `${out.join('\n')}\n`;
+}
