@@ -74,11 +74,15 @@ export interface OdeSpec extends StructureSpec {
   dt: number | null;
   /** Base periods per year, for per-year rates in descriptions; null = unknown (index series). */
   periodsPerYear: number | null;
-  /** RK4 steps per sampling interval. */
+  /** RK4 steps per sampling interval (raised automatically for fast dynamics, see `substeps()`). */
   substeps: number;
   /** Dense least squares, or sequential thresholded least squares on the library. */
   selection: OdeSelection;
-  /** Cumulative state before the first observation (X before period 0); 0 = the series starts at launch. */
+  /**
+   * Cumulative state before the first observation (X before period 0); 0 = the series starts at
+   * launch. It cannot be estimated: a quadratic in X is also a quadratic in X − X_0, so with the
+   * wrong X_0 the fit is the same but m, p and q describe a diffusion launched at the series start.
+   */
   initialCumulative: number;
 }
 
@@ -370,6 +374,21 @@ class OdeStructure implements Structure {
   }
 
   /**
+   * RK4 steps for one sampling interval from state x: `spec.substeps`, raised when needed so
+   * that h·|∂f/∂x| ≤ 1 at the start of the interval (h = dt/steps), well inside classical RK4's
+   * real stability interval |hλ| < 2.78 (Hairer & Wanner, "Solving Ordinary Differential
+   * Equations II", 2nd ed. 1996, §IV.2). Capped at 10 000 steps.
+   */
+  private substeps(theta: Float64Array, x: number, dt: number): number {
+    let slope = 0;
+    this.spec.powers.forEach((p, k) => {
+      if (p >= 1) slope += p * theta[k] * x ** (p - 1);
+    });
+    const need = Math.ceil(Math.abs(slope) * dt);
+    return Number.isFinite(need) ? Math.min(10_000, Math.max(this.spec.substeps, need)) : this.spec.substeps;
+  }
+
+  /**
    * The right-hand side f(τ, x) over one sampling interval [τa, τa + dt], inputs linearly
    * interpolated from ua (at τa) to ub (at τa + dt).
    */
@@ -452,7 +471,7 @@ class OdeStructure implements Structure {
         ub[k] = cols[k][t];
       }
       const tauA = this.tau(t - 1, dt);
-      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, x[t - 1], dt, this.spec.substeps);
+      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, x[t - 1], dt, this.substeps(theta, x[t - 1], dt));
       const yhat = this.spec.state === 'level' ? next : next - x[t - 1];
       out[t - from] = this.spec.transform === 'log' ? Math.log(yhat) : yhat;
     }
@@ -483,7 +502,7 @@ class OdeStructure implements Structure {
     for (let j = 0; j < h; j++) {
       for (let k = 0; k < cols.length; k++) ub[k] = future[idx[k]][j];
       const tauA = this.tau(n - 1 + j, dt);
-      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, state, dt, this.spec.substeps);
+      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, state, dt, this.substeps(theta, state, dt));
       let yhat = this.spec.state === 'level' ? next : next - state;
       if (shocks) yhat = this.spec.transform === 'log' ? Math.exp(Math.log(yhat) + shocks[j]) : yhat + shocks[j];
       out[j] = yhat;

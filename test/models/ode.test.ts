@@ -223,6 +223,12 @@ describe('simulate and oneStep', () => {
     }
   });
 
+  it('raises the RK4 step count for fast dynamics: dy/dt = 150 − 30·y from 0 reaches 5·(1 − e^{−30t}) (analytic), not an RK4 blow-up', () => {
+    const s = odeStructure({ powers: [0, 1], dt: 1, substeps: 8 });
+    const path = s.simulate(Float64Array.of(150, -30), indexed([0]), [], 3);
+    for (let h = 1; h <= 3; h++) expect(path[h - 1]).toBeCloseTo(5 * (1 - Math.exp(-30 * h)), 6);
+  });
+
   it('simulate adds each shock to the one-step prediction and continues from the shocked value', () => {
     const s = odeStructure({ powers: [0, 1] });
     const theta = Float64Array.of(1, -0.1);
