@@ -7,7 +7,8 @@
  * - level, only c1:               exponential growth, rate r = c1, doubling time ln 2 / r;
  * - level, c2 = c3 = 0:           forced linear relaxation dy/dτ = a + b·y + Σ c_j u_j:
  *                                 equilibrium −(a + Σ c_j u_j)/b, time constant −1/b, gain −c_j/b
- *                                 (first-order lag; Ljung, "System Identification", 2nd ed. 1999, §2.1);
+ *                                 (first-order lag; Ljung, "System Identification", 2nd ed. 1999,
+ *                                 §2.1, section from memory);
  * - level, c0 = c3 = 0, c2 ≠ 0:   logistic dy/dτ = r·y − (r/K)·y²: r = c1, K = −c1/c2 (Verhulst
  *                                 1838; Pearl & Reed 1920); inflection when y = K/2, at
  *                                 τ* = τ_0 + ln((K − y_0)/y_0)/r from the closed form

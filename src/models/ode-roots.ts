@@ -13,7 +13,7 @@ import { modulus, polynomialRoots } from './roots.js';
  * - degree 1: x = −c0/c1;
  * - degree 2: the cancellation-free form q = −½(c1 + sgn(c1)·√(c1² − 4c2c0)), x₁ = q/c2,
  *   x₂ = c0/q (Press, Teukolsky, Vetterling & Flannery, "Numerical Recipes", 3rd ed. 2007, §5.6,
- *   eqs. 5.6.4–5.6.5); no real roots when the discriminant is negative;
+ *   eqs. 5.6.4–5.6.5, equation numbers from memory); no real roots when the discriminant is negative;
  * - degree 3: eigenvalues of the companion matrix (roots.ts; Golub & Van Loan, "Matrix
  *   Computations", 4th ed. 2013, §7.4.6), keeping those whose imaginary part is below 1e-9 of the largest
  *   modulus, each polished by two Newton steps.

@@ -27,7 +27,8 @@
  *   x_t − x_{t−1} = Σ_k θ_k · (dt/2)·(φ_k(τ_{t−1}, x_{t−1}, u_{t−1}) + φ_k(τ_t, x_t, u_t)),
  * so `Regression.y` holds the increments and Φ the trapezoid-integrated library terms. The
  * integral form avoids differentiating noisy data (Dattner & Klaassen 2015, Electronic Journal
- * of Statistics 9:1939–1973, integral estimators for ODEs linear in parameters). It is solved by
+ * of Statistics 9:1939–1973 — volume and pages from memory — integral estimators for ODEs
+ * linear in parameters). It is solved by
  * least squares, or by sequential thresholded least squares when `selection: 'sparse'`.
  *
  * Prediction. Inputs are linearly interpolated within a sampling interval (the same assumption
@@ -377,7 +378,7 @@ class OdeStructure implements Structure {
    * RK4 steps for one sampling interval from state x: `spec.substeps`, raised when needed so
    * that h·|∂f/∂x| ≤ 1 at the start of the interval (h = dt/steps), well inside classical RK4's
    * real stability interval |hλ| < 2.78 (Hairer & Wanner, "Solving Ordinary Differential
-   * Equations II", 2nd ed. 1996, §IV.2). Capped at 10 000 steps.
+   * Equations II", 2nd ed. 1996, §IV.2; section and the 2.78 from memory). Capped at 10 000 steps.
    */
   private substeps(theta: Float64Array, x: number, dt: number): number {
     let slope = 0;

@@ -8,7 +8,7 @@
  *   k4 = f(τ + h, x + h·k3)
  *   x(τ + h) ≈ x + h·(k1 + 2·k2 + 2·k3 + k4)/6
  * Local error O(h⁵), global error O(h⁴) (Kutta 1901; Press, Teukolsky, Vetterling & Flannery,
- * "Numerical Recipes", 3rd ed. 2007, §17.1, eq. 17.1.3).
+ * "Numerical Recipes", 3rd ed. 2007, §17.1, eq. 17.1.3 — equation number from memory).
  *
  * Cost: 4·substeps evaluations of f per call.
  */
