@@ -147,7 +147,7 @@ export function timeRange(first: number, last: number, frequency: Frequency): { 
 /**
  * Compact value label for a y tick: thousands as `k`, millions as `M`, billions as `G` when the
  * largest tick magnitude reaches 10 000 (so 125000 reads `125k`), with as many decimals as the
- * tick step needs (at most 6); no grouping separators, no locale.
+ * tick step needs (at most 6); zero is always `0`; no grouping separators, no locale.
  * @example formatValueTick(12500, 2500, 30000) === '12.5k'
  */
 export function formatValueTick(value: number, step: number, maxAbs: number): string {
@@ -163,6 +163,7 @@ export function formatValueTick(value: number, step: number, maxAbs: number): st
     scale = 1e3;
     suffix = 'k';
   }
+  if (value === 0) return '0';
   const scaledStep = Math.abs(step) / scale;
   let decimals = 0;
   if (scaledStep > 0 && Number.isFinite(scaledStep)) {
@@ -172,5 +173,5 @@ export function formatValueTick(value: number, step: number, maxAbs: number): st
   }
   const text = (value / scale).toFixed(decimals);
   const clean = /^-0(\.0*)?$/.test(text) ? text.slice(1) : text;
-  return clean === '0' || /^0\.0+$/.test(clean) ? clean : `${clean}${suffix}`;
+  return /^0(\.0+)?$/.test(clean) ? '0' : `${clean}${suffix}`;
 }
