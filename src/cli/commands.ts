@@ -5,8 +5,10 @@ import type { Command } from 'commander';
 import type { CliIO } from './main.js';
 import { register as registerInspect } from './inspect.js';
 import { register as registerSearch } from './search.js';
+import { register as registerForecast } from './forecast.js';
 
 export function registerCommands(program: Command, io: CliIO): void {
   registerInspect(program, io);
   registerSearch(program, io);
+  registerForecast(program, io);
 }

@@ -19,6 +19,13 @@ export interface Series {
   inputs: SeriesInput[];
   /** Where the series came from, for messages. */
   source?: string;
+  /**
+   * What precedes observation 0 when the series is a later part of a longer one (a model's
+   * stored window, a slice): how many observations came before and their sum. Time-indexed
+   * terms count t from the very first observation and cumulative states start from the sum,
+   * so a structure continues exactly where it was. Absent means nothing came before.
+   */
+  before?: { count: number; sum: number };
 }
 
 export interface SeriesInput {
@@ -28,8 +35,11 @@ export interface SeriesInput {
 
 /** Observations [from, to) of a series as a new Series sharing the same buffers (no copy). */
 export function sliceSeries(series: Series, from: number, to: number): Series {
+  let sum = series.before?.sum ?? 0;
+  for (let i = 0; i < from; i++) sum += series.values[i];
   return {
     ...series,
+    before: from === 0 ? series.before : { count: (series.before?.count ?? 0) + from, sum },
     time: series.time.subarray(from, to),
     values: series.values.subarray(from, to),
     inputs: series.inputs.map((i) => ({ name: i.name, values: i.values.subarray(from, to) })),

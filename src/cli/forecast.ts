@@ -1,0 +1,148 @@
+/**
+ * `certa forecast <file>`: the main job. Searches structures on the training part, evaluates the
+ * winner on the holdout (fixed origin and rolling origin with online learning, against naive
+ * baselines), asserts it refitted on all data, forecasts with prediction intervals, and writes
+ * forecast.csv, metrics.csv, candidates.csv, model.json, summary.json and charts into `--out`.
+ */
+import type { Command } from 'commander';
+import { join } from 'node:path';
+import { UsageError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import { loadSeries } from '../data/load.js';
+import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forecast/pipeline.js';
+import { futureFromSeries } from '../forecast/future.js';
+import { forecastCharts, forecastFiles, forecastSummary, forecastText, summaryJson } from '../report/forecast-report.js';
+import { writeModelFile } from '../store/model-file.js';
+import { modelBody } from '../store/asserted.js';
+import { addDataOptions, loadSeriesFromCli, parseDataOptions, readDataSource } from './data-options.js';
+import { addSearchOptions, parseSearchOptions } from './search-options.js';
+import { outputFolder, runClock, writeFiles } from './output.js';
+import type { CliIO } from './main.js';
+import { ProgressReporter } from './progress.js';
+
+export function addForecastOptions(command: Command): Command {
+  return command
+    .option('--horizon <n>', 'periods to forecast (default: two seasons, or 8 without a season)')
+    .option('--holdout <n>', 'last points withheld for evaluation (default: the smaller of two seasons and 20 % of the series; 0 skips evaluation)')
+    .option('--levels <list>', 'prediction interval levels in percent (default 80,95)')
+    .option('--forgetting <lambda>', 'forgetting factor of online learning, 0 < λ ≤ 1 (default 1)')
+    .option('--input-policy <how>', 'future inputs without --future: hold (last value) or trend (default hold)')
+    .option('--future <file>', 'file of future input values (same columns, future dates)')
+    .option('--seed <n>', 'seed of simulation intervals (default 1)')
+    .option('--draws <n>', 'paths of simulation intervals (default 1000)')
+    .option('--parameter-uncertainty', 'simulation intervals also draw the coefficients from their estimated covariance')
+    .option('--window <n>', 'raw observations kept in model.json for later re-searches (default 240)')
+    .option('--out <folder>', 'output folder (default output/<series>)')
+    .option('--no-charts', 'do not render PNG charts')
+    .option('--json', 'print summary.json instead of the text summary');
+}
+
+interface CliForecastOptions {
+  forecast: Omit<ForecastOptions, 'future'>;
+  future?: string;
+  window?: number;
+  out?: string;
+  charts: boolean;
+  json: boolean;
+}
+
+function num(option: string, raw: unknown, check: (v: number) => boolean, expected: string, integer = true): number {
+  const s = String(raw).trim();
+  const v = (integer ? /^-?\d+$/ : /^-?(\d+\.?\d*|\.\d+)(e-?\d+)?$/i).test(s) ? Number(s) : NaN;
+  if (!check(v)) throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(raw), expected });
+  return v;
+}
+
+export function parseForecastOptions(opts: Record<string, unknown>): CliForecastOptions {
+  const f: Omit<ForecastOptions, 'future'> = { search: parseSearchOptions(opts), intervals: {} };
+  if (opts.horizon !== undefined) f.horizon = num('--horizon', opts.horizon, (v) => v >= 1 && v <= 10_000, 'a whole number of periods ≥ 1');
+  if (opts.holdout !== undefined) f.holdout = num('--holdout', opts.holdout, (v) => v >= 0, 'a whole number of points ≥ 0 (0 skips evaluation)');
+  if (opts.levels !== undefined) {
+    f.levels = String(opts.levels)
+      .split(',')
+      .map((s) => num('--levels', s, (v) => v > 0 && v < 100, 'levels in percent between 0 and 100, e.g. 80,95', false));
+  }
+  if (opts.forgetting !== undefined) f.forgetting = num('--forgetting', opts.forgetting, (v) => v > 0 && v <= 1, 'a number in (0, 1], e.g. 1, 0.99 or 0.95', false);
+  if (opts.inputPolicy !== undefined) {
+    const p = String(opts.inputPolicy);
+    if (p !== 'hold' && p !== 'trend') throw new UsageError('option-invalid', 'option --input-policy has an unusable value', { found: p, expected: 'hold or trend' });
+    f.inputPolicy = p;
+  }
+  if (opts.seed !== undefined) f.intervals!.seed = num('--seed', opts.seed, (v) => v >= 0 && v <= 2 ** 53, 'a whole number ≥ 0');
+  if (opts.draws !== undefined) f.intervals!.draws = num('--draws', opts.draws, (v) => v >= 100 && v <= 100_000, 'a whole number from 100 to 100000');
+  if (opts.parameterUncertainty) f.intervals!.parameterUncertainty = true;
+  const out: CliForecastOptions = { forecast: f, charts: opts.charts !== false, json: Boolean(opts.json) };
+  if (opts.window !== undefined) out.window = num('--window', opts.window, (v) => v >= 10 && v <= 1_000_000, 'a whole number of observations ≥ 10');
+  if (opts.future !== undefined) out.future = String(opts.future);
+  if (opts.out !== undefined) out.out = String(opts.out);
+  return out;
+}
+
+/** Reads a future-inputs file with the same data options; it carries the model's input columns. */
+async function loadFuture(file: string, history: Series, opts: Record<string, unknown>, io: CliIO): Promise<Series> {
+  const names = history.inputs.map((i) => i.name);
+  if (names.length === 0) {
+    throw new UsageError('future-without-inputs', '--future was given but the series has no inputs', { file, hint: 'name input columns with --inputs, or drop --future' });
+  }
+  const base = parseDataOptions({ ...opts, series: undefined, value: undefined, inputs: undefined, id: undefined, freq: undefined, aggregate: undefined });
+  const { series } = await loadSeries(await readDataSource(file, io), { ...base, value: names[0], inputs: names.slice(1), gaps: 'error' });
+  const s = series[0];
+  return { ...s, inputs: [{ name: names[0], values: s.values }, ...s.inputs] };
+}
+
+/** Runs the main job on one loaded series and writes its outputs; returns the summary. */
+export async function runForecast(series: Series, cli: CliForecastOptions, folder: string, opts: Record<string, unknown>, io: CliIO, loadWarnings: string[] = []): Promise<{ run: ForecastRun; summary: Record<string, unknown>; text: string }> {
+  let futureSeries: Series | undefined;
+  if (cli.future !== undefined) futureSeries = await loadFuture(cli.future, series, opts, io);
+  const progress = new ProgressReporter(io, `searching ${series.name}`);
+  let run: ForecastRun;
+  try {
+    run = forecastSeries(series, {
+      ...cli.forecast,
+      search: { ...cli.forecast.search, onProgress: progress.callback() },
+      ...(futureSeries ? { future: (h: Series, horizon: number, times: number[]) => futureFromSeries(h, futureSeries!, horizon, cli.future!, times) } : {}),
+    });
+  } finally {
+    progress.stop();
+  }
+  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run) };
+  if (cli.charts) Object.assign(files, forecastCharts(run));
+  const names = [...Object.keys(files), 'model.json', 'summary.json'].sort();
+  const summary = forecastSummary(run, { files: names, outDir: folder, source: series.source, warnings: loadWarnings });
+  files['summary.json'] = summaryJson(summary);
+  await writeFiles(folder, files);
+  const a = run.asserted;
+  const body = modelBody({ structure: a.structure, learner: a.learner, se: a.estimate.se }, series, {
+    criterion: run.search.criterion,
+    criterionValue: run.search.winner.result.score,
+    now: runClock(),
+    windowCapacity: cli.window,
+    meta: { key: a.structure.key, label: a.structure.label, equation: a.equation, horizon: run.horizon, levels: run.levels },
+  });
+  await writeModelFile(join(folder, 'model.json'), body, { mkdir: true });
+  return { run, summary, text: forecastText(run, summary) };
+}
+
+export function register(program: Command, io: CliIO): void {
+  const command = program
+    .command('forecast')
+    .description('find the equation behind a series, evaluate it on held-out data, and forecast with it')
+    .argument('<file>', 'CSV, TSV, XLSX or JSON file, or - for standard input');
+  addForecastOptions(command);
+  addSearchOptions(command);
+  addDataOptions(command);
+  command.action(async (file: string, opts: Record<string, unknown>) => {
+    const cli = parseForecastOptions(opts);
+    const { series, report } = await loadSeriesFromCli(file, opts, io);
+    const docs: Record<string, unknown>[] = [];
+    const texts: string[] = [];
+    for (const s of series) {
+      const folder = outputFolder(s, series.length, cli.out);
+      const { summary, text } = await runForecast(s, cli, folder, opts, io, report.notes);
+      docs.push(summary);
+      texts.push(text);
+    }
+    io.out(cli.json ? summaryJson(docs.length === 1 ? docs[0] : { series: docs }) : texts.join('\n'));
+  });
+  program.addHelpText('after', '\nForecast a series (the main job):\n  certa forecast datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
+}

@@ -1,0 +1,294 @@
+/**
+ * Everything `certa forecast` writes, built from a ForecastRun as plain values: the tidy
+ * forecast table, the metrics table, the summary a scheduler reads, the charts, and the text a
+ * person reads in the terminal. Nothing here touches files.
+ */
+import { formatTime } from '../data/calendar.js';
+import type { ForecastRun } from '../forecast/pipeline.js';
+import { forward } from '../models/transforms.js';
+import { FORECAST_CAUTION } from './cautions.js';
+import { candidatesTable } from './candidates.js';
+import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
+import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
+
+/** The tidy forecast table: one row per time and kind (history, fitted, holdout, forecast). */
+export function forecastTable(run: ForecastRun): Table {
+  const { series, levels } = run;
+  const name = series.name;
+  const f = series.frequency;
+  const bandCols = levels.flatMap((l) => [`lower_${l}`, `upper_${l}`]);
+  const columns = ['series', 'time', 'kind', 'value', 'point', 'rolling_point', ...bandCols];
+  const rows: Cell[][] = [];
+  const blank = bandCols.map(() => null);
+  const n = series.values.length;
+  const nTrain = n - run.holdout;
+  for (let t = 0; t < nTrain; t++) rows.push([name, formatTime(series.time[t], f), 'history', series.values[t], null, null, ...blank]);
+  for (let i = 0; i < run.fitted.index.length; i++) {
+    const t = run.fitted.index[i];
+    rows.push([name, formatTime(series.time[t], f), 'fitted', null, run.fitted.values[i], null, ...blank]);
+  }
+  const ev = run.evaluation;
+  if (ev) {
+    for (let j = 0; j < ev.holdout; j++) {
+      const bands = ev.fixed.bands.flatMap((b) => [b.lower[j], b.upper[j]]);
+      rows.push([name, formatTime(ev.times[j], f), 'holdout', ev.actual[j], ev.fixed.point[j], ev.rolling.oneStep[j], ...bands]);
+    }
+  }
+  const fc = run.forecast;
+  for (let j = 0; j < run.horizon; j++) {
+    const bands = fc.paths.bands.flatMap((b) => [b.lower[j], b.upper[j]]);
+    rows.push([name, formatTime(fc.times[j], f), 'forecast', null, fc.paths.point[j], null, ...bands]);
+  }
+  return { columns, rows };
+}
+
+/** The evaluation table (`metrics.csv`): one row per method and view. */
+export function metricsTable(run: ForecastRun): Table {
+  const levelCols = run.levels.flatMap((l) => [`coverage_${l}`, `interval_score_${l}`]);
+  const columns = ['series', 'view', 'method', 'n', 'mae', 'rmse', 'mape', 'smape', 'mase', 'mean_error', ...levelCols];
+  const rows: Cell[][] = (run.evaluation?.table ?? []).map((r) => {
+    const iv = run.levels.flatMap((l) => {
+      const x = r.intervals?.find((i) => i.level === l);
+      return x ? [x.coverage, x.intervalScore] : [null, null];
+    });
+    const m = r.metrics;
+    return [run.series.name, r.view, r.method, m.n, m.mae, m.rmse, m.mape, m.smape, m.mase, m.meanError, ...iv];
+  });
+  return { columns, rows };
+}
+
+export interface SummaryContext {
+  /** Files written, relative to the output folder. */
+  files: string[];
+  outDir: string;
+  source?: string;
+  /** Extra warnings from loading. */
+  warnings?: string[];
+}
+
+/** `summary.json`: everything a scheduler needs, including warnings. */
+export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<string, unknown> {
+  const { series, asserted, search } = run;
+  const f = series.frequency;
+  const n = series.values.length;
+  const winner = search.winner;
+  const ev = run.evaluation;
+  const learning = ev?.table.find((r) => r.view === 'rolling-one-step' && r.method.startsWith('model, learning'));
+  const frozen = ev?.table.find((r) => r.view === 'rolling-one-step' && r.method === 'model, frozen');
+  return {
+    caution: FORECAST_CAUTION,
+    series: {
+      name: series.name,
+      source: ctx.source ?? series.source ?? null,
+      frequency: f,
+      season: series.season,
+      length: n,
+      start: formatTime(series.time[0], f),
+      end: formatTime(series.time[n - 1], f),
+      inputs: series.inputs.map((i) => i.name),
+    },
+    options: {
+      horizon: run.horizon,
+      holdout: run.holdout,
+      levels: run.levels,
+      forgetting: run.forgetting,
+      criterion: search.criterion,
+      intervalMethod: run.forecast.paths.method,
+    },
+    model: {
+      key: asserted.structure.key,
+      label: asserted.structure.label,
+      family: asserted.structure.family,
+      transform: asserted.structure.transform,
+      equation: asserted.equation,
+      fittedOn: { start: formatTime(series.time[asserted.from], f), end: formatTime(series.time[n - 1], f), n: n - asserted.from },
+      terms: asserted.structure.terms.map((t, j) => ({ name: t, estimate: asserted.estimate.theta[j], se: asserted.estimate.se[j], active: asserted.estimate.active[j] })),
+      sigma2: asserted.estimate.sigma2,
+      derived: asserted.derived,
+      whiteness: winner.whiteness,
+    },
+    search: {
+      sample: search.sample,
+      fitted: search.fitted,
+      failed: search.failed,
+      top: search.ranking
+        .filter((c) => c.status === 'fitted')
+        .slice(0, 10)
+        .map((c) => ({ rank: c.rank, key: c.key, label: c.label, score: c.score, delta: c.delta, weight: c.weight })),
+    },
+    evaluation: ev
+      ? {
+          trainEnd: formatTime(series.time[ev.nTrain - 1], f),
+          holdout: ev.holdout,
+          rows: ev.table.map((r) => ({ view: r.view, method: r.method, ...r.metrics, intervals: r.intervals ?? null })),
+          onlineLearning: learning && frozen ? { learningMae: learning.metrics.mae, frozenMae: frozen.metrics.mae } : null,
+        }
+      : null,
+    forecast: {
+      inputs: run.forecast.inputs.source,
+      rows: Array.from(run.forecast.times, (t, j) => {
+        const row: Record<string, unknown> = { time: formatTime(t, f), point: run.forecast.paths.point[j] };
+        for (const b of run.forecast.paths.bands) {
+          row[`lower_${b.level}`] = b.lower[j];
+          row[`upper_${b.level}`] = b.upper[j];
+        }
+        return row;
+      }),
+    },
+    warnings: [...(ctx.warnings ?? []), ...run.warnings],
+    files: ctx.files,
+    outDir: ctx.outDir,
+  };
+}
+
+/** The charts of a run, by file name. */
+export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
+  const { series, asserted } = run;
+  const f = series.frequency;
+  const n = series.values.length;
+  const title = series.name;
+  const out: Record<string, Buffer> = {};
+  const fitted = new Float64Array(n).fill(NaN);
+  run.fitted.index.forEach((t, i) => (fitted[t] = run.fitted.values[i]));
+  const holdoutStart = run.evaluation ? series.time[run.evaluation.nTrain] : undefined;
+  out['history.png'] = historyChart({
+    title: `${title}: history and one-step fitted values`,
+    subtitle: asserted.structure.label,
+    frequency: f,
+    time: series.time,
+    actual: series.values,
+    fitted,
+    holdoutStart,
+  });
+  const show = Math.min(n, Math.max(series.season ? 6 * series.season : 40, 3 * run.horizon));
+  out['forecast.png'] = forecastChart({
+    title: `${title}: forecast, ${run.horizon} periods`,
+    subtitle: `${asserted.structure.label}; ${run.forecast.inputs.source}`,
+    frequency: f,
+    history: { time: series.time.subarray(n - show), values: series.values.subarray(n - show) },
+    forecast: {
+      time: run.forecast.times,
+      mean: run.forecast.paths.point,
+      bands: run.forecast.paths.bands.map((b) => ({ level: b.level / 100, lower: b.lower, upper: b.upper })),
+    },
+  });
+  const ev = run.evaluation;
+  if (ev) {
+    const ctxLen = Math.min(ev.nTrain, series.season ? 3 * series.season : 24);
+    out['holdout.png'] = holdoutChart({
+      title: `${title}: holdout, actual against forecasts`,
+      subtitle: `trained to ${formatTime(series.time[ev.nTrain - 1], f)}; rolling forecasts learn with λ = ${run.forgetting}`,
+      frequency: f,
+      context: { time: series.time.subarray(ev.nTrain - ctxLen, ev.nTrain), values: series.values.subarray(ev.nTrain - ctxLen, ev.nTrain) },
+      time: ev.times,
+      actual: ev.actual,
+      forecasts: [
+        { label: 'fixed origin', values: ev.fixed.point },
+        { label: 'rolling one-step, learning', values: ev.rolling.oneStep },
+        { label: 'rolling one-step, frozen', values: ev.frozen.oneStep },
+      ],
+    });
+  }
+  out['ranking.png'] = rankingChart({
+    title: `${title}: candidate structures`,
+    subtitle: `Δ${run.search.criterion.toUpperCase()} from the best; ${run.search.fitted} fitted, ${run.search.failed} failed`,
+    criterion: run.search.criterion === 'aicc' ? 'AICc' : run.search.criterion.toUpperCase(),
+    candidates: run.search.ranking.filter((c) => c.status === 'fitted').map((c) => ({ name: c.label, delta: c.delta })),
+  });
+  const z = forward(asserted.structure.transform, series.values);
+  const resid = Float64Array.from(run.fitted.index, (t, i) => z[t] - forward(asserted.structure.transform, Float64Array.of(run.fitted.values[i]))[0]);
+  out['residuals.png'] = residualChart({
+    title: `${title}: one-step residuals${asserted.structure.transform === 'log' ? ' (log scale)' : ''}`,
+    subtitle: run.search.winner.whiteness.pValue !== undefined ? `Ljung–Box p = ${fmt(run.search.winner.whiteness.pValue)}` : undefined,
+    frequency: f,
+    time: Float64Array.from(run.fitted.index, (t) => series.time[t]),
+    residuals: resid,
+    season: series.season,
+  });
+  return out;
+}
+
+/** CSV and JSON files of a run, by file name (charts separately). */
+export function forecastFiles(run: ForecastRun): Record<string, string> {
+  return {
+    'forecast.csv': tableToCsv(forecastTable(run)),
+    'metrics.csv': tableToCsv(metricsTable(run)),
+    'candidates.csv': tableToCsv(candidatesTable(run.search)),
+  };
+}
+
+export function summaryJson(summary: Record<string, unknown>): string {
+  return toJson(summary);
+}
+
+/** The terminal summary a person reads. */
+export function forecastText(run: ForecastRun, summary: Record<string, unknown>): string {
+  const { series, asserted, search } = run;
+  const f = series.frequency;
+  const lines: string[] = [];
+  const n = series.values.length;
+  lines.push(`certa forecast: ${series.name} (${f}, ${n} points, ${formatTime(series.time[0], f)} to ${formatTime(series.time[n - 1], f)})`);
+  lines.push('');
+  lines.push(`Asserted model: ${asserted.structure.label}`);
+  lines.push(`  ${asserted.equation}`);
+  for (const d of asserted.derived) lines.push(`  ${d.name}: ${typeof d.value === 'number' ? fmt(d.value) : String(d.value)}${d.unit ? ` ${d.unit}` : ''}${d.note ? `  (${d.note})` : ''}`);
+  lines.push('');
+  lines.push(`Candidates: ${search.fitted} fitted, ${search.failed} could not be fitted; ranked by ${search.criterion.toUpperCase()} on ${search.sample.start} to ${search.sample.end} (n = ${search.sample.n})`);
+  const top = search.ranking.filter((c) => c.status === 'fitted').slice(0, 5);
+  lines.push(pad(['rank', 'Δ', 'weight', 'structure'], [4, 8, 7, 0]));
+  for (const c of top) lines.push(pad([String(c.rank), fmt(c.delta), c.weight.toFixed(3), c.label], [4, 8, 7, 0]));
+  const ev = run.evaluation;
+  if (ev) {
+    lines.push('');
+    lines.push(`Holdout: last ${ev.holdout} points (from ${formatTime(ev.times[0], f)}), never seen by the search`);
+    const cov = run.levels.map((l) => `cover ${l}%`);
+    lines.push(pad(['view', 'method', 'MAE', 'RMSE', 'sMAPE', 'MASE', 'bias', ...cov], [17, 24, 10, 10, 7, 7, 10, ...cov.map(() => 10)]));
+    for (const r of ev.table) {
+      const m = r.metrics;
+      const c = run.levels.map((l) => {
+        const x = r.intervals?.find((i) => i.level === l);
+        return x ? `${(100 * x.coverage).toFixed(0)}%` : '';
+      });
+      lines.push(pad([r.view, r.method, fmt(m.mae), fmt(m.rmse), m.smape.toFixed(2), m.mase.toFixed(3), fmt(m.meanError), ...c], [17, 24, 10, 10, 7, 7, 10, ...c.map(() => 10)]));
+    }
+  } else {
+    lines.push('');
+    lines.push('Holdout: none (--holdout 0): the model was not evaluated on unseen data.');
+  }
+  lines.push('');
+  lines.push(`Forecast (${run.forecast.paths.method} intervals; ${run.forecast.inputs.source}):`);
+  const bandHead = run.forecast.paths.bands.map((b) => `${b.level}% interval`);
+  lines.push(pad(['time', 'point', ...bandHead], [12, 12, ...bandHead.map(() => 26)]));
+  for (let j = 0; j < run.horizon; j++) {
+    const cells = run.forecast.paths.bands.map((b) => `${fmt(b.lower[j])} to ${fmt(b.upper[j])}`);
+    lines.push(pad([formatTime(run.forecast.times[j], f), fmt(run.forecast.paths.point[j]), ...cells], [12, 12, ...cells.map(() => 26)]));
+  }
+  const warnings = summary.warnings as string[];
+  if (warnings.length > 0) {
+    lines.push('');
+    for (const w of warnings) lines.push(`warning: ${w}`);
+  }
+  const files = summary.files as string[];
+  if (files.length > 0) {
+    lines.push('');
+    lines.push(`Wrote ${files.join(', ')} to ${String(summary.outDir)}`);
+  }
+  lines.push('');
+  lines.push(FORECAST_CAUTION);
+  return `${lines.join('\n')}\n`;
+}
+
+function pad(cells: string[], widths: number[]): string {
+  return cells
+    .map((c, i) => (widths[i] > 0 ? c.padEnd(widths[i]) : c))
+    .join(' ')
+    .trimEnd();
+}
+
+export function fmt(x: number): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a >= 1e-3 && a < 1e7) return String(Number(x.toPrecision(4)));
+  return x.toExponential(3);
+}

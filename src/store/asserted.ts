@@ -1,0 +1,124 @@
+/**
+ * An asserted model ⇄ its model-file body.
+ *
+ * What is saved is what continuing needs: the structure spec (rebuilt by the registry), θ and
+ * the RLS state of the active terms (P embedded in the full p×p matrix, zero for terms a sparse
+ * fit switched off), λ, σ², the last `capacity` raw observations (the window) with the count and
+ * sum of the observations before it (so time-indexed terms and cumulative states continue where
+ * they were), a fingerprint of every row seen, the drift detector and the update log.
+ */
+import type { Series } from '../data/series.js';
+import { formatTime } from '../data/calendar.js';
+import type { Criterion } from '../select/criteria.js';
+import type { Structure } from '../models/structure.js';
+import { structureFromSpec } from '../models/registry.js';
+import { Learner } from '../forecast/online.js';
+import { createDriftState, type DriftOptions } from '../forecast/drift.js';
+import { fingerprintSeries } from './fingerprint.js';
+import { DEFAULT_WINDOW_CAPACITY, windowFromSeries } from './window.js';
+import type { ModelBody } from './model-file.js';
+
+export interface AssertedState {
+  structure: Structure;
+  learner: Learner;
+  /** Standard errors of θ at the time of the fit (for reports). */
+  se: ArrayLike<number>;
+}
+
+export interface BodyOptions {
+  criterion: Criterion;
+  criterionValue: number;
+  /** ISO time stamp of this write (the caller's clock). */
+  now: string;
+  /** When the model was first created (default: `now`). */
+  created?: string;
+  windowCapacity?: number;
+  drift?: DriftOptions;
+  meta?: Record<string, unknown>;
+}
+
+/** The body of a model file for a learner that has learnt every row of `series`. */
+export function modelBody(model: AssertedState, series: Series, options: BodyOptions): ModelBody {
+  const { structure, learner } = model;
+  const p = structure.terms.length;
+  const n = series.values.length;
+  const capacity = Math.max(options.windowCapacity ?? DEFAULT_WINDOW_CAPACITY, structure.history + 1);
+  const window = windowFromSeries(series, capacity);
+  const skipped = n - window.values.length;
+  let skippedSum = 0;
+  for (let i = 0; i < skipped; i++) skippedSum += series.values[i];
+  const json = learner.toJSON();
+  const cols = json.active.map((a, j) => (a ? j : -1)).filter((j) => j >= 0);
+  const P: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  for (let a = 0; a < cols.length; a++) for (let b = 0; b < cols.length; b++) P[cols[a]][cols[b]] = json.rls.P[a][b];
+  return {
+    structure: structure.spec,
+    terms: [...structure.terms],
+    theta: Array.from(learner.theta),
+    se: Array.from(model.se, (v) => (Number.isFinite(v) ? v : 0)),
+    P,
+    lambda: json.rls.lambda,
+    sigma2: learner.sigma2,
+    transform: structure.transform,
+    series: {
+      name: series.name,
+      frequency: series.frequency,
+      season: series.season,
+      lastTime: series.time[n - 1],
+      lastTimeLabel: formatTime(series.time[n - 1], series.frequency),
+      inputs: series.inputs.map((i) => i.name),
+    },
+    state: {
+      active: json.active.map((a) => (a ? 1 : 0)),
+      rlsRss: json.rls.rss,
+      rlsCount: json.rls.count,
+      traceMax: json.rls.traceMax,
+      rlsUpdates: json.rls.updates,
+      before: (series.before?.count ?? 0) + skipped,
+      beforeSum: (series.before?.sum ?? 0) + skippedSum,
+    },
+    window,
+    fingerprint: fingerprintSeries(series),
+    criterion: { name: options.criterion, value: options.criterionValue },
+    created: options.created ?? options.now,
+    updated: options.now,
+    log: [],
+    drift: createDriftState(options.drift),
+    meta: options.meta ?? {},
+  };
+}
+
+/** The series held in a body's window (with what preceded it), ready to be extended. */
+export function windowSeries(body: ModelBody): Series {
+  const w = body.window;
+  return {
+    name: body.series.name,
+    frequency: body.series.frequency as Series['frequency'],
+    season: body.series.season,
+    time: Float64Array.from(w.time),
+    values: Float64Array.from(w.values),
+    inputs: body.series.inputs.map((name) => ({ name, values: Float64Array.from(w.inputs[name]) })),
+    before: { count: Number(body.state.before ?? 0), sum: Number(body.state.beforeSum ?? 0) },
+  };
+}
+
+/** Rebuilds the structure and the learner of a body; the learner continues after the window. */
+export function assertedFromBody(body: ModelBody): AssertedState {
+  const structure = structureFromSpec(body.structure);
+  const active = (body.state.active as number[]).map((a) => a === 1);
+  const cols = active.map((a, j) => (a ? j : -1)).filter((j) => j >= 0);
+  const learner = Learner.fromJSON(structure, {
+    active,
+    next: body.window.values.length,
+    rls: {
+      theta: cols.map((j) => body.theta[j]),
+      P: cols.map((a) => cols.map((b) => body.P[a][b])),
+      lambda: body.lambda,
+      traceMax: Number(body.state.traceMax),
+      rss: Number(body.state.rlsRss),
+      count: Number(body.state.rlsCount),
+      updates: Number(body.state.rlsUpdates ?? 0),
+    },
+  });
+  return { structure, learner, se: body.se };
+}
