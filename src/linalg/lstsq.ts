@@ -7,10 +7,14 @@
  * 2003, §3.3 for σ̂² and Cov θ̂):
  *   Φ·D·P = Q·R,  θ̂ = D·P·R⁻¹·(Qᵀy)[0:r],  e = y − Φθ̂,  RSS = eᵀe,
  *   dof = n − r,  σ̂² = RSS/dof,  (ΦᵀΦ)⁻¹ = D·P·R⁻¹R⁻ᵀ·Pᵀ·D,  Cov θ̂ = σ̂²(ΦᵀΦ)⁻¹,  se_j = √Cov_jj.
- * `condition` is the 2-norm condition number of the column-scaled Φ on the kept columns (see
- * {@link QrFactorization.condition}); it does not depend on the units of the terms.
+ * `condition` is the Frobenius-norm condition number of the column-scaled Φ_s = Φ·D on the kept
+ * columns: κ_F = ‖Φ_s‖_F·‖Φ_s⁺‖_F = √(r·trace((R₁₁ᵀR₁₁)⁻¹)), because every scaled column has unit
+ * norm (‖R₁₁‖_F² = r) and Φ_s⁺ = P₁R₁₁⁻¹Q₁ᵀ. It costs O(p) once (ΦᵀΦ)⁻¹ is known, does not depend
+ * on the units of the terms, and brackets the 2-norm condition: κ₂ ≤ κ_F ≤ r·κ₂ (from
+ * ‖A‖₂ ≤ ‖A‖_F ≤ √r‖A‖₂, Golub & Van Loan 2013, §2.3.2). `qr(phi).condition` gives κ₂.
  *
  * Cost: 2np² − 2p³/3 (factorisation) + 4np (solve, residuals) + p³/3 (covariance) flops.
+ * Allocates Φ's column-major copy once, plus the result arrays.
  *
  * @example
  *   lstsq(fromRows([[1, 1], [1, 2], [1, 3]]), Float64Array.of(1, 2, 2), ['a', 'b'])
@@ -18,7 +22,7 @@
  */
 import { ModelError } from '../data/errors.js';
 import type { DesignMatrix } from './matrix.js';
-import { qr, type QrFactorization } from './qr.js';
+import { tryQr, type QrFactorization } from './qr.js';
 
 export interface LstsqOptions {
   /** Relative tolerance on |R_kk|/|R_00| (default max(n, p)·2⁻⁵²). */
@@ -51,7 +55,11 @@ export interface LstsqResult {
   xtxInv: Float64Array;
   /** Standard errors √cov_jj. */
   se: Float64Array;
-  /** 2-norm condition number of the column-scaled Φ on the kept terms. */
+  /**
+   * Frobenius-norm condition number of the column-scaled Φ on the kept terms,
+   * κ_F = ‖Φ_s‖_F·‖Φ_s⁺‖_F; it bounds the 2-norm one, κ₂ ≤ κ_F ≤ rank·κ₂ (Infinity at rank 0).
+   * For κ₂ itself use `qr(phi).condition`.
+   */
   condition: number;
   /** Which terms were estimated (false for terms dropped by rank deficiency). */
   active: boolean[];
@@ -77,8 +85,13 @@ export function lstsq(phi: DesignMatrix, y: Float64Array, names: string[], optio
       hint: 'use a longer series or a structure with fewer lags',
     });
   }
-  checkFinite(phi, y, names);
-  const f = qr(phi, { rankTolerance: options.rankTolerance });
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(y[i])) {
+      throw new ModelError('non-finite', `target value in regression row ${i + 1} is not a finite number`, { found: String(y[i]), expected: 'a finite number' });
+    }
+  }
+  const f = tryQr(phi, { rankTolerance: options.rankTolerance });
+  if (f === undefined) throw nonFiniteTerm(phi, names);
   const warnings: string[] = [];
   if (f.rank < p) {
     const message = collinearityMessage(f, names);
@@ -98,11 +111,10 @@ export function lstsq(phi: DesignMatrix, y: Float64Array, names: string[], optio
 function finish(f: QrFactorization, phi: DesignMatrix, y: Float64Array, names: string[], warnings: string[]): LstsqResult {
   const n = phi.rows;
   const p = phi.cols;
-  const work = new Float64Array(n);
   const theta = new Float64Array(p);
-  f.solveInto(y, theta, work);
-  const fitted = new Float64Array(n);
   const residuals = new Float64Array(n);
+  f.solveInto(y, theta, residuals); // residuals serves as scratch for Qᵀy, then is overwritten
+  const fitted = new Float64Array(n);
   const d = phi.data;
   let rss = 0;
   for (let i = 0; i < n; i++) {
@@ -125,23 +137,29 @@ function finish(f: QrFactorization, phi: DesignMatrix, y: Float64Array, names: s
   for (let j = 0; j < p; j++) se[j] = Math.sqrt(cov[j * p + j]);
   const active = new Array<boolean>(p).fill(false);
   for (let k = 0; k < rank; k++) active[f.perm[k]] = true;
-  return { theta, names, residuals, fitted, rss, n, p, rank, dof, sigma2, cov, xtxInv, se, condition: f.condition, active, warnings };
+  // κ_F(Φ_s) = √(r·trace S), S = (R₁₁ᵀR₁₁)⁻¹, read off the diagonal of (ΦᵀΦ)⁻¹ = D·S·D.
+  let traceS = 0;
+  for (let k = 0; k < rank; k++) {
+    const j = f.perm[k];
+    traceS += xtxInv[j * p + j] / (f.scale[j] * f.scale[j]);
+  }
+  const condition = rank > 0 ? Math.sqrt(rank * traceS) : Infinity;
+  return { theta, names, residuals, fitted, rss, n, p, rank, dof, sigma2, cov, xtxInv, se, condition, active, warnings };
 }
 
-function checkFinite(phi: DesignMatrix, y: Float64Array, names: string[]): void {
+/** The ModelError for the first non-finite entry of Φ, naming its term and row. */
+function nonFiniteTerm(phi: DesignMatrix, names: string[]): ModelError {
   const p = phi.cols;
   const d = phi.data;
   for (let i = 0; i < phi.rows; i++) {
-    if (!Number.isFinite(y[i])) {
-      throw new ModelError('non-finite', `target value in regression row ${i + 1} is not a finite number`, { found: String(y[i]), expected: 'a finite number' });
-    }
     for (let j = 0; j < p; j++) {
       const v = d[i * p + j];
       if (!Number.isFinite(v)) {
-        throw new ModelError('non-finite', `term "${names[j]}" in regression row ${i + 1} is not a finite number`, { found: String(v), expected: 'a finite number' });
+        return new ModelError('non-finite', `term "${names[j]}" in regression row ${i + 1} is not a finite number`, { found: String(v), expected: 'a finite number' });
       }
     }
   }
+  return new ModelError('non-finite', 'a regressor is not a finite number', { expected: 'finite numbers' });
 }
 
 /** `terms "a" and "b" are collinear (rank 3 of 4)` and similar, naming terms, never indices. */

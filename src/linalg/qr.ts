@@ -196,7 +196,8 @@ export class QrFactorization {
     const n = this.rows;
     const a = this.qrData;
     // U = R₁₁⁻¹ (upper triangular), row-major r×r, column by column.
-    const u = new Float64Array(r * r);
+    const buf = new Float64Array(2 * r * r);
+    const u = buf.subarray(0, r * r);
     for (let j = 0; j < r; j++) {
       u[j * r + j] = 1 / a[j * n + j];
       for (let i = j - 1; i >= 0; i--) {
@@ -206,7 +207,7 @@ export class QrFactorization {
       }
     }
     // S = U·Uᵀ, symmetric: S_ij = Σ_{k ≥ max(i,j)} U_ik U_jk.
-    const sm = new Float64Array(r * r);
+    const sm = buf.subarray(r * r);
     for (let i = 0; i < r; i++) {
       for (let j = i; j < r; j++) {
         let s = 0;
@@ -220,7 +221,8 @@ export class QrFactorization {
 
   /**
    * (ΦᵀΦ)⁻¹ in Φ's original units, p×p row-major: D·P₁·S·P₁ᵀ·D on the kept columns, zero rows
-   * and columns for dropped ones (then it is the inverse on the kept subspace only).
+   * and columns for dropped ones (then it is the inverse on the kept subspace only); exactly
+   * symmetric.
    * Cost r³/3 + p² flops.
    */
   xtxInv(): Float64Array {
@@ -231,9 +233,11 @@ export class QrFactorization {
     for (let k = 0; k < r; k++) {
       const i = this.perm[k];
       const si = this.scale[i];
-      for (let l = 0; l < r; l++) {
+      for (let l = k; l < r; l++) {
         const j = this.perm[l];
-        out[i * p + j] = si * sm[k * r + l] * this.scale[j];
+        const v = si * sm[k * r + l] * this.scale[j];
+        out[i * p + j] = v;
+        out[j * p + i] = v;
       }
     }
     return out;
@@ -365,6 +369,13 @@ function powerMethod(r: number, v: Float64Array, scratch: Float64Array, apply: (
  * Φ is copied (once, into column-major order) and left untouched. Entries must be finite.
  */
 export function qr(phi: DesignMatrix, options: QrOptions = {}): QrFactorization {
+  const f = tryQr(phi, options);
+  if (f === undefined) throw new RangeError('qr: Φ has an entry that is not finite');
+  return f;
+}
+
+/** As {@link qr}, but returns undefined (instead of throwing) when Φ has a non-finite entry. */
+export function tryQr(phi: DesignMatrix, options: QrOptions = {}): QrFactorization | undefined {
   const n = phi.rows;
   const p = phi.cols;
   if (phi.data.length !== n * p) throw new RangeError(`qr: data length ${phi.data.length}, expected ${n}×${p}`);
@@ -374,46 +385,60 @@ export function qr(phi: DesignMatrix, options: QrOptions = {}): QrFactorization 
   const a = new Float64Array(n * p);
   const scale = new Float64Array(p);
   const zero = new Uint8Array(p);
-  // Column norms, computed with a running maximum so huge entries cannot overflow.
+  // One row-major pass: transpose into column-major order and accumulate squared column norms.
+  const ss = new Float64Array(p);
+  for (let i = 0; i < n; i++) {
+    const o = i * p;
+    for (let j = 0; j < p; j++) {
+      const v = src[o + j];
+      a[j * n + i] = v;
+      ss[j] += v * v;
+    }
+  }
   for (let j = 0; j < p; j++) {
-    let big = 0;
-    for (let i = 0; i < n; i++) {
-      const v = Math.abs(src[i * p + j]);
-      if (!(v <= Number.MAX_VALUE)) throw new RangeError(`qr: entry (${i}, ${j}) is not finite`);
-      if (v > big) big = v;
-    }
-    if (big === 0) {
-      scale[j] = 1;
-      zero[j] = 1;
-      continue;
-    }
-    const ib = 1 / big;
-    let ss = 0;
-    for (let i = 0; i < n; i++) {
-      const v = src[i * p + j] * ib;
-      ss += v * v;
-    }
-    const s = ib / Math.sqrt(ss);
-    scale[j] = s;
+    let norm = Math.sqrt(ss[j]);
     const off = j * n;
-    for (let i = 0; i < n; i++) a[off + i] = src[i * p + j] * s;
+    if (!(norm > 1e-150 && norm < 1e150)) {
+      // NaN/Infinity, zero, or a sum of squares at risk of over- or underflow: rescale by the
+      // largest magnitude first.
+      let big = 0;
+      for (let i = 0; i < n; i++) {
+        const v = Math.abs(a[off + i]);
+        if (!(v <= Number.MAX_VALUE)) return undefined;
+        if (v > big) big = v;
+      }
+      if (big === 0) {
+        scale[j] = 1;
+        zero[j] = 1;
+        continue;
+      }
+      let t = 0;
+      for (let i = 0; i < n; i++) {
+        const v = a[off + i] / big;
+        t += v * v;
+      }
+      norm = big * Math.sqrt(t);
+    }
+    const sc = 1 / norm;
+    scale[j] = sc;
+    for (let i = 0; i < n; i++) a[off + i] *= sc;
   }
   const tau = new Float64Array(p);
   const perm = new Int32Array(p);
-  factorInPlace(a, n, p, tau, perm);
+  factorInPlace(a, n, p, tau, perm, zero);
   return new QrFactorization(n, p, a, tau, scale, perm, tolerance, zero);
 }
 
 /** Householder QR with column pivoting of the column-major n×p `a`, in place. */
-function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array, perm: Int32Array): void {
-  const vn1 = new Float64Array(p); // partial column norms, downdated
-  const vn2 = new Float64Array(p); // norms at last exact computation
+function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array, perm: Int32Array, zero: Uint8Array): void {
+  const norms = new Float64Array(2 * p);
+  const vn1 = norms.subarray(0, p); // partial column norms, downdated
+  const vn2 = norms.subarray(p); // norms at last exact computation
   for (let j = 0; j < p; j++) {
+    // Scaled columns have unit norm (to rounding): start every non-zero column at exactly 1,
+    // so the first pivot is the first non-zero column.
     perm[j] = j;
-    let s = 0;
-    const off = j * n;
-    for (let i = 0; i < n; i++) s += a[off + i] * a[off + i];
-    vn1[j] = Math.sqrt(s);
+    vn1[j] = zero[j] === 1 ? 0 : 1;
     vn2[j] = vn1[j];
   }
   const tol3z = Math.sqrt(EPSILON);

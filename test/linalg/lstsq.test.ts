@@ -181,3 +181,26 @@ export function badlyScaled(seed: number, n: number, p: number): { phi: DesignMa
   }
   return { phi: { rows: n, cols: p, data }, y };
 }
+
+describe('lstsq condition', () => {
+  it('equals the Frobenius-norm condition √(Σσ²·Σσ⁻²) of the scaled Φ from ml-matrix SVD, and brackets κ₂', async () => {
+    // Independent source: singular values σ of Φ·D from ml-matrix SingularValueDecomposition.
+    const { Matrix, SingularValueDecomposition } = await import('ml-matrix');
+    for (const pr of [readPolynomialDat('Filip.dat'), readCsvProblem('Longley'), readPolynomialDat('Wampler1.dat')]) {
+      const fit = lstsq(pr.phi, pr.y, pr.names);
+      const { rows, cols, data } = pr.phi;
+      const m = new Matrix(rows, cols);
+      for (let j = 0; j < cols; j++) {
+        let s = 0;
+        for (let i = 0; i < rows; i++) s += data[i * cols + j] ** 2;
+        for (let i = 0; i < rows; i++) m.set(i, j, data[i * cols + j] / Math.sqrt(s));
+      }
+      const sv = new SingularValueDecomposition(m, { autoTranspose: true }).diagonal;
+      const kF = Math.sqrt(sv.reduce((a, s) => a + s * s, 0) * sv.reduce((a, s) => a + 1 / (s * s), 0));
+      const k2 = Math.max(...sv) / Math.min(...sv);
+      expect(Math.abs(fit.condition - kF) / kF).toBeLessThan(1e-6);
+      expect(fit.condition).toBeGreaterThanOrEqual(k2 * (1 - 1e-9));
+      expect(fit.condition).toBeLessThanOrEqual(cols * k2);
+    }
+  });
+});
