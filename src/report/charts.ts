@@ -370,8 +370,9 @@ function levelText(level: number): string {
 }
 
 /**
- * Forecast after the history: observed in slate, the point forecast in orange (joined to the
- * last observation), interval bands shaded in translucent orange, narrowest level darkest.
+ * Forecast after the history: observed in slate, the point forecast in orange, interval bands
+ * shaded in translucent orange, narrowest level darkest. Line and bands start from the last
+ * observation (zero width there), so the forecast reads as its continuation.
  */
 export function forecastChart(input: ForecastChartInput): Buffer {
   const { width, height } = resolveSize(input);
@@ -388,14 +389,16 @@ export function forecastChart(input: ForecastChartInput): Buffer {
   const forecastLine = anchor !== null && fc.length > 0 && anchor.x < fc[0].x ? [anchor, ...fc] : fc;
   const datasets: ChartDataset<'line', Point[]>[] = [
     lineDataset('observed', hist, palette.observed, { points: showPoints(hist.length), order: 1 }),
-    lineDataset('forecast', forecastLine, palette.forecast, { points: showPoints(fc.length) && fc.length > 1, order: 0 }),
+    lineDataset('forecast', forecastLine, palette.forecast, { points: showPoints(fc.length), order: 0 }),
   ];
   const styles: LegendStyle[] = datasets.map(lineLegend);
   const bands = [...(input.forecast.bands ?? [])].sort((a, b) => a.level - b.level);
   bands.forEach((band, i) => {
     const color = palette.bands[Math.min(i, palette.bands.length - 1)];
-    const upper = points(input.forecast.time, band.upper, f);
-    const lower = points(input.forecast.time, band.lower, f);
+    // bands open from the last observation, like the forecast line, so a one-step band shows too
+    const anchored = (p: Point[]): Point[] => (forecastLine !== fc && anchor !== null ? [anchor, ...p] : p);
+    const upper = anchored(points(input.forecast.time, band.upper, f));
+    const lower = anchored(points(input.forecast.time, band.lower, f));
     const order = 10 + i;
     datasets.push({ ...lineDataset(levelText(band.level), upper, color, { width: 0, order }), backgroundColor: color, fill: '+1' });
     datasets.push({ ...lineDataset('', lower, color, { width: 0, order }), fill: false });
@@ -453,7 +456,8 @@ function shorten(name: string, max: number): string {
 }
 
 function deltaText(d: number): string {
-  return d === 0 ? '0 (best)' : `+${d < 10 ? d.toFixed(2) : d < 100 ? d.toFixed(1) : d.toFixed(0)}`;
+  if (d === 0) return '0 (best)';
+  return `+${d < 0.01 ? String(Number(d.toPrecision(2))) : d < 10 ? d.toFixed(2) : d < 100 ? d.toFixed(1) : d.toFixed(0)}`;
 }
 
 /**
@@ -504,6 +508,7 @@ export function rankingChart(input: RankingChartInput): Buffer {
           backgroundColor: shown.map((c) => (c.delta === bestDelta ? palette.bestBar : palette.bar)),
           borderWidth: 0,
           minBarLength: 4,
+          maxBarThickness: 30,
           barPercentage: 0.78,
           categoryPercentage: 0.9,
         },
