@@ -57,7 +57,7 @@ describe('certa search', () => {
     expect(body.theta.length).toBe(structure.terms.length);
     expect(body.series.name).toBe('sales');
     expect(body.criterion.name).toBe('aicc');
-    expect((structure.spec as { inputs: { delay: number }[] }).inputs[0].delay).toBe(2);
+    expect((structure.spec as unknown as { inputs: { delay: number }[] }).inputs[0].delay).toBe(2);
     // No temporary files left behind by the atomic writes.
     expect(readdirSync(out).filter((f) => f.endsWith('.tmp'))).toEqual([]);
   });

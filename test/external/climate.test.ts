@@ -22,7 +22,7 @@ describe('climate: temperature anomaly against CO₂ forcing', () => {
 
   it('finds the forcing, beats the best input-free structure by > 10 AICc, and implies 1.5–4.5 °C per doubling', () => {
     const withForcing = search(series, { trend: 'off', families: ['arx'] });
-    const spec = withForcing.winner.structure.spec as { inputs: { name: string }[] };
+    const spec = withForcing.winner.structure.spec as unknown as { inputs: { name: string }[] };
     expect(spec.inputs.map((i) => i.name)).toEqual(['forcing']);
     const noInput = search(series, { trend: 'auto', inputs: [], families: ['arx'], sampleStart: withForcing.sample.from });
     expect(noInput.sample).toEqual(withForcing.sample);
