@@ -19,8 +19,8 @@
  * Cost O(1) per draw; no allocation after creation.
  *
  * @example
- *   const rng = createRng(42);
- *   rng.uniform(); // in [0, 1); the same sequence for every run with seed 42
+ *   const rng = createRng(7);
+ *   rng.uniform(); // in [0, 1); the same sequence for every run with seed 7
  *                  // (asserted in test/linalg/random.test.ts)
  */
 
