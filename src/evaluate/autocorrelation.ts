@@ -14,7 +14,7 @@
  *
  * Returned array: index k − 1 holds r_k. Cost O(n · maxLag).
  * Source: Box, Jenkins, Reinsel & Ljung, "Time Series Analysis: Forecasting and Control",
- * 5th ed. (2015), section 2.1.5, eq. (2.1.12).
+ * 5th ed. (2015), chapter 2 (estimation of the autocorrelation function).
  * @example sampleAutocorrelations([1, 3, 1, 3], 2) → [−0.75, 0.5]   // −3/4, 2/4
  */
 export function sampleAutocorrelations(x: ArrayLike<number>, maxLag: number): Float64Array {

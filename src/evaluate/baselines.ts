@@ -30,7 +30,7 @@ function checkInputs(name: string, train: Float64Array, h: number, needed = 1): 
  * Naive forecast: every horizon repeats the last observation, ŷ_{n+k} = y_n.
  *
  * Source: Hyndman & Athanasopoulos, "Forecasting: principles and practice", 3rd ed. (2021),
- * section 5.2 (naïve method).
+ * chapter 5 (simple forecasting methods: naïve).
  * @example naive([3, 5, 4], 2, null) → [4, 4]
  */
 export const naive: Baseline = (train, h) => {
@@ -43,7 +43,7 @@ export const naive: Baseline = (train, h) => {
  * season repeated as often as needed: ŷ_{n+k} = y_{n+k−m(⌊(k−1)/m⌋+1)}.
  *
  * With `season` null or 1 this is the naive forecast. Needs n ≥ m training values.
- * Source: Hyndman & Athanasopoulos (2021), section 5.2 (seasonal naïve method).
+ * Source: Hyndman & Athanasopoulos (2021), chapter 5 (simple forecasting methods: seasonal naïve).
  * @example seasonalNaive([1, 2, 3, 4, 5, 6], 5, 4) → [3, 4, 5, 6, 3]
  */
 export const seasonalNaive: Baseline = (train, h, season) => {
@@ -61,7 +61,7 @@ export const seasonalNaive: Baseline = (train, h, season) => {
  * ŷ_{n+k} = y_n + k · (y_n − y_1) / (n − 1).
  *
  * With a single training value the slope is undefined and taken as zero (the naive forecast).
- * `season` is ignored. Source: Hyndman & Athanasopoulos (2021), section 5.2 (drift method).
+ * `season` is ignored. Source: Hyndman & Athanasopoulos (2021), chapter 5 (simple forecasting methods: drift).
  * @example drift([2, 4, 8], 2, null) → [11, 14]   // slope (8 − 2)/2 = 3
  */
 export const drift: Baseline = (train, h) => {
@@ -95,8 +95,9 @@ export interface SeasonalityTest {
  * A NaN autocorrelation (constant series) tests not seasonal. Needs m ≥ 2 and n > m.
  *
  * Sources: the test as applied before Naive2 in the M3 competition, Makridakis & Hibon,
- * "The M3-Competition: results, conclusions and implications", IJF 16 (2000), section 2 (a 90 %
- * autocorrelation test); Bartlett's formula: Box, Jenkins, Reinsel & Ljung (2015), eq. (2.1.15).
+ * "The M3-Competition: results, conclusions and implications", IJF 16 (2000) (a 90 %
+ * autocorrelation test); Bartlett's approximation to the variance of r_k: Box, Jenkins,
+ * Reinsel & Ljung, "Time Series Analysis: Forecasting and Control", 5th ed. (2015), chapter 2.
  */
 export function seasonalityTest(train: ArrayLike<number>, m: number): SeasonalityTest {
   if (!Number.isInteger(m) || m < 2) throw new RangeError(`seasonalityTest: season must be an integer ≥ 2, got ${m}`);
@@ -116,8 +117,8 @@ export function seasonalityTest(train: ArrayLike<number>, m: number): Seasonalit
  * Even m = 2k (the "2×m-MA"): T_t = (1/m) [½ y_{t−k} + Σ_{j=−k+1}^{k−1} y_{t+j} + ½ y_{t+k}].
  * Positions within k of either end have no centred window and hold NaN.
  *
- * Source: Hyndman & Athanasopoulos (2021), sections 3.3 (moving averages of moving averages) and
- * 3.4 (classical decomposition).
+ * Source: Hyndman & Athanasopoulos (2021), chapter 3 (moving averages of moving averages;
+ * classical decomposition).
  * @example centredMovingAverage([1, 2, 3, 4, 5], 2) → [NaN, 2, 3, 4, NaN]   // (½·1 + 2 + ½·3)/2
  */
 export function centredMovingAverage(y: ArrayLike<number>, m: number): Float64Array {
@@ -147,7 +148,7 @@ export function centredMovingAverage(y: ArrayLike<number>, m: number): Float64Ar
  * normalised to average exactly 1: I_p = raw_p · m / Σ_q raw_q.
  * Needs n ≥ 2m (so every position has at least one ratio) and positive values.
  *
- * Source: Hyndman & Athanasopoulos (2021), section 3.4 (classical multiplicative decomposition);
+ * Source: Hyndman & Athanasopoulos (2021), chapter 3 (classical multiplicative decomposition);
  * Makridakis, Wheelwright & Hyndman, "Forecasting: Methods and Applications", 3rd ed. (1998),
  * chapter 3 (ratio-to-moving-average method).
  */
@@ -227,8 +228,8 @@ export function naive2Details(train: Float64Array, h: number, season: number | n
  *    forward and multiplied back by the index of the target's season.
  * 3. Otherwise ŷ_{n+k} = y_n (plain naive). `naive2Details` says which case applied.
  *
- * Source: Makridakis & Hibon (2000), section 2 (Naive2); decomposition as in Hyndman &
- * Athanasopoulos (2021), section 3.4.
+ * Source: Makridakis & Hibon (2000) (the Naive2 benchmark); decomposition as in Hyndman &
+ * Athanasopoulos (2021), chapter 3.
  */
 export const naive2: Baseline = (train, h, season) => naive2Details(train, h, season).forecast;
 

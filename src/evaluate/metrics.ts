@@ -32,7 +32,7 @@ function checkSameLength(a: ArrayLike<number>, b: ArrayLike<number>, what: strin
  * Mean absolute error, MAE = (1/n) Σ |X_i − F_i|.
  *
  * Source: Hyndman & Koehler, "Another look at measures of forecast accuracy", International
- * Journal of Forecasting 22 (2006), section 3.1 (scale-dependent measures).
+ * Journal of Forecasting 22 (2006) (scale-dependent measures).
  * @example mae([1, 2, 3], [2, 2, 5]) === 1   // (1 + 0 + 2) / 3
  */
 export function mae(actual: ArrayLike<number>, forecast: ArrayLike<number>): number {
@@ -46,7 +46,7 @@ export function mae(actual: ArrayLike<number>, forecast: ArrayLike<number>): num
 /**
  * Root mean squared error, RMSE = sqrt((1/n) Σ (X_i − F_i)²).
  *
- * Source: Hyndman & Koehler (2006), section 3.1.
+ * Source: Hyndman & Koehler (2006) (scale-dependent measures).
  * @example rmse([1, 2, 3], [2, 2, 5]) === Math.sqrt(5 / 3)   // (1 + 0 + 4) / 3
  */
 export function rmse(actual: ArrayLike<number>, forecast: ArrayLike<number>): number {
@@ -65,7 +65,7 @@ export function rmse(actual: ArrayLike<number>, forecast: ArrayLike<number>): nu
  * a positive value means the forecasts were on average too low (under-forecasting), a negative
  * value too high.
  *
- * Source: Hyndman & Koehler (2006), section 3 (e_t = Y_t − F_t).
+ * Source: Hyndman & Koehler (2006) (forecast error e_t = Y_t − F_t).
  * @example meanError([3, 5], [1, 6]) === 0.5   // (2 + (−1)) / 2
  */
 export function meanError(actual: ArrayLike<number>, forecast: ArrayLike<number>): number {
@@ -81,7 +81,7 @@ export function meanError(actual: ArrayLike<number>, forecast: ArrayLike<number>
  * where the sum and the count n' run over the points whose actual is not zero. Points with
  * X_i = 0 are excluded and counted in `excluded`.
  *
- * Source: Hyndman & Koehler (2006), section 3.2 (p_t = 100 e_t / Y_t; undefined for Y_t = 0).
+ * Source: Hyndman & Koehler (2006) (percentage errors p_t = 100 e_t / Y_t; undefined for Y_t = 0).
  * @example mape([100, 0, 50], [110, 3, 40]) → { value: ≈15, excluded: 1 }   // (10 % + 20 %) / 2
  */
 export function mape(actual: ArrayLike<number>, forecast: ArrayLike<number>): ExcludingMetric {
@@ -112,7 +112,7 @@ export function mape(actual: ArrayLike<number>, forecast: ArrayLike<number>): Ex
  * published M3 formula, meant for positive series.
  *
  * Source: Makridakis & Hibon, "The M3-Competition: results, conclusions and implications",
- * International Journal of Forecasting 16 (2000), section 2 (symmetric MAPE).
+ * International Journal of Forecasting 16 (2000) (the symmetric MAPE of the competition).
  * @example smape([100, 50], [110, 40]) → { value: (2000/210 + 2000/90) / 2, excluded: 0 }
  */
 export function smape(actual: ArrayLike<number>, forecast: ArrayLike<number>): ExcludingMetric {
@@ -139,9 +139,9 @@ export function smape(actual: ArrayLike<number>, forecast: ArrayLike<number>): E
  * series, Q = (1/(n − m)) Σ_{t=m+1}^{n} |y_t − y_{t−m}| (m = 1: the one-step naive forecast).
  *
  * Returns NaN when the training series has n ≤ m points (no in-sample forecast exists).
- * Source: Hyndman & Koehler (2006), section 3.4, eq. for q_t (non-seasonal, m = 1); the
+ * Source: Hyndman & Koehler (2006), scaled errors q_t (non-seasonal, m = 1); the
  * seasonal form with period m: Hyndman & Athanasopoulos, "Forecasting: principles and
- * practice", 3rd ed. (2021), section 5.8 (scaled errors).
+ * practice", 3rd ed. (2021), chapter 5 (evaluating point forecast accuracy, scaled errors).
  * @example maseScale([1, 3, 2, 5], 1) === 2   // (|3−1| + |2−3| + |5−2|) / 3 = 6 / 3
  */
 export function maseScale(train: ArrayLike<number>, m: number): number {
@@ -161,8 +161,8 @@ export function maseScale(train: ArrayLike<number>, m: number): number {
  * When Q = 0 (a training series that the seasonal naive forecast fits exactly) the result is
  * +Infinity, or NaN when the out-of-sample errors are all zero too; NaN also when the training
  * series is too short (n ≤ m).
- * Source: Hyndman & Koehler (2006), section 3.4; seasonal scale as in Hyndman & Athanasopoulos
- * (2021), section 5.8.
+ * Source: Hyndman & Koehler (2006) (scaled errors); seasonal scale as in Hyndman &
+ * Athanasopoulos (2021), chapter 5.
  * @example mase([6, 4], [5, 5], [1, 3, 2, 5], 1) === 0.5   // MAE 1 / scale 2
  */
 export function mase(actual: ArrayLike<number>, forecast: ArrayLike<number>, train: ArrayLike<number>, m = 1): number {
@@ -175,7 +175,7 @@ export function mase(actual: ArrayLike<number>, forecast: ArrayLike<number>, tra
  *
  * A NaN actual or bound makes the result NaN.
  * Source: the usual definition of empirical coverage, e.g. Gneiting & Raftery, "Strictly proper
- * scoring rules, prediction, and estimation", JASA 102 (2007), section 6.2.
+ * scoring rules, prediction, and estimation", JASA 102 (2007) (interval forecasts).
  * @example intervalCoverage([1, 5, 9], [0, 0, 0], [4, 6, 8]) === 2 / 3
  */
 export function intervalCoverage(actual: ArrayLike<number>, lower: ArrayLike<number>, upper: ArrayLike<number>): number {
@@ -198,7 +198,7 @@ export function intervalCoverage(actual: ArrayLike<number>, lower: ArrayLike<num
  * S_α(l, u; x) = (u − l) + (2/α)(l − x)·1{x < l} + (2/α)(x − u)·1{x > u}.
  *
  * `alpha` is the nominal non-coverage: 0.05 for 95 % intervals, 0.2 for 80 %.
- * Source: Gneiting & Raftery (2007), section 6.2, eq. (43) (the score there is positively
+ * Source: Gneiting & Raftery (2007), eq. (43) (the score there is positively
  * oriented, S = −(this); here it is reported as a loss, the form used in forecasting practice).
 A NaN actual or bound makes the result NaN.
  * @example intervalScore([5], [0], [4], 0.2) === 4 + 10 * 1   // width 4, miss by 1, 2/α = 10

@@ -548,7 +548,7 @@ function defaultMaxLag(n: number, season: number | null | undefined): number {
  * (top), and their sample autocorrelations r_1 … r_L as bars with the approximate 95 % bounds
  * ±1.96/√n of white noise, n the number of finite residuals (bottom).
  * Autocorrelations: `sampleAutocorrelations` (missing residuals skipped pairwise). The bounds:
- * Box, Jenkins, Reinsel & Ljung, "Time Series Analysis", 5th ed. (2015), section 2.1.6
+ * Box, Jenkins, Reinsel & Ljung, "Time Series Analysis", 5th ed. (2015), chapter 2
  * (standard error 1/√n of r_k for white noise).
  */
 export function residualChart(input: ResidualChartInput): Buffer {
