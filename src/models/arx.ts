@@ -202,8 +202,13 @@ export class ArxStructure implements Structure {
     return this.spec.inputs.map((i) => inputValues(series, i.name));
   }
 
-  /** Writes the regressor row of time t (from w and v) into out[o …]. */
-  private fillRow(t: number, w: Float64Array, v: Float64Array[], out: Float64Array, o: number): void {
+  /**
+   * Writes the regressor row of position t (from w and v) into out[o …]. Deterministic terms
+   * (trend, harmonics) are evaluated at the absolute time t + `origin`, where `origin` is the
+   * number of observations before the series (`series.before.count`), so a model continues on a
+   * later window of its series with the same rows it had on the whole series.
+   */
+  private fillRow(t: number, w: Float64Array, v: Float64Array[], out: Float64Array, o: number, origin: number): void {
     out[o] = 1;
     const ar = this.spec.ar;
     const arAt = o + this.arAt - 1;
@@ -217,7 +222,7 @@ export class ArxStructure implements Structure {
       const at = o + this.inputAt[j];
       for (let l = 0; l < lags; l++) out[at + l] = vj[first - l];
     }
-    this.fillDet(t, out, o + this.detAt);
+    this.fillDet(t + origin, out, o + this.detAt);
   }
 
   regression(series: Series, from: number, to: number): Regression {
@@ -226,6 +231,7 @@ export class ArxStructure implements Structure {
     const rows = Math.max(0, end - start);
     const p = this.terms.length;
     const { w, v } = this.prepare(series, series.values, this.inputsOf(series));
+    const origin = series.before?.count ?? 0;
     const phi: DesignMatrix = { rows, cols: p, data: new Float64Array(rows * p) };
     const y = new Float64Array(rows);
     const index = new Int32Array(rows);
@@ -233,7 +239,7 @@ export class ArxStructure implements Structure {
       const t = start + r;
       index[r] = t;
       y[r] = w[t];
-      this.fillRow(t, w, v, phi.data, r * p);
+      this.fillRow(t, w, v, phi.data, r * p, origin);
     }
     return { index, y, phi };
   }
@@ -264,8 +270,9 @@ export class ArxStructure implements Structure {
     const out = new Float64Array(n).fill(NaN);
     const p = this.terms.length;
     const row = new Float64Array(p);
+    const origin = series.before?.count ?? 0;
     for (let t = Math.max(from, this.history); t < to; t++) {
-      this.fillRow(t, w, v, row, 0);
+      this.fillRow(t, w, v, row, 0, origin);
       let pred = 0;
       for (let j = 0; j < p; j++) pred += row[j] * theta[j];
       out[t - from] = this.D > 0 ? z[t - this.D] + pred : pred;
@@ -306,8 +313,9 @@ export class ArxStructure implements Structure {
     const p = this.terms.length;
     const row = new Float64Array(p);
     const out = new Float64Array(h);
+    const origin = series.before?.count ?? 0;
     for (let t = n; t < n + h; t++) {
-      this.fillRow(t, w, v, row, 0);
+      this.fillRow(t, w, v, row, 0, origin);
       let pred = 0;
       for (let j = 0; j < p; j++) pred += row[j] * theta[j];
       if (shocks) pred += shocks[t - n];

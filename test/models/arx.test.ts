@@ -61,6 +61,20 @@ describe('ArxStructure.regression', () => {
     expect(r[2]).toBe(7);
   });
 
+  it('continues trend and harmonics on a later window of the series (series.before.count as time origin)', () => {
+    const y = Array.from({ length: 30 }, (_, t) => 10 + Math.sin(t) + 0.1 * t);
+    const u = Array.from({ length: 30 }, (_, t) => Math.cos(0.7 * t));
+    const s = new ArxStructure({ ...base, ar: 1, inputs: [{ name: 'u', lags: 1, delay: 1 }], trend: true, harmonics: 2, season: 12 });
+    const full = s.regression(makeSeries(y, { u }), 0, 30);
+    const win = makeSeries(y.slice(10), { u: u.slice(10) });
+    win.before = { count: 10, sum: y.slice(0, 10).reduce((a, b) => a + b, 0) };
+    const part = s.regression(win, 0, 20);
+    // Window row r is full row t = 10 + r, for r ≥ history 1.
+    for (let r = 0; r < part.y.length; r++) {
+      expect(Array.from(row(part.phi, r))).toEqual(Array.from(row(full.phi, r + 10)));
+    }
+  });
+
   it('keeps only the cosine of the k = s/2 harmonic (its sine is zero at integer t)', () => {
     const s = new ArxStructure({ ...base, harmonics: 2, season: 4 });
     expect(s.terms).toEqual(['const', 'sin(2π·1·t/4)', 'cos(2π·1·t/4)', 'cos(2π·2·t/4)']);
