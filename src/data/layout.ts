@@ -138,10 +138,12 @@ function sameColumn(table: Table, name: string, a: string, b: string): UsageErro
 }
 
 function findTimeColumn(table: Table): number {
+  // A column named like a time is taken when at least half of its first cells read as times (the
+  // others then get their own message); other columns only when all of them do.
   for (const pattern of [TIME_NAMES, TIME_WORDS]) {
-    for (let c = 0; c < table.header.length; c++) if (pattern.test(table.header[c]) && readsAsTime(table.columns[c], true)) return c;
+    for (let c = 0; c < table.header.length; c++) if (pattern.test(table.header[c]) && timeShare(table.columns[c], true) >= 0.5) return c;
   }
-  for (let c = 0; c < table.header.length; c++) if (readsAsTime(table.columns[c], c === 0)) return c;
+  for (let c = 0; c < table.header.length; c++) if (timeShare(table.columns[c], c === 0) === 1) return c;
   throw new UsageError('layout-no-time', 'no time column found', {
     file: table.source,
     found: `columns ${table.header.map((h) => `"${h}"`).join(', ')}`,
@@ -150,33 +152,27 @@ function findTimeColumn(table: Table): number {
   });
 }
 
-/** The first present cells all read as times; integers count only when `integersToo`. */
-function readsAsTime(cells: readonly Cell[], integersToo: boolean): boolean {
+/** Share of the first present cells (up to 20) that read as times; integers count only when `integersToo`. */
+function timeShare(cells: readonly Cell[], integersToo: boolean): number {
   let seen = 0;
+  let times = 0;
   for (let r = 0; r < cells.length && seen < 20; r++) {
     const c = cells[r];
-    if (c === null) continue;
-    if (c instanceof ExcelSerial) {
-      seen++;
-      continue;
-    }
-    if (typeof c === 'number') {
-      if (!integersToo || !Number.isInteger(c)) return false;
-      seen++;
-      continue;
-    }
-    if (typeof c !== 'string') return false;
-    const s = c.trim();
-    if (isMissingText(s)) continue;
-    if (numericDayMonthFields(s)) {
-      seen++;
-      continue;
-    }
-    const p = parseTimeText(s, null);
-    if (!p || (!integersToo && (p.kind === 'index' || p.kind === 'year'))) return false;
+    if (c === null || (typeof c === 'string' && isMissingText(c))) continue;
     seen++;
+    if (c instanceof ExcelSerial) times++;
+    else if (typeof c === 'number') {
+      if (integersToo && Number.isInteger(c)) times++;
+    } else if (typeof c === 'string') {
+      const s = c.trim();
+      if (numericDayMonthFields(s)) times++;
+      else {
+        const p = parseTimeText(s, null);
+        if (p && (integersToo || (p.kind !== 'index' && p.kind !== 'year'))) times++;
+      }
+    }
   }
-  return seen > 0;
+  return seen > 0 ? times / seen : 0;
 }
 
 /** Mostly non-numeric cells (more than half of the first present ones). */

@@ -4,7 +4,6 @@
  * workbook's date system (1900 or 1904), so dates.ts maps them by the ECMA-376 rules rather
  * than by the library's conversion. Formula cells contribute their cached result.
  */
-import ExcelJS from 'exceljs';
 import { DataError, UsageError } from './errors.js';
 import { checkHeader } from './csv.js';
 import { ExcelSerial, type Cell, type Table } from './table.js';
@@ -16,6 +15,8 @@ const UNIX_EPOCH_SERIAL = 25569;
 const EPOCH_1904_OFFSET = 1462;
 
 export async function parseXlsx(bytes: Buffer, file: string, sheetName?: string): Promise<Table> {
+  // Loaded on first use: the library is large and most runs read text files.
+  const { default: ExcelJS } = await import('exceljs');
   const workbook = new ExcelJS.Workbook();
   try {
     await workbook.xlsx.load(bytes as unknown as ArrayBuffer);
