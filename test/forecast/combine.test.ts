@@ -1,0 +1,76 @@
+import { describe, expect, it } from 'vitest';
+import type { Series } from '../../src/data/series.js';
+import { createRng } from '../../src/linalg/random.js';
+import { search } from '../../src/select/search.js';
+import { combinationMembers, combineForecasts, combineRanking, isExplosivePath } from '../../src/forecast/combine.js';
+
+function series(values: number[]): Series {
+  return {
+    name: 'y',
+    frequency: 'index',
+    season: null,
+    time: Float64Array.from(values, (_, i) => i),
+    values: Float64Array.from(values),
+    inputs: [],
+  };
+}
+
+const rng = createRng(7);
+const noisy = series(Array.from({ length: 40 }, (_, t) => 10 + 0.3 * t + rng.normal()));
+
+describe('isExplosivePath', () => {
+  it('accepts a path continuing the trend and refuses one that moves more than k·range in k steps', () => {
+    expect(isExplosivePath([1, 2, 3], [4, 5])).toBe(false);
+    expect(isExplosivePath([1, 2, 3], [4, 1e6])).toBe(true);
+    expect(isExplosivePath([1, 2, 3], [Infinity])).toBe(true);
+  });
+});
+
+describe('combinationMembers', () => {
+  it('takes candidates best first until their Akaike weights cover the mass', () => {
+    const found = search(noisy, { families: ['arx'] });
+    const members = combinationMembers(found.ranking, { mass: 0.9 });
+    expect(members[0].result.key).toBe(found.winner.result.key);
+    let before = 0;
+    for (let i = 0; i < members.length - 1; i++) before += members[i].result.weight;
+    expect(before).toBeLessThan(0.9);
+    expect(members.length).toBeLessThanOrEqual(found.fitted);
+  });
+
+  it('with mass 0 keeps the winner alone, so the combination is the winner’s forecast', () => {
+    const found = search(noisy, { families: ['arx'] });
+    const c = combineRanking(found.ranking, noisy, 5, { mass: 0 });
+    const own = found.winner.structure.simulate(found.winner.estimate.theta, noisy, [], 5);
+    expect(c.members.length).toBe(1);
+    expect(Array.from(c.point)).toEqual(Array.from(own));
+  });
+});
+
+describe('combineForecasts', () => {
+  const found = search(noisy, { families: ['arx'] });
+  const members = combinationMembers(found.ranking, { maxMembers: 3 });
+
+  it('is the weight-normalised mean of the members’ forecasts', () => {
+    const c = combineForecasts(members, 2, (s, e) => s.simulate(e.theta, noisy, [], 2), noisy.values);
+    const total = members.reduce((a, m) => a + m.result.weight, 0);
+    for (let k = 0; k < 2; k++) {
+      const want = members.reduce((a, m) => a + (m.result.weight / total) * m.structure.simulate(m.estimate.theta, noisy, [], 2)[k], 0);
+      expect(c.point[k]).toBeCloseTo(want, 10);
+    }
+    expect(c.members.reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 12);
+  });
+
+  it('leaves out an exploding member and renormalises the others', () => {
+    const bad = members[0].result.key;
+    const c = combineForecasts(
+      members,
+      2,
+      (s, e) => (s.key === bad ? Float64Array.of(1e9, 1e18) : s.simulate(e.theta, noisy, [], 2)),
+      noisy.values,
+    );
+    expect(c.members[0].excluded).toBe('explosive simulated path');
+    expect(c.members[0].share).toBe(0);
+    expect(c.members.slice(1).reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 12);
+    expect(c.point.every(Number.isFinite)).toBe(true);
+  });
+});
