@@ -314,7 +314,8 @@ class OdeStructure implements Structure {
     }
     if (this.spec.state === 'level') return Float64Array.from(y);
     const x = new Float64Array(y.length);
-    let acc = this.spec.initialCumulative;
+    // A later window of the series continues the sum of everything before it (series.before).
+    let acc = this.spec.initialCumulative + (series.before?.sum ?? 0);
     for (let i = 0; i < y.length; i++) {
       if (y[i] < 0) {
         throw new ModelError('negative-for-cumulative', `a cumulative-state ODE needs non-negative per-period values; series "${series.name}" has ${y[i]} at observation ${i}`, {
@@ -329,9 +330,13 @@ class OdeStructure implements Structure {
     return x;
   }
 
-  /** τ of observation t in base periods (see module comment). */
-  tau(t: number, dt: number): number {
-    return (t + (this.spec.state === 'cumulative' ? 1 : 0)) * dt;
+  /**
+   * τ of observation t in base periods (see module comment); `origin` is the number of
+   * observations before the series (`series.before.count`), so a later window of a series keeps
+   * the τ it had in the whole series.
+   */
+  tau(t: number, dt: number, origin = 0): number {
+    return (origin + t + (this.spec.state === 'cumulative' ? 1 : 0)) * dt;
   }
 
   private inputColumns(series: Series): Float64Array[] {
@@ -428,6 +433,7 @@ class OdeStructure implements Structure {
     const y = new Float64Array(rows);
     const index = new Int32Array(rows);
     const fill = this.library();
+    const origin = series.before?.count ?? 0;
     const ua = new Float64Array(cols.length);
     const ub = new Float64Array(cols.length);
     for (let r = 0; r < rows; r++) {
@@ -438,8 +444,8 @@ class OdeStructure implements Structure {
       }
       index[r] = t;
       y[r] = x[t] - x[t - 1];
-      fill(this.tau(t - 1, dt), x[t - 1], ua, dt / 2, phi.data, r * p, false);
-      fill(this.tau(t, dt), x[t], ub, dt / 2, phi.data, r * p, true);
+      fill(this.tau(t - 1, dt, origin), x[t - 1], ua, dt / 2, phi.data, r * p, false);
+      fill(this.tau(t, dt, origin), x[t], ub, dt / 2, phi.data, r * p, true);
     }
     return { index, y, phi };
   }
@@ -463,6 +469,7 @@ class OdeStructure implements Structure {
     const dt = this.dt(series);
     const cols = this.inputColumns(series);
     const hi = Math.min(to, x.length);
+    const origin = series.before?.count ?? 0;
     const out = new Float64Array(Math.max(0, hi - from));
     const ua = new Float64Array(cols.length);
     const ub = new Float64Array(cols.length);
@@ -471,7 +478,7 @@ class OdeStructure implements Structure {
         ua[k] = cols[k][t - 1];
         ub[k] = cols[k][t];
       }
-      const tauA = this.tau(t - 1, dt);
+      const tauA = this.tau(t - 1, dt, origin);
       const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, x[t - 1], dt, this.substeps(theta, x[t - 1], dt));
       const yhat = this.spec.state === 'level' ? next : next - x[t - 1];
       out[t - from] = this.spec.transform === 'log' ? Math.log(yhat) : yhat;
@@ -500,9 +507,10 @@ class OdeStructure implements Structure {
     const ub = new Float64Array(cols.length);
     for (let k = 0; k < cols.length; k++) ua[k] = cols[k][n - 1];
     let state = x[n - 1];
+    const origin = series.before?.count ?? 0;
     for (let j = 0; j < h; j++) {
       for (let k = 0; k < cols.length; k++) ub[k] = future[idx[k]][j];
-      const tauA = this.tau(n - 1 + j, dt);
+      const tauA = this.tau(n - 1 + j, dt, origin);
       const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, state, dt, this.substeps(theta, state, dt));
       let yhat = this.spec.state === 'level' ? next : next - state;
       if (shocks) yhat = this.spec.transform === 'log' ? Math.exp(Math.log(yhat) + shocks[j]) : yhat + shocks[j];

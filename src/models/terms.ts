@@ -2,7 +2,9 @@
  * Deterministic regressors shared by model families: intercept, linear trend and seasonal
  * Fourier pairs.
  *
- * Time enters as the 0-based position t in the series (the same index Structure rows use).
+ * Time enters as the 0-based count t of observations since the first one ever seen: the
+ * position in the series plus `series.before.count` when the series is a later window of a
+ * longer one (families add that offset before calling the filler).
  * Seasonal harmonics of period s are the pairs sin(2πkt/s), cos(2πkt/s) for k = 1…K,
  * K ≤ ⌊s/2⌋: a trigonometric-polynomial representation of a periodic mean (Harvey 1989,
  * "Forecasting, Structural Time Series Models and the Kalman Filter", §2.3.4). For even s the
