@@ -370,12 +370,19 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
   const y = series.values;
   const zByTransform = new Map<Transform, Float64Array>();
   const jacByTransform = new Map<Transform, number>();
+  const tssByTransform = new Map<Transform, number>();
   const zOf = (t: Transform) => {
     let z = zByTransform.get(t);
     if (!z) {
       z = forward(t, y);
       zByTransform.set(t, z);
       jacByTransform.set(t, logJacobian(t, y, from, to));
+      let mean = 0;
+      for (let i = from; i < to; i++) mean += z[i];
+      mean /= to - from;
+      let tss = 0;
+      for (let i = from; i < to; i++) tss += (z[i] - mean) ** 2;
+      tssByTransform.set(t, tss);
     }
     return z;
   };
@@ -415,7 +422,9 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       results.push(failed(s, `too short: ${rows} rows for ${k} parameters (AICc needs n − k − 1 > 0)`, from, to));
       continue;
     }
-    if (rss === 0) {
+    // An exact fit (up to rounding: RSS ≤ 1e−20 of the total sum of squares) makes log L
+    // unbounded; it means an input restates the target, not that the structure is right.
+    if (rss <= 1e-20 * (tssByTransform.get(s.transform) ?? 0)) {
       results.push(failed(s, 'exact fit (zero one-step errors): the target is a deterministic function of its regressors', from, to));
       continue;
     }

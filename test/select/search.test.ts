@@ -171,6 +171,17 @@ describe('search: candidates that cannot be fitted and bad input', () => {
     expect(() => search(makeSeries(y, { copy: y }))).toThrow(/identical to the series/);
   });
 
+  it('lists exact fits (an input that restates the target) as failed instead of letting them win', () => {
+    const y = simulateArx({ n: 80, c: 1, a: [0.5], e: noise(130, 1, 78) });
+    const twice = Array.from(y, (v) => 2 * v + 1);
+    const r = search(makeSeries(y, { twice }, { frequency: 'index', season: null }), { families: ['arx'], transform: 'none' });
+    const exact = r.ranking.filter((c) => /exact fit/.test(c.reason ?? ''));
+    expect(exact.length).toBeGreaterThan(0);
+    expect(exact.every((c) => (c.spec as unknown as ArxSpec).inputs.some((i) => i.delay === 0))).toBe(true);
+    expect(Number.isFinite(r.winner.result.aicc)).toBe(true);
+    expect(specOf(r).inputs.every((i) => i.delay > 0)).toBe(true);
+  });
+
   it('refuses log for a series with values ≤ 0 and unknown inputs or families', () => {
     const s = makeSeries(noise(50, 1, 76));
     expect(() => search(s, { transform: 'log' })).toThrow(/strictly positive/);
