@@ -1,0 +1,31 @@
+/**
+ * certa as a library: load a series, search structures, assert and forecast, keep a model
+ * learning. The CLI is a thin shell over these functions; they never print or exit, they throw
+ * the typed errors of `data/errors.ts`.
+ */
+export { loadSeries, loadTable, seriesFromTable, type LoadOptions, type LoadReport } from './data/load.js';
+export type { Series, SeriesInput } from './data/series.js';
+export { sliceSeries } from './data/series.js';
+export { formatTime, stepTime, seasonPeriod, type Frequency } from './data/calendar.js';
+export { CertaError, DataError, UsageError, ModelError, StoreError, isCertaError } from './data/errors.js';
+
+export { lstsq, type LstsqResult } from './linalg/lstsq.js';
+export { Rls } from './linalg/rls.js';
+export { sparseRegression } from './linalg/sparse.js';
+export { createRng } from './linalg/random.js';
+export { criteria, akaikeWeights, type Criterion } from './select/criteria.js';
+
+export type { Structure, StructureSpec, Estimate, Derived } from './models/structure.js';
+export { structureFromSpec, FAMILIES } from './models/registry.js';
+export { search, type SearchOptions, type SearchResult } from './select/search.js';
+
+export { forecastSeries, type ForecastOptions, type ForecastRun } from './forecast/pipeline.js';
+export { forecastWithIntervals } from './forecast/intervals.js';
+export { Learner } from './forecast/online.js';
+export { createDriftState, stepDrift } from './forecast/drift.js';
+export { backtest } from './evaluate/backtest.js';
+export * as metrics from './evaluate/metrics.js';
+export { BASELINES } from './evaluate/baselines.js';
+
+export { readModelFile, writeModelFile, parseModel, serializeModel, type ModelBody } from './store/model-file.js';
+export { modelBody, assertedFromBody, windowSeries } from './store/asserted.js';
