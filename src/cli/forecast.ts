@@ -10,7 +10,7 @@ import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { loadSeries } from '../data/load.js';
 import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forecast/pipeline.js';
-import { futureFromSeries } from '../forecast/future.js';
+import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
 import { forecastCharts, forecastFiles, forecastSummary, forecastText, summaryJson } from '../report/forecast-report.js';
 import { writeModelFile } from '../store/model-file.js';
 import { modelBody } from '../store/asserted.js';
@@ -26,7 +26,7 @@ export function addForecastOptions(command: Command): Command {
     .option('--holdout <n>', 'last points withheld for evaluation (default: the smaller of two seasons and 20 % of the series; 0 skips evaluation)')
     .option('--levels <list>', 'prediction interval levels in percent (default 80,95)')
     .option('--forgetting <lambda>', 'forgetting factor of online learning, 0 < λ ≤ 1 (default 1)')
-    .option('--input-policy <how>', 'future inputs without --future: hold (last value) or trend (default hold)')
+    .option('--input-policy <how>', 'future inputs without --future: hold (last value), trend (straight line) or seasonal (repeat the last season); default seasonal for seasonal series, else hold')
     .option('--future <file>', 'file of future input values (same columns, future dates)')
     .option('--seed <n>', 'seed of simulation intervals (default 1)')
     .option('--draws <n>', 'paths of simulation intervals (default 1000)')
@@ -64,8 +64,8 @@ export function parseForecastOptions(opts: Record<string, unknown>): CliForecast
   }
   if (opts.forgetting !== undefined) f.forgetting = num('--forgetting', opts.forgetting, (v) => v > 0 && v <= 1, 'a number in (0, 1], e.g. 1, 0.99 or 0.95', false);
   if (opts.inputPolicy !== undefined) {
-    const p = String(opts.inputPolicy);
-    if (p !== 'hold' && p !== 'trend') throw new UsageError('option-invalid', 'option --input-policy has an unusable value', { found: p, expected: 'hold or trend' });
+    const p = String(opts.inputPolicy) as InputPolicy;
+    if (!INPUT_POLICIES.includes(p)) throw new UsageError('option-invalid', 'option --input-policy has an unusable value', { found: p, expected: INPUT_POLICIES.join(', ') });
     f.inputPolicy = p;
   }
   if (opts.seed !== undefined) f.intervals!.seed = num('--seed', opts.seed, (v) => v >= 0 && v <= 2 ** 53, 'a whole number ≥ 0');

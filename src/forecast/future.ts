@@ -6,12 +6,23 @@
  * output names which one was used, so nobody mistakes a scenario for a prediction of the input:
  *  - `hold`:  each input stays at its last observed value;
  *  - `trend`: each input continues the straight line fitted by least squares to its last
- *             `window` observations (default: two seasons, or 8 points, at least 3).
+ *             `window` observations (default: two seasons, or 8 points, at least 3);
+ *  - `seasonal`: each input repeats its last observed season (value s periods earlier), the
+ *             default for a seasonal series (a weather index keeps its yearly cycle; a switch
+ *             that stayed on all last season stays on). Falls back to `hold` without a season
+ *             or with less than one season of data.
  */
 import type { Series } from '../data/series.js';
 import { UsageError } from '../data/errors.js';
 
-export type InputPolicy = 'hold' | 'trend';
+export type InputPolicy = 'hold' | 'trend' | 'seasonal';
+
+export const INPUT_POLICIES: readonly InputPolicy[] = ['hold', 'trend', 'seasonal'];
+
+/** The default policy: `seasonal` for a series with a season, `hold` otherwise. */
+export function defaultInputPolicy(series: Series): InputPolicy {
+  return series.season && series.values.length >= series.season ? 'seasonal' : 'hold';
+}
 
 export interface FutureInputs {
   /** One array of length h per input, in series order. */
@@ -21,14 +32,20 @@ export interface FutureInputs {
 }
 
 /** Future inputs by a policy (see module comment). */
-export function futureByPolicy(series: Series, h: number, policy: InputPolicy, window?: number): FutureInputs {
+export function futureByPolicy(series: Series, h: number, requested: InputPolicy, window?: number): FutureInputs {
   const n = series.values.length;
+  const s = series.season;
+  const policy: InputPolicy = requested === 'seasonal' && !(s && n >= s) ? 'hold' : requested;
   const w = Math.max(3, Math.min(n, window ?? (series.season ? 2 * series.season : 8)));
   const values = series.inputs.map((input) => {
     const out = new Float64Array(h);
     const u = input.values;
     if (policy === 'hold') {
       out.fill(u[n - 1]);
+      return out;
+    }
+    if (policy === 'seasonal') {
+      for (let j = 0; j < h; j++) out[j] = u[n - s! + (j % s!)];
       return out;
     }
     // Least-squares line through the last w points, indexed 0..w-1, extended past the end.
@@ -55,7 +72,9 @@ export function futureByPolicy(series: Series, h: number, policy: InputPolicy, w
       ? 'no inputs'
       : policy === 'hold'
         ? `inputs held at their last observed values (${series.inputs.map((i) => `${i.name} = ${fmt(i.values[n - 1])}`).join(', ')})`
-        : `inputs continue the straight line through their last ${w} observations`;
+        : policy === 'seasonal'
+          ? `inputs repeat their last observed season (${s} periods)`
+          : `inputs continue the straight line through their last ${w} observations`;
   return { values, source };
 }
 

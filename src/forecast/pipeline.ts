@@ -5,7 +5,8 @@
  *
  * Defaults: horizon = two seasons (8 periods without a season); holdout = the smaller of two
  * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
- * 80 and 95 %; forgetting λ = 1; future inputs held at their last values unless given.
+ * 80 and 95 %; forgetting λ = 1; future inputs repeat their last season (seasonal series) or
+ * are held at their last values, unless given.
  */
 import type { Series } from '../data/series.js';
 import { sliceSeries } from '../data/series.js';
@@ -16,7 +17,7 @@ import type { Derived, Estimate, Structure } from '../models/structure.js';
 import { forward, inverse } from '../models/transforms.js';
 import { backtest, type Backtest } from '../evaluate/backtest.js';
 import { forecastWithIntervals, type ForecastPaths, type IntervalMethod } from './intervals.js';
-import { futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
+import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
 
 export interface ForecastOptions {
@@ -146,7 +147,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
       ? { values: [], source: 'no inputs' }
       : options.future
         ? options.future(series, horizon, Array.from(times))
-        : futureByPolicy(series, horizon, options.inputPolicy ?? 'hold');
+        : futureByPolicy(series, horizon, options.inputPolicy ?? defaultInputPolicy(series));
   const paths = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, intervalOptions);
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
