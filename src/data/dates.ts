@@ -37,22 +37,45 @@ const MONTHS: Record<string, number> = {
   nov: 10, november: 10, dec: 11, december: 11,
 };
 
-/** Days in month m (0-based) of year y, Gregorian. */
-export function daysInMonth(y: number, m: number): number {
-  return new Date(Date.UTC(y, m + 1, 0)).getUTCDate();
-}
+const MONTH_DAYS = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 
 /** Gregorian leap year rule: divisible by 4, except centuries not divisible by 400. */
 export function isLeapYear(y: number): boolean {
   return (y % 4 === 0 && y % 100 !== 0) || y % 400 === 0;
 }
 
-/** UTC ms of a calendar date (month 0-based); years 0..99 kept as written, unlike Date.UTC. */
+/** Days in month m (0-based) of year y, Gregorian. */
+export function daysInMonth(y: number, m: number): number {
+  return m === 1 && isLeapYear(y) ? 29 : MONTH_DAYS[m];
+}
+
+/**
+ * Days from 1970-01-01 to the proleptic Gregorian date y-(m+1)-d, by whole 400-year eras
+ * (146 097 days each) and a March-based year, so leap days fall at the end of the year
+ * (H. Hinnant, "chrono-Compatible Low-Level Date Algorithms", days_from_civil).
+ */
+export function daysFromCivil(y: number, m: number, d: number): number {
+  const yy = m < 2 ? y - 1 : y;
+  const era = Math.floor(yy / 400);
+  const yoe = yy - era * 400; // [0, 399]
+  const mp = (m + 10) % 12; // March = 0 (m is 0-based)
+  const doy = Math.floor((153 * mp + 2) / 5) + d - 1; // [0, 365]
+  const doe = yoe * 365 + Math.floor(yoe / 4) - Math.floor(yoe / 100) + doy; // [0, 146096]
+  return era * 146_097 + doe - 719_468;
+}
+
+/** UTC ms of a calendar date (month 0-based, in range; day valid); years 0..99 kept as written, unlike Date.UTC. */
 export function utcTime(y: number, m: number, d: number, hh = 0, mm = 0, ss = 0, ms = 0): number {
-  const date = new Date(0);
-  date.setUTCFullYear(y, m, d);
-  date.setUTCHours(hh, mm, ss, ms);
-  return date.getTime();
+  if (m < 0 || m > 11) {
+    y += Math.floor(m / 12);
+    m -= Math.floor(m / 12) * 12;
+  }
+  return daysFromCivil(y, m, d) * DAY + ((hh * 60 + mm) * 60 + ss) * 1000 + ms;
+}
+
+/** Day of the week of a UTC midnight, 0 = Sunday … 6 = Saturday (1970-01-01 was a Thursday). */
+function weekday(t: number): number {
+  return (((Math.floor(t / DAY) + 4) % 7) + 7) % 7;
 }
 
 /**
@@ -60,7 +83,7 @@ export function utcTime(y: number, m: number, d: number, hh = 0, mm = 0, ss = 0,
  * leap year; 52 otherwise (ISO 8601-1:2019, 3.1.1.23 and the week-numbering rule).
  */
 export function isoWeeksInYear(y: number): number {
-  const jan1 = new Date(utcTime(y, 0, 1)).getUTCDay(); // 0 = Sunday … 4 = Thursday
+  const jan1 = weekday(utcTime(y, 0, 1)); // 0 = Sunday … 4 = Thursday
   return jan1 === 4 || (jan1 === 3 && isLeapYear(y)) ? 53 : 52;
 }
 
@@ -72,7 +95,7 @@ export function isoWeeksInYear(y: number): number {
 export function isoWeekMonday(y: number, w: number): number {
   if (!Number.isInteger(w) || w < 1 || w > isoWeeksInYear(y)) return NaN;
   const jan4 = utcTime(y, 0, 4);
-  const isoDay = new Date(jan4).getUTCDay() || 7;
+  const isoDay = weekday(jan4) || 7;
   return jan4 - (isoDay - 1) * DAY + (w - 1) * 7 * DAY;
 }
 
@@ -114,7 +137,7 @@ function validDate(y: number, m: number, d: number): boolean {
 }
 
 /** Fast path for `YYYY-MM-DD`, the commonest form; NaN if s is not exactly that. */
-function isoDateFast(s: string): number {
+export function isoDateFast(s: string): number {
   if (s.length !== 10 || s.charCodeAt(4) !== 45 || s.charCodeAt(7) !== 45) return NaN;
   let y = 0;
   for (let i = 0; i < 4; i++) {

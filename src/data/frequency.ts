@@ -35,29 +35,30 @@ export interface FrequencyEvidence {
   text: string;
 }
 
-type Step = { months: number } | { ms: number };
+/** A step: a positive number of elapsed milliseconds, or minus a number of whole months. */
+type Step = number;
 
-function isMonthEnd(d: Date): boolean {
-  const next = new Date(d.getTime() + DAY);
-  return next.getUTCDate() === 1;
+function isMonthEnd(t: number): boolean {
+  return new Date(t + DAY).getUTCDate() === 1;
 }
 
 function classify(a: number, b: number): Step {
+  // No month is shorter than 28 days: shorter steps are elapsed time (the common daily case).
+  if (b - a < 28 * DAY) return b - a;
   const da = new Date(a);
   const db = new Date(b);
-  const sameTime = a % DAY === b % DAY || (a - b) % DAY === 0;
-  if (sameTime && (da.getUTCDate() === db.getUTCDate() || (isMonthEnd(da) && isMonthEnd(db)))) {
+  if ((a - b) % DAY === 0 && (da.getUTCDate() === db.getUTCDate() || (isMonthEnd(a) && isMonthEnd(b)))) {
     const months = (db.getUTCFullYear() - da.getUTCFullYear()) * 12 + db.getUTCMonth() - da.getUTCMonth();
-    if (months > 0) return { months };
+    if (months > 0) return -months;
   }
-  return { ms: b - a };
+  return b - a;
 }
 
 function baseOf(step: Step): Frequency | null {
-  if ('months' in step) return step.months % 12 === 0 ? 'yearly' : step.months % 3 === 0 ? 'quarterly' : 'monthly';
-  if (step.ms % WEEK === 0) return 'weekly';
-  if (step.ms % DAY === 0) return 'daily';
-  if (step.ms % HOUR === 0) return 'hourly';
+  if (step < 0) return -step % 12 === 0 ? 'yearly' : -step % 3 === 0 ? 'quarterly' : 'monthly';
+  if (step % WEEK === 0) return 'weekly';
+  if (step % DAY === 0) return 'daily';
+  if (step % HOUR === 0) return 'hourly';
   return null;
 }
 
@@ -67,39 +68,44 @@ const MS_PER: Partial<Record<Frequency, number>> = { hourly: HOUR, daily: DAY, w
 /** Whole periods of f in the step a→b, or 0 if the step is not a whole number of them. */
 function wholePeriods(a: number, b: number, step: Step, f: Frequency): number {
   const months = MONTHS_PER[f];
-  if (months !== undefined) return 'months' in step && step.months % months === 0 ? step.months / months : 0;
+  if (months !== undefined) return step < 0 && -step % months === 0 ? -step / months : 0;
   const ms = MS_PER[f] as number;
   return (b - a) % ms === 0 ? (b - a) / ms : 0;
 }
 
 export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where: { file: string; column: string }): FrequencyEvidence {
   if (kind === 'index') return evidenceFor('index', runs, (a, b) => b - a);
-  const tally = new Map<string, { step: Step; count: number }>();
+  const tally = new Map<Step, number>();
   let steps = 0;
   for (const run of runs) {
     const t = run.times;
+    let last = NaN;
+    let lastCount = 0;
     for (let i = 1; i < t.length; i++) {
       const s = classify(t[i - 1], t[i]);
-      const key = 'months' in s ? `m${s.months}` : `d${s.ms}`;
-      const e = tally.get(key);
-      if (e) e.count++;
-      else tally.set(key, { step: s, count: 1 });
+      if (s === last) lastCount++;
+      else {
+        if (lastCount > 0) tally.set(last, (tally.get(last) ?? 0) + lastCount);
+        last = s;
+        lastCount = 1;
+      }
       steps++;
     }
+    if (lastCount > 0) tally.set(last, (tally.get(last) ?? 0) + lastCount);
   }
   if (steps === 0) {
     const f = kindFrequency(kind);
     return { frequency: f, steps: 0, counts: [], text: `${f}: a single time stamp, frequency taken from its form` };
   }
-  let mode: { step: Step; count: number } | null = null;
-  for (const e of tally.values()) if (!mode || e.count > mode.count) mode = e;
-  const base = baseOf((mode as { step: Step }).step);
+  let mode: Step = 0;
+  let modeCount = 0;
+  for (const [step, count] of tally) if (count > modeCount) [mode, modeCount] = [step, count];
+  const base = baseOf(mode);
   if (base === null) {
-    const ms = 'ms' in mode!.step ? mode!.step.ms : 0;
     throw new DataError('frequency-unsupported', 'the time stamps are closer than certa supports', {
       file: where.file,
       column: where.column,
-      found: `most steps are ${formatMs(ms)}`,
+      found: `most steps are ${formatMs(mode)}`,
       expected: 'hourly, daily, weekly, monthly, quarterly or yearly stamps',
     });
   }
@@ -108,7 +114,7 @@ export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where:
     const t = run.times;
     for (let i = 1; i < t.length; i++) {
       if (wholePeriods(t[i - 1], t[i], classify(t[i - 1], t[i]), base) === 0) {
-        throw new DataError('frequency-mixed', `the time stamps mix frequencies: most steps are ${describeStep(mode!.step)}, this one is not a whole number of ${periodName(base, 2)}`, {
+        throw new DataError('frequency-mixed', `the time stamps mix frequencies: most steps are ${describeStep(mode)}, this one is not a whole number of ${periodName(base, 2)}`, {
           file: where.file,
           row: run.rows[i],
           column: where.column,
@@ -158,8 +164,8 @@ export function evidenceAt(f: Frequency, runs: readonly StampRun[]): FrequencyEv
 }
 
 function describeStep(s: Step): string {
-  if ('months' in s) return s.months === 1 ? '1 month' : `${s.months} months`;
-  return formatMs(s.ms);
+  if (s < 0) return s === -1 ? '1 month' : `${-s} months`;
+  return formatMs(s);
 }
 
 function formatMs(ms: number): string {

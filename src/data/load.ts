@@ -227,6 +227,8 @@ function groupLong(
   const names: string[] = [];
   const groupOf = new Int32Array(keep.length);
   const counts: number[] = [];
+  let lastCell: Cell | undefined;
+  let lastGroup = 0;
   for (let i = 0; i < keep.length; i++) {
     const r = keep[i];
     const cell = idCells[r];
@@ -238,6 +240,12 @@ function groupLong(
         expected: 'an id in every row (long layout)',
       });
     }
+    // Rows of one series usually come together: compare with the previous cell first.
+    if (cell === lastCell) {
+      groupOf[i] = lastGroup;
+      counts[lastGroup]++;
+      continue;
+    }
     const key = typeof cell === 'string' ? cell.trim() : String(cell);
     let g = groupIndex.get(key);
     if (g === undefined) {
@@ -248,6 +256,8 @@ function groupLong(
     }
     groupOf[i] = g;
     counts[g]++;
+    lastCell = cell;
+    lastGroup = g;
   }
   let wanted: number[] = names.map((_, g) => g);
   if (only !== undefined) {
@@ -263,8 +273,12 @@ function groupLong(
   const value = layout.values[0];
   const allValues = numbers(value, order);
   const allInputs = layout.inputs.map((name) => ({ name, values: numbers(name, order) }));
-  const allTimes = Float64Array.from(order, (r) => times[r]);
-  const allRows = Int32Array.from(order, (r) => table.rows[r]);
+  const allTimes = new Float64Array(order.length);
+  const allRows = new Int32Array(order.length);
+  for (let i = 0; i < order.length; i++) {
+    allTimes[i] = times[order[i]];
+    allRows[i] = table.rows[order[i]];
+  }
   return wanted.map((g) => {
     const a = offsets[g];
     const b = offsets[g + 1];

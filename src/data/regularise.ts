@@ -91,6 +91,8 @@ export interface RegulariseOptions {
   gaps: GapPolicyName;
 }
 
+const FIXED_STEP: Partial<Record<Frequency, number>> = { index: 1, hourly: 3_600_000, daily: 86_400_000, weekly: 604_800_000 };
+
 /** Largest grid certa lays out for one series (guards against a stray far-off date). */
 export const MAX_PERIODS = 5_000_000;
 
@@ -204,18 +206,26 @@ export function regularise(raw: RawSeries, options: RegulariseOptions, where: Wh
       expected: `at most ${MAX_PERIODS} periods; check for a stray date`,
     });
   }
+  // Hours, days, weeks and index steps have a fixed length: plain arithmetic, no calendar.
+  const unit = FIXED_STEP[target];
+  const indexOf = unit !== undefined ? (t: number) => Math.round((t - first) / unit) : (t: number) => periodsBetween(first, t, target);
+  const timeAt = unit !== undefined ? (k: number) => first + k * unit : (k: number) => stepTime(first, target, k);
   const gridValues = new Float64Array(span).fill(NaN);
   const gridInputs = inputs.map(() => new Float64Array(span).fill(NaN));
   const gridRows = new Int32Array(span);
   for (let i = 0; i < times.length; i++) {
-    const k = periodsBetween(first, times[i], target);
+    const k = indexOf(times[i]);
     gridValues[k] = values[i];
     for (let c = 0; c < inputs.length; c++) gridInputs[c][k] = inputs[c][i];
     gridRows[k] = rows[i];
   }
 
   // 6: trim where the value or any input is missing.
-  const complete = (k: number): boolean => gridValues[k] === gridValues[k] && gridInputs.every((x) => x[k] === x[k]);
+  const complete = (k: number): boolean => {
+    if (gridValues[k] !== gridValues[k]) return false;
+    for (const x of gridInputs) if (x[k] !== x[k]) return false;
+    return true;
+  };
   let lo = 0;
   while (lo < span && !complete(lo)) lo++;
   if (lo === span) {
@@ -251,7 +261,7 @@ export function regularise(raw: RawSeries, options: RegulariseOptions, where: Wh
 
   const length = hi - lo + 1;
   const seriesTimes = new Float64Array(length);
-  for (let k = 0; k < length; k++) seriesTimes[k] = stepTime(first, target, lo + k);
+  for (let k = 0; k < length; k++) seriesTimes[k] = timeAt(lo + k);
   const seriesValues = gridValues.slice(lo, hi + 1);
   const series: Series = {
     name: raw.name,

@@ -11,6 +11,7 @@ import { DataError } from './errors.js';
 import {
   EXPECTED_TIME,
   excelSerialToTime,
+  isoDateFast,
   inferDayMonthOrder,
   numericDayMonthFields,
   parseTimeText,
@@ -104,6 +105,7 @@ export function parseTimeColumn(
   let numbers = 0;
   let excelSerials = 0;
   let present = 0;
+  let sawIsoDate = false;
   for (let r = 0; r < n; r++) {
     const c = cells[r];
     if (c === null) {
@@ -111,6 +113,13 @@ export function parseTimeColumn(
       continue;
     }
     if (typeof c === 'string') {
+      const fast = isoDateFast(c);
+      if (fast === fast) {
+        times[r] = fast;
+        sawIsoDate = true;
+        present++;
+        continue;
+      }
       let p = cache.get(c);
       if (p === undefined) {
         const s = c.trim();
@@ -140,6 +149,7 @@ export function parseTimeColumn(
     }
     present++;
   }
+  if (sawIsoDate) kinds.add('date');
   if (present === 0) {
     throw new DataError('time-all-missing', 'the time column has no values', {
       file: where.file,

@@ -108,3 +108,14 @@ describe('inferDayMonthOrder', () => {
     expect(() => inferDayMonthOrder([{ text: '25/04/2020', row: 2 }, { text: '04/25/2020', row: 3 }], where)).toThrow(DataError);
   });
 });
+
+describe('utcTime (civil date arithmetic)', () => {
+  it('agrees with Date.UTC on every day from 1890 to 2110', async () => {
+    const { utcTime } = await import('../../src/data/dates.js');
+    for (let t = Date.UTC(1890, 0, 1); t <= Date.UTC(2110, 11, 31); t += 86_400_000) {
+      const d = new Date(t);
+      if (utcTime(d.getUTCFullYear(), d.getUTCMonth(), d.getUTCDate()) !== t) expect.unreachable(d.toISOString());
+    }
+    expect(utcTime(2021, 2, 5, 14, 30)).toBe(Date.UTC(2021, 2, 5, 14, 30));
+  });
+});
