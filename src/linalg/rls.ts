@@ -116,7 +116,8 @@ export class Rls {
     }
     let tr = 0;
     for (let i = 0; i < p; i++) tr += this.pm[i * p + i];
-    this.ceiling = state.traceMax ?? 1e4 * tr;
+    // With no coefficients (p = 0, e.g. a random walk) trace(P) is 0 and there is nothing to bound.
+    this.ceiling = state.traceMax ?? (p === 0 ? 1 : 1e4 * tr);
     if (!(this.ceiling > 0) || !Number.isFinite(this.ceiling)) {
       throw new UsageError('invalid-trace-max', 'the ceiling on trace(P) must be a positive finite number', { found: String(state.traceMax), expected: 'a number > 0' });
     }

@@ -195,3 +195,14 @@ describe('Rls validation', () => {
     expect(() => Rls.fromFit(fit)).toThrow(/rank 1 of 2/);
   });
 });
+
+describe('Rls with no coefficients (p = 0)', () => {
+  it('starts from an empty state and accumulates the squared innovations of y itself', () => {
+    const rls = new Rls({ theta: [], P: [], rss: 0, count: 0 });
+    const step = rls.update(new Float64Array(0), 3);
+    expect(step.innovation).toBe(3);
+    rls.update(new Float64Array(0), -1);
+    expect(rls.toJSON().rss).toBe(10);
+    expect(rls.toJSON().count).toBe(2);
+  });
+});
