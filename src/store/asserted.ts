@@ -39,27 +39,16 @@ export interface BodyOptions {
 
 /** The body of a model file for a learner that has learnt every row of `series`. */
 export function modelBody(model: AssertedState, series: Series, options: BodyOptions): ModelBody {
-  const { structure, learner } = model;
-  const p = structure.terms.length;
+  const { structure } = model;
   const n = series.values.length;
   const capacity = Math.max(options.windowCapacity ?? DEFAULT_WINDOW_CAPACITY, structure.history + 1);
   const window = windowFromSeries(series, capacity);
   const skipped = n - window.values.length;
   let skippedSum = 0;
   for (let i = 0; i < skipped; i++) skippedSum += series.values[i];
-  const json = learner.toJSON();
-  const cols = json.active.map((a, j) => (a ? j : -1)).filter((j) => j >= 0);
-  const P: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
-  for (let a = 0; a < cols.length; a++) for (let b = 0; b < cols.length; b++) P[cols[a]][cols[b]] = json.rls.P[a][b];
+  const fields = learnerFields(model);
   return {
-    structure: structure.spec,
-    terms: [...structure.terms],
-    theta: Array.from(learner.theta),
-    se: Array.from(model.se, (v) => (Number.isFinite(v) ? v : 0)),
-    P,
-    lambda: json.rls.lambda,
-    sigma2: learner.sigma2,
-    transform: structure.transform,
+    ...fields.model,
     series: {
       name: series.name,
       frequency: series.frequency,
@@ -69,11 +58,7 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
       inputs: series.inputs.map((i) => i.name),
     },
     state: {
-      active: json.active.map((a) => (a ? 1 : 0)),
-      rlsRss: json.rls.rss,
-      rlsCount: json.rls.count,
-      traceMax: json.rls.traceMax,
-      rlsUpdates: json.rls.updates,
+      ...fields.state,
       before: (series.before?.count ?? 0) + skipped,
       beforeSum: (series.before?.sum ?? 0) + skippedSum,
     },
@@ -85,6 +70,42 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
     log: [],
     drift: createDriftState(options.drift),
     meta: options.meta ?? {},
+  };
+}
+
+/**
+ * The body fields that describe the structure and its learner: spec, terms, θ, se, P (the RLS
+ * matrix of the active terms embedded in the full p×p matrix, zero elsewhere), λ, σ², transform,
+ * and the learner's entries of `state`. `modelBody` and online updates share it.
+ */
+export function learnerFields(model: AssertedState): {
+  model: Pick<ModelBody, 'structure' | 'terms' | 'theta' | 'se' | 'P' | 'lambda' | 'sigma2' | 'transform'>;
+  state: Record<string, number | number[]>;
+} {
+  const { structure, learner } = model;
+  const p = structure.terms.length;
+  const json = learner.toJSON();
+  const cols = json.active.map((a, j) => (a ? j : -1)).filter((j) => j >= 0);
+  const P: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  for (let a = 0; a < cols.length; a++) for (let b = 0; b < cols.length; b++) P[cols[a]][cols[b]] = json.rls.P[a][b];
+  return {
+    model: {
+      structure: structure.spec,
+      terms: [...structure.terms],
+      theta: Array.from(learner.theta),
+      se: Array.from(model.se, (v) => (Number.isFinite(v) ? v : 0)),
+      P,
+      lambda: json.rls.lambda,
+      sigma2: learner.sigma2,
+      transform: structure.transform,
+    },
+    state: {
+      active: json.active.map((a) => (a ? 1 : 0)),
+      rlsRss: json.rls.rss,
+      rlsCount: json.rls.count,
+      traceMax: json.rls.traceMax,
+      rlsUpdates: json.rls.updates,
+    },
   };
 }
 

@@ -1,0 +1,549 @@
+/**
+ * Living models: one online update of a saved model with new observations.
+ *
+ * `update(body, rows, options)` takes the body of a model file and a regular series of new data
+ * (which may repeat rows the model has already seen) and returns the updated body, a fresh
+ * forecast and what happened on the way. Nothing here touches files or clocks: the caller
+ * passes `now` and writes the result (the CLI holds the model's lock around read → update →
+ * write).
+ *
+ * Procedure.
+ * 1. Rows at or before the model's last time stamp are checked against the stored window: the
+ *    value and every input the model uses must equal, as raw numbers, what the model saw. A
+ *    difference is a revised history and is refused (DataError `revised-history`, naming the
+ *    first differing time and column) unless `acceptRevisions`: then the revised values replace
+ *    the window's and the same structure is re-estimated on the revised window (a fresh batch
+ *    fit of its active terms), from which learning continues. Rows older than the window cannot
+ *    be checked and are counted in a warning.
+ * 2. Rows after the last time stamp must continue the calendar (the first one period after it,
+ *    each next one period later), with finite values and every input the model uses.
+ * 3. Each new observation y_t gets one recursive least-squares step of the learner
+ *    (online.ts; λ from the body), and its standardised innovation z_t = ε_t / √v_t (ε the
+ *    innovation before the step, v its predicted variance σ̂²(1 + φᵀPφ)) one step of the drift
+ *    detector (drift.ts: two-sided CUSUM with k = 0.5, h from ARL₀ = 4000 ⇒ h ≈ 7.13, and a
+ *    20-observation variance window at α = 1e-4, unless the model was created with others).
+ * 4. On a drift alarm the policy `onDrift` applies:
+ *    - `warn`: the alarm is reported; learning goes on unchanged.
+ *    - `adapt`: the learner forgets faster for a while: λ = ADAPT.lambda (0.9, an effective
+ *      memory 1/(1 − λ) = 10 observations) for the next ADAPT.steps (24) observations, and P is
+ *      multiplied by ADAPT.inflate (10) at the alarm, so the gain K = Pφ/(λ + φᵀPφ) grows and θ
+ *      re-learns within a few observations (the covariance-resetting idea of adaptive control:
+ *      Goodwin & Sin, "Adaptive Filtering, Prediction and Control", 1984, §3.4 — section from
+ *      memory). The remaining count is saved in the model (`state.adaptRemaining`), so it spans
+ *      later updates; afterwards λ returns to the body's λ.
+ *    - `research`: after the rows of this update are learnt, a fresh structure search
+ *      (select/search.ts, default bounds over the model's inputs) runs on the stored window
+ *      with the new rows, and its winner is asserted: new structure, a learner started from its
+ *      batch fit on the window, a fresh drift detector with the same thresholds.
+ *    The alarm, the policy taken and the equations before and after go into the result and the
+ *    update log.
+ * 5. Window, fingerprint, state, last time stamp, `updated` and the log (time, rows added,
+ *    ‖θ_after − θ_before‖₂, alarms, policy, note) are extended. When a re-search changes the
+ *    terms, the parameter change is taken over the union of term names, a term missing from
+ *    one side counting as 0. The log keeps the last LOG_LIMIT (1000) entries.
+ * 6. A forecast from the updated model: horizon from the options, else the model's
+ *    `meta.horizon`, else two seasons (8 without a season); levels likewise (default 80, 95);
+ *    future inputs held at their last values (or `options.future`); intervals by
+ *    forecastWithIntervals (intervals.ts) with the learner's σ̂², σ̂²P and, for simulation
+ *    intervals, the one-step residuals of the current θ over the window.
+ *
+ * No new rows (and no accepted revision): the body is returned unchanged (the same object),
+ * `added` is 0 and `changed` false; the caller need not write anything.
+ *
+ * Cost of a one-row update of an ARX model with a 240-row window: the regression row needs
+ * one pass over the window (transform and differencing), one RLS step is O(p²), one SHA-256 for
+ * the fingerprint, one drift step, one copy of the window, and the forecast two simulations of
+ * h steps (analytic intervals) or `draws` simulations (bootstrap). See bench/update.bench.ts.
+ */
+import { formatTime, stepTime } from '../data/calendar.js';
+import { DataError, UsageError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import type { Structure } from '../models/structure.js';
+import { forward } from '../models/transforms.js';
+import { search, type SearchOptions } from '../select/search.js';
+import { assertedFromBody, learnerFields, windowSeries, type AssertedState } from '../store/asserted.js';
+import { extendFingerprint, type DataRow } from '../store/fingerprint.js';
+import type { ModelBody, UpdateEntry } from '../store/model-file.js';
+import { extendWindow } from '../store/window.js';
+import { createDriftState, stepDrift, type DriftAlarm, type DriftState } from './drift.js';
+import { futureByPolicy, type FutureInputs } from './future.js';
+import { forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
+import { Learner } from './online.js';
+import { defaultHorizon } from './pipeline.js';
+
+export type DriftPolicy = 'warn' | 'adapt' | 'research';
+export const DRIFT_POLICIES: readonly DriftPolicy[] = ['warn', 'adapt', 'research'];
+
+/** The `adapt` policy: λ while adapting, for how many observations, and the factor on P at the alarm. */
+export const ADAPT = { lambda: 0.9, steps: 24, inflate: 10 } as const;
+
+/** Most update-log entries a model keeps (the oldest are dropped). */
+export const LOG_LIMIT = 1000;
+
+export interface UpdateOptions {
+  /** ISO 8601 time of this update (the caller's clock), for `updated` and the log. */
+  now: string;
+  /** What to do on a drift alarm (default 'warn'). */
+  onDrift?: DriftPolicy;
+  /** Accept revised values of rows the model has seen and re-estimate on the revised window. */
+  acceptRevisions?: boolean;
+  /** Forecast horizon (default: the model's meta.horizon, else two seasons or 8). */
+  horizon?: number;
+  /** Interval levels in percent (default: the model's meta.levels, else 80, 95). */
+  levels?: number[];
+  /** Future inputs for the forecast (default: held at their last values). */
+  future?: (history: Series, h: number, times: number[]) => FutureInputs;
+  /** Options of the simulation intervals. */
+  intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean };
+  /** Search options of the `research` policy (default bounds over the model's inputs). */
+  search?: SearchOptions;
+  /** Skip the forecast (the result's `forecast` is null). Default false. */
+  skipForecast?: boolean;
+}
+
+/** One new observation as learnt. */
+export interface UpdateStep {
+  time: number;
+  label: string;
+  /** Innovation ε_t (scoring scale), its predicted variance v_t and z_t = ε_t/√v_t. */
+  innovation: number;
+  variance: number;
+  z: number;
+  /** λ used for this step. */
+  lambda: number;
+  alarm: DriftAlarm | null;
+}
+
+export interface PolicyOutcome {
+  /** 'continue' without alarm, else the policy taken. */
+  name: 'continue' | DriftPolicy;
+  /** What was done, in words. */
+  note: string;
+  /** The structure's label and equation before and after the update. */
+  before: { label: string; equation: string };
+  after: { label: string; equation: string };
+  /** Whether the structure itself changed (a re-search picked another one). */
+  structureChanged: boolean;
+}
+
+export interface Revision {
+  time: number;
+  label: string;
+  column: string;
+  found: number;
+  expected: number;
+}
+
+export interface UpdateForecast {
+  times: Float64Array;
+  paths: ForecastPaths;
+  inputs: FutureInputs;
+  horizon: number;
+  levels: number[];
+}
+
+export interface UpdateResult {
+  body: ModelBody;
+  /** New observations learnt. */
+  added: number;
+  /** False when nothing changed (then `body` is the input body). */
+  changed: boolean;
+  /** The updated model's window as a series (what the forecast starts from). */
+  series: Series;
+  forecast: UpdateForecast | null;
+  alarms: DriftAlarm[];
+  steps: UpdateStep[];
+  revisions: Revision[];
+  /** ‖θ_after − θ_before‖₂ (over the union of term names). */
+  parameterChange: number;
+  policy: PolicyOutcome;
+  warnings: string[];
+  /** The log entry appended (null when nothing changed). */
+  entry: UpdateEntry | null;
+}
+
+const FRESH_HINT = 'fit the model again on the corrected data with a fresh `certa forecast`, or pass --accept-revisions to re-estimate on the revised history';
+
+/** Updates a model with new rows (see the module comment). */
+export function update(body: ModelBody, rows: Series, options: UpdateOptions): UpdateResult {
+  const policyName = options.onDrift ?? 'warn';
+  if (!DRIFT_POLICIES.includes(policyName)) {
+    throw new UsageError('bad-drift-policy', 'unknown drift policy', { found: String(policyName), expected: DRIFT_POLICIES.join(', ') });
+  }
+  const f = body.series.frequency as Series['frequency'];
+  const label = (t: number) => formatTime(t, f);
+  if (rows.frequency !== f) {
+    throw new DataError('frequency-mismatch', `the new data are ${rows.frequency}, the model is ${f}`, {
+      ...(rows.source ? { file: rows.source } : {}),
+      found: rows.frequency,
+      expected: `${f} data (the frequency the model was fitted on)`,
+      hint: 'load the new data with the same --freq and --aggregate options as the model',
+    });
+  }
+  const names = body.series.inputs;
+  const columns = names.map((name) => {
+    const input = rows.inputs.find((i) => i.name === name);
+    if (!input) {
+      throw new DataError('missing-input', `the new data lack input "${name}", which the model uses`, {
+        ...(rows.source ? { file: rows.source } : {}),
+        column: name,
+        found: rows.inputs.length > 0 ? rows.inputs.map((i) => i.name).join(', ') : 'no inputs',
+        expected: `the inputs ${names.join(', ')}`,
+        hint: `load the new data with --inputs ${names.join(',')}`,
+      });
+    }
+    return input.values;
+  });
+  const warnings: string[] = [];
+  const extra = rows.inputs.filter((i) => !names.includes(i.name)).map((i) => i.name);
+  if (extra.length > 0) warnings.push(`input${extra.length > 1 ? 's' : ''} ${extra.join(', ')} in the new data ${extra.length > 1 ? 'are' : 'is'} not used by the model and ignored`);
+
+  // 1. Overlap with the stored window.
+  const w = body.window;
+  const lastTime = body.series.lastTime;
+  const revisions: Revision[] = [];
+  let older = 0;
+  let firstNew = rows.time.length;
+  let wi = 0;
+  for (let i = 0; i < rows.time.length; i++) {
+    const t = rows.time[i];
+    if (t > lastTime) {
+      firstNew = i;
+      break;
+    }
+    if (w.time.length === 0 || t < w.time[0]) {
+      older++;
+      continue;
+    }
+    while (wi < w.time.length && w.time[wi] < t) wi++;
+    if (wi >= w.time.length || w.time[wi] !== t) {
+      throw new DataError('off-calendar', `the new data have a row at ${label(t)}, which is not a period the model has seen`, {
+        ...(rows.source ? { file: rows.source } : {}),
+        found: label(t),
+        expected: `${f} time stamps like the model's (last ${label(lastTime)})`,
+      });
+    }
+    const check = (column: string, found: number, expected: number) => {
+      if (found === expected) return;
+      if (!options.acceptRevisions) {
+        throw new DataError('revised-history', `the new data revise ${label(t)}, which the model has already learnt: column "${column}" is ${found}, the model saw ${expected}`, {
+          ...(rows.source ? { file: rows.source } : {}),
+          column,
+          found: String(found),
+          expected: `${expected} (the value the model saw at ${label(t)})`,
+          hint: FRESH_HINT,
+        });
+      }
+      revisions.push({ time: t, label: label(t), column, found, expected });
+    };
+    check(rows.name, rows.values[i], w.values[wi]);
+    names.forEach((name, j) => check(name, columns[j][i], w.inputs[name][wi]));
+  }
+  if (older > 0) warnings.push(`${older} row${older > 1 ? 's' : ''} of the new data precede the model's stored window and could not be checked against what it saw`);
+
+  // 2. The new rows continue the calendar.
+  const added = rows.time.length - firstNew;
+  const newRows: DataRow[] = [];
+  let prev = lastTime;
+  for (let i = firstNew; i < rows.time.length; i++) {
+    const t = rows.time[i];
+    const expected = stepTime(prev, f, 1);
+    if (t !== expected) {
+      throw new DataError('gap-in-new-data', i === firstNew ? `the new data do not continue the model: after ${label(prev)} comes ${label(t)}` : `the new data skip from ${label(prev)} to ${label(t)}`, {
+        ...(rows.source ? { file: rows.source } : {}),
+        found: label(t),
+        expected: `${label(expected)} (one period after ${label(prev)})`,
+        hint: i === firstNew ? 'include every period since the model’s last one; fill gaps with --gaps' : 'fill the gap with --gaps interpolate, or supply the missing rows',
+      });
+    }
+    const value = rows.values[i];
+    if (!Number.isFinite(value)) throw missing(rows, rows.name, label(t), value);
+    const inputs = columns.map((c, j) => {
+      if (!Number.isFinite(c[i])) throw missing(rows, names[j], label(t), c[i]);
+      return c[i];
+    });
+    newRows.push({ time: t, value, inputs });
+    prev = t;
+  }
+
+  if (added === 0 && revisions.length === 0) {
+    const unchanged = assertedFromBody(body);
+    const series = windowSeries(body);
+    const equation = describeModel(unchanged);
+    return {
+      body,
+      added: 0,
+      changed: false,
+      series,
+      forecast: options.skipForecast ? null : forecastFrom(unchanged, series, body, options, warnings),
+      alarms: [],
+      steps: [],
+      revisions,
+      parameterChange: 0,
+      policy: { name: 'continue', note: '0 new rows: the model is unchanged', before: equation, after: equation, structureChanged: false },
+      warnings,
+      entry: null,
+    };
+  }
+
+  // Rebuild the model, replaying a revised window when asked.
+  let model = assertedFromBody(body);
+  const before = describeModel(model);
+  const thetaBefore = termMap(model.structure.terms, model.learner.theta);
+  const seen = revisions.length > 0 ? reviseWindow(w, rows, names, columns, lastTime) : w;
+  const notes: string[] = [];
+  if (revisions.length > 0) {
+    const revised = windowSeries({ ...body, window: seen });
+    const learner = Learner.start(model.structure, model.learner.active, revised, model.structure.history, revised.values.length, { lambda: body.lambda });
+    model = { structure: model.structure, learner, se: seOf(learner) };
+    const first = revisions[0];
+    notes.push(`accepted ${revisions.length} revised value${revisions.length > 1 ? 's' : ''} (first ${first.label}, column "${first.column}": ${first.expected} → ${first.found}); re-estimated on the revised window`);
+  }
+  const window = extendWindow(seen, newRows, names);
+  // values dropped from the front: the oldest of the (revised) window, then new rows
+  const dropped = seen.values.length + newRows.length - window.values.length;
+  let droppedSum = 0;
+  for (let i = 0; i < dropped; i++) droppedSum += i < seen.values.length ? seen.values[i] : newRows[i - seen.values.length].value;
+  const state: ModelBody['state'] = {
+    ...body.state,
+    before: Number(body.state.before ?? 0) + dropped,
+    beforeSum: Number(body.state.beforeSum ?? 0) + droppedSum,
+  };
+  const nextBody: ModelBody = { ...body, window, state };
+  // The series the learner continues on: the old window (revised) plus the new rows; positions
+  // are those of the old window, so the learner's `next` is the first new row.
+  const ext = appendRows(windowSeries({ ...body, window: seen }), newRows, names);
+
+  // 3–4. Learn row by row, watching for drift.
+  const steps: UpdateStep[] = [];
+  const alarms: DriftAlarm[] = [];
+  let drift: DriftState = body.drift;
+  let adaptRemaining = Number(body.state.adaptRemaining ?? 0);
+  const baseLambda = body.lambda;
+  const rls = () => model.learner.rls;
+  const offset = ext.values.length - newRows.length;
+  for (let k = 0; k < newRows.length; k++) {
+    const lam = adaptRemaining > 0 ? ADAPT.lambda : baseLambda;
+    if (rls().lambda !== lam) rls().lambda = lam;
+    const learnt = model.learner.learn(ext, offset + k + 1);
+    if (adaptRemaining > 0) adaptRemaining--;
+    const t = newRows[k].time;
+    for (const s of learnt) {
+      const z = s.innovation / Math.sqrt(s.variance);
+      const d = stepDrift(drift, z, t);
+      drift = d.state;
+      steps.push({ time: t, label: label(t), innovation: s.innovation, variance: s.variance, z, lambda: lam, alarm: d.alarm });
+      if (d.alarm) {
+        alarms.push(d.alarm);
+        if (policyName === 'adapt') {
+          model = { ...model, learner: inflated(model.learner, ADAPT.inflate) };
+          adaptRemaining = ADAPT.steps;
+        }
+      }
+    }
+  }
+  if (rls().lambda !== baseLambda) rls().lambda = baseLambda;
+
+  let structureChanged = false;
+  let criterion = body.criterion;
+  let meta = body.meta;
+  if (alarms.length > 0 && policyName === 'research') {
+    const found = search(ext, { inputs: names, ...options.search });
+    warnings.push(...found.warnings);
+    const s = found.winner.structure;
+    const learner = Learner.start(s, found.winner.estimate.active, ext, found.sample.from, ext.values.length, { lambda: baseLambda });
+    structureChanged = s.key !== model.structure.key;
+    model = { structure: s, learner, se: found.winner.estimate.se };
+    drift = createDriftState({ k: drift.k, h: drift.h, window: drift.window, varianceRate: drift.varianceRate });
+    adaptRemaining = 0;
+    criterion = { name: found.criterion, value: found.winner.result.score };
+    notes.push(
+      `re-searched ${found.fitted} structures on the stored window (${found.sample.start} to ${found.sample.end}) after the drift alarm; ` +
+        (structureChanged ? `asserted ${s.label}` : 'the same structure won; re-estimated on the window'),
+    );
+  } else if (alarms.length > 0 && policyName === 'adapt') {
+    notes.push(`drift alarm: forgetting with λ = ${ADAPT.lambda} for ${ADAPT.steps} observations and P ×${ADAPT.inflate} at the alarm (${adaptRemaining} observations of fast forgetting left)`);
+  } else if (alarms.length > 0) {
+    notes.push('drift alarm: warned only; the model keeps learning as before');
+  }
+  if (adaptRemaining > 0 || state.adaptRemaining !== undefined) state.adaptRemaining = adaptRemaining;
+
+  const after = describeModel(model);
+  const parameterChange = changeNorm(thetaBefore, termMap(model.structure.terms, model.learner.theta));
+  if (body.meta.equation !== undefined || structureChanged) {
+    meta = { ...meta, key: model.structure.key, label: model.structure.label, equation: after.equation };
+  }
+  const fields = learnerFields({ ...model, se: seOf(model.learner) });
+  const policy: PolicyOutcome = {
+    name: alarms.length === 0 ? 'continue' : policyName,
+    note: notes.join('; ') || `learnt ${added} new row${added === 1 ? '' : 's'}`,
+    before,
+    after,
+    structureChanged,
+  };
+  const entry: UpdateEntry = {
+    time: options.now,
+    rowsAdded: added,
+    parameterChange,
+    alarms,
+    policy: policy.name,
+    note: policy.name === 'continue' && after.equation === before.equation ? policy.note : `${policy.note}; before: ${before.equation}; after: ${after.equation}`,
+  };
+  const log = [...body.log, entry];
+  const last = newRows.length > 0 ? newRows[newRows.length - 1].time : lastTime;
+  Object.assign(nextBody, fields.model, {
+    series: { ...body.series, lastTime: last, lastTimeLabel: label(last) },
+    state: { ...state, ...fields.state },
+    fingerprint: extendFingerprint(body.fingerprint, revisions.length > 0 ? [...overlapRows(rows, columns, lastTime), ...newRows] : newRows),
+    criterion,
+    updated: options.now,
+    log: log.length > LOG_LIMIT ? log.slice(log.length - LOG_LIMIT) : log,
+    drift,
+    meta,
+  });
+  const series = windowSeries(nextBody);
+  const current: AssertedState = { ...model, learner: Learner.fromJSON(model.structure, { ...model.learner.toJSON(), next: series.values.length }) };
+  return {
+    body: nextBody,
+    added,
+    changed: true,
+    series,
+    forecast: options.skipForecast ? null : forecastFrom(current, series, nextBody, options, warnings),
+    alarms,
+    steps,
+    revisions,
+    parameterChange,
+    policy,
+    warnings,
+    entry,
+  };
+}
+
+function missing(rows: Series, column: string, at: string, found: number): DataError {
+  return new DataError('missing-value', `the new data have no usable value of "${column}" at ${at}`, {
+    ...(rows.source ? { file: rows.source } : {}),
+    column,
+    found: String(found),
+    expected: 'a finite number in every new row',
+    hint: 'fill the gap with --gaps interpolate, or supply the missing value',
+  });
+}
+
+function describeModel(model: AssertedState): { label: string; equation: string } {
+  return { label: model.structure.label, equation: model.structure.describe(model.learner.theta, seOf(model.learner)) };
+}
+
+/** Standard errors √(σ̂²P_jj) of the learner's current θ (0 for inactive terms). */
+function seOf(learner: Learner): Float64Array {
+  const p = learner.structure.terms.length;
+  const cov = learner.cov;
+  return Float64Array.from({ length: p }, (_, j) => Math.sqrt(Math.max(0, cov[j * p + j])));
+}
+
+function termMap(terms: string[], theta: ArrayLike<number>): Map<string, number> {
+  return new Map(terms.map((t, j) => [t, theta[j]]));
+}
+
+/** ‖a − b‖₂ over the union of term names, a term missing from one side counting as 0. */
+function changeNorm(a: Map<string, number>, b: Map<string, number>): number {
+  let s = 0;
+  for (const [k, v] of a) s += (v - (b.get(k) ?? 0)) ** 2;
+  for (const [k, v] of b) if (!a.has(k)) s += v * v;
+  return Math.sqrt(s);
+}
+
+/** The learner with P multiplied by `factor` (θ, λ, V and N unchanged). */
+function inflated(learner: Learner, factor: number): Learner {
+  const json = learner.toJSON();
+  return Learner.fromJSON(learner.structure, { ...json, rls: { ...json.rls, P: json.rls.P.map((r) => r.map((v) => v * factor)) } });
+}
+
+/** The window with the revised values of the new data's overlapping rows. */
+function reviseWindow(w: ModelBody['window'], rows: Series, names: string[], columns: Float64Array[], lastTime: number): ModelBody['window'] {
+  const out = { capacity: w.capacity, time: w.time, values: w.values.slice(), inputs: Object.fromEntries(names.map((n) => [n, w.inputs[n].slice()])) };
+  const at = new Map(w.time.map((t, i) => [t, i]));
+  for (let i = 0; i < rows.time.length && rows.time[i] <= lastTime; i++) {
+    const k = at.get(rows.time[i]);
+    if (k === undefined) continue;
+    out.values[k] = rows.values[i];
+    names.forEach((n, j) => (out.inputs[n][k] = columns[j][i]));
+  }
+  return out;
+}
+
+/**
+ * The overlapping rows of the new data, for the fingerprint chain after accepted revisions: the
+ * chain then covers every row certa was given, revised ones included, in the order given.
+ */
+function overlapRows(rows: Series, columns: Float64Array[], lastTime: number): DataRow[] {
+  const out: DataRow[] = [];
+  for (let i = 0; i < rows.time.length && rows.time[i] <= lastTime; i++) out.push({ time: rows.time[i], value: rows.values[i], inputs: columns.map((c) => c[i]) });
+  return out;
+}
+
+function appendRows(base: Series, rows: DataRow[], names: string[]): Series {
+  const n = base.values.length;
+  const m = rows.length;
+  const time = new Float64Array(n + m);
+  const values = new Float64Array(n + m);
+  time.set(base.time);
+  values.set(base.values);
+  const inputs = names.map((name, j) => {
+    const v = new Float64Array(n + m);
+    v.set(base.inputs[j].values);
+    for (let k = 0; k < m; k++) v[n + k] = rows[k].inputs[j];
+    return { name, values: v };
+  });
+  for (let k = 0; k < m; k++) {
+    time[n + k] = rows[k].time;
+    values[n + k] = rows[k].value;
+  }
+  return { ...base, time, values, inputs };
+}
+
+/** The forecast of the model after its window (module comment, step 6). */
+function forecastFrom(model: AssertedState, series: Series, body: ModelBody, options: UpdateOptions, warnings: string[]): UpdateForecast {
+  const metaHorizon = typeof body.meta.horizon === 'number' ? body.meta.horizon : undefined;
+  const horizon = options.horizon ?? metaHorizon ?? defaultHorizon(series);
+  if (!(Number.isInteger(horizon) && horizon >= 1 && horizon <= 10_000)) {
+    throw new UsageError('bad-horizon', 'the forecast horizon must be a whole number of periods from 1 to 10000', { found: String(horizon), expected: 'e.g. 12' });
+  }
+  const metaLevels = Array.isArray(body.meta.levels) && body.meta.levels.every((l) => typeof l === 'number') ? (body.meta.levels as number[]) : undefined;
+  const levels = options.levels ?? metaLevels ?? [80, 95];
+  for (const l of levels) {
+    if (!(l > 0 && l < 100)) throw new UsageError('bad-level', 'interval levels must lie strictly between 0 and 100', { found: String(l), expected: 'e.g. 80,95' });
+  }
+  const { structure, learner } = model;
+  const n = series.values.length;
+  const f = series.frequency;
+  const times = new Float64Array(horizon);
+  for (let j = 0; j < horizon; j++) times[j] = stepTime(series.time[n - 1], f, j + 1);
+  const inputs =
+    series.inputs.length === 0 ? { values: [], source: 'no inputs' } : options.future ? options.future(series, horizon, Array.from(times)) : futureByPolicy(series, horizon, 'hold');
+  const method = options.intervals?.method ?? (isLinearStructure(structure) ? 'analytic' : 'bootstrap');
+  const residuals = method === 'bootstrap' ? windowResiduals(structure, learner.theta, series) : new Float64Array(0);
+  const estimate = { theta: learner.theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };
+  const paths = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method });
+  for (let j = 0; j < horizon; j++) {
+    if (!Number.isFinite(paths.point[j])) {
+      warnings.push(`the forecast is not finite from step ${j + 1} on: the updated equation diverges over this horizon`);
+      break;
+    }
+  }
+  return { times, paths, inputs, horizon, levels };
+}
+
+/** One-step residuals z_t − ẑ_t of θ over the window (scoring scale), t ≥ history. */
+export function windowResiduals(structure: Structure, theta: Float64Array, series: Series): Float64Array {
+  const from = Math.max(structure.history, 1);
+  const n = series.values.length;
+  if (n <= from) return new Float64Array(0);
+  const pred = structure.oneStep(theta, series, from, n);
+  const z = forward(structure.transform, series.values);
+  const out: number[] = [];
+  for (let i = 0; i < pred.length; i++) {
+    const e = z[from + i] - pred[i];
+    if (Number.isFinite(e)) out.push(e);
+  }
+  return Float64Array.from(out);
+}
