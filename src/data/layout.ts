@@ -7,7 +7,8 @@
  *           read as times, else the first column whose first cells read as calendar times;
  *   id    — the first other column whose cells are mostly text and repeat (long layout);
  *   value — in long layout the one numeric column left (or one named "value").
- * In wide layout every column other than time and inputs is a series (`--value` keeps one).
+ * Long layout needs repeated time stamps. In wide layout every other column of numbers is a
+ * series (`--value` keeps one); columns of mostly text are left out, with a note.
  */
 import { DataError, UsageError } from './errors.js';
 import { numericDayMonthFields, parseTimeText } from './dates.js';
@@ -61,7 +62,8 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
   if (options.id !== undefined) {
     id = named(options.id, '--id');
     if (taken.has(id)) throw sameColumn(table, table.header[id], '--id', id === time ? '--time' : '--inputs');
-  } else {
+  } else if (hasRepeats(table.columns[time])) {
+    // Long layout only when time stamps repeat: otherwise a text column is a label, not an id.
     for (let c = 0; c < table.header.length; c++) {
       if (!taken.has(c) && (options.value === undefined || table.header[c] !== options.value) && looksLikeId(table.columns[c])) {
         id = c;
@@ -77,7 +79,7 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
       const v = named(options.value, '--value');
       if (taken.has(v)) throw sameColumn(table, table.header[v], '--value', v === time ? '--time' : '--inputs');
       values = [v];
-    } else values = table.header.map((_, c) => c).filter((c) => !taken.has(c));
+    } else values = table.header.map((_, c) => c).filter((c) => !taken.has(c) && !looksLikeText(table.columns[c]));
     if (values.length === 0) {
       throw new DataError('layout-no-values', 'the file has no value column', {
         file: table.source,
@@ -173,6 +175,18 @@ function timeShare(cells: readonly Cell[], integersToo: boolean): number {
     }
   }
   return seen > 0 ? times / seen : 0;
+}
+
+/** Some present cell value occurs twice. */
+function hasRepeats(cells: readonly Cell[]): boolean {
+  const seen = new Set<unknown>();
+  for (const c of cells) {
+    if (c === null) continue;
+    const key = c instanceof ExcelSerial ? c.serial : c;
+    if (seen.has(key)) return true;
+    seen.add(key);
+  }
+  return false;
 }
 
 /** Mostly non-numeric cells (more than half of the first present ones). */

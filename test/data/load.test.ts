@@ -183,3 +183,19 @@ describe('loadTable / loadSeries on XLSX written by exceljs', () => {
     expect(report.series[0].start).toBe('2021-01');
   });
 });
+
+describe('loadSeries on more vega-datasets files', () => {
+  it('stocks.csv: long layout (symbol, "Jan 1 2000" dates, price), monthly', async () => {
+    const { series, report } = await loadSeries(join(VEGA, 'stocks.csv'));
+    expect(report.layout).toMatchObject({ kind: 'long', id: 'symbol', time: 'date', values: ['price'] });
+    expect(report.frequency.frequency).toBe('monthly');
+    expect(series.map((s) => s.name)).toEqual(['MSFT', 'AMZN', 'IBM', 'GOOG', 'AAPL']);
+    expect(report.series[0]).toMatchObject({ start: '2000-01', end: '2010-03' });
+  });
+  it('seattle-weather.csv: daily 2012-01-01 to 2015-12-31, the text column "weather" left out', async () => {
+    const { report } = await loadSeries(join(VEGA, 'seattle-weather.csv'));
+    expect(report.layout.kind).toBe('wide');
+    expect(report.layout.ignored).toEqual(['weather']);
+    expect(report.series[0]).toMatchObject({ start: '2012-01-01', end: '2015-12-31', length: 1461 });
+  });
+});
