@@ -1,65 +1,76 @@
 /**
  * The structure-search options shared by `certa search` and `certa forecast`, declared once:
- *   addSearchOptions(command)          declares them
- *   parseSearchOptions(command.opts()) checks them → SearchOptions, or a UsageError
+ *   addSearchOptions(command)          declares them on a commander command
+ *   parseSearchOptions(command.opts()) checks them (a zod schema) → SearchOptions, or a UsageError
  */
 import type { Command } from 'commander';
+import { z } from 'zod';
 import { UsageError } from '../data/errors.js';
 import { familyNames } from '../models/registry.js';
 import { SEARCH_DEFAULTS, type SearchOptions } from '../select/search.js';
 
 export function addSearchOptions(command: Command): Command {
+  const d = SEARCH_DEFAULTS;
   return command
-    .option('--max-ar <n>', `largest number of AR lags (default ${SEARCH_DEFAULTS.maxAr})`)
-    .option('--max-input-lags <n>', `largest number of lags per input (default ${SEARCH_DEFAULTS.maxInputLags})`)
-    .option('--max-delay <n>', `largest input delay in periods (default ${SEARCH_DEFAULTS.maxDelay})`)
-    .option('--harmonics <n|auto>', 'largest number of seasonal harmonic pairs (default auto)')
+    .option('--max-ar <n>', `largest number of AR lags (default ${d.maxAr})`)
+    .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
+    .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
+    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
     .option('--season <n>', 'season length in periods (default: from the frequency)')
-    .option('--families <list>', `model families to search, comma-separated: ${familyNames().join(', ')} (default: all)`)
-    .option('--transform <how>', 'scale of the models: auto, none or log (default auto)')
-    .option('--trend <on|off|auto>', 'linear trend term (default auto: with and without)')
+    .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
+    .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
+    .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')
+    .option('--trend <how>', 'linear trend term: on, off or auto (default auto: with and without)')
     .option('--seasonal-lag <how>', 'seasonal lag y[t-s]: on, off or auto (default off)')
-    .option('--differencing <how>', 'none, first, seasonal or auto (default none)')
-    .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)');
+    .option('--differencing <how>', 'none, first, seasonal or auto (default none)');
 }
 
-function whole(option: string, raw: unknown, min: number, max: number): number {
-  const s = String(raw).trim();
-  const v = /^\d+$/.test(s) ? Number(s) : NaN;
-  if (!(Number.isInteger(v) && v >= min && v <= max)) {
-    throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(raw), expected: `a whole number from ${min} to ${max}` });
-  }
-  return v;
-}
+const switchValue = (option: string) => z.enum(['on', 'off', 'auto'], { message: `${option}|on, off or auto` });
+const wholeNumber = (option: string) =>
+  z
+    .string()
+    .regex(/^\d+$/, { message: `${option}|a whole number ≥ 0` })
+    .transform(Number);
 
-function oneOf<T extends string>(option: string, raw: unknown, values: readonly T[]): T {
-  const s = String(raw).trim().toLowerCase();
-  if (!(values as readonly string[]).includes(s)) {
-    throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(raw), expected: `one of ${values.join(', ')}` });
-  }
-  return s as T;
-}
+const schema = z.object({
+  maxAr: wholeNumber('--max-ar').optional(),
+  maxInputLags: wholeNumber('--max-input-lags').optional(),
+  maxDelay: wholeNumber('--max-delay').optional(),
+  harmonics: z
+    .string()
+    .regex(/^(\d+|auto)$/, { message: '--harmonics|a whole number or auto' })
+    .transform((v) => (v === 'auto' ? ('auto' as const) : Number(v)))
+    .optional(),
+  season: z
+    .string()
+    .regex(/^\d+$/, { message: '--season|a whole number ≥ 2' })
+    .transform(Number)
+    .refine((v) => v >= 2, { message: '--season|a whole number ≥ 2' })
+    .optional(),
+  families: z
+    .string()
+    .transform((v) => v.split(',').map((s) => s.trim()))
+    .refine((list) => list.every((f) => familyNames().includes(f)), { message: `--families|a comma-separated list of ${familyNames().join(', ')}` })
+    .optional(),
+  transform: z.enum(['auto', 'none', 'log'], { message: '--transform|auto, none or log' }).optional(),
+  criterion: z.enum(['aicc', 'aic', 'bic'], { message: '--criterion|aicc, aic or bic' }).optional(),
+  trend: switchValue('--trend').optional(),
+  seasonalLag: switchValue('--seasonal-lag').optional(),
+  differencing: z.enum(['none', 'first', 'seasonal', 'auto'], { message: '--differencing|none, first, seasonal or auto' }).optional(),
+});
 
+/** Checks the search options of a command line; UsageError naming the option. */
 export function parseSearchOptions(opts: Record<string, unknown>): SearchOptions {
-  const out: SearchOptions = {};
-  if (opts.maxAr !== undefined) out.maxAr = whole('--max-ar', opts.maxAr, 0, 24);
-  if (opts.maxInputLags !== undefined) out.maxInputLags = whole('--max-input-lags', opts.maxInputLags, 0, 24);
-  if (opts.maxDelay !== undefined) out.maxDelay = whole('--max-delay', opts.maxDelay, 0, 60);
-  if (opts.harmonics !== undefined) out.harmonics = String(opts.harmonics).trim() === 'auto' ? 'auto' : whole('--harmonics', opts.harmonics, 0, 26);
-  if (opts.season !== undefined) out.season = whole('--season', opts.season, 2, 1000);
-  if (opts.families !== undefined) {
-    const known = familyNames();
-    out.families = String(opts.families)
-      .split(',')
-      .map((s) => s.trim())
-      .filter((s) => s.length > 0)
-      .map((s) => oneOf('--families', s, known));
-    if (out.families.length === 0) throw new UsageError('option-invalid', 'option --families names no family', { found: String(opts.families), expected: known.join(', ') });
+  const picked: Record<string, unknown> = {};
+  for (const key of Object.keys(schema.shape)) if (opts[key] !== undefined) picked[key] = opts[key];
+  const result = schema.safeParse(picked);
+  if (!result.success) {
+    const issue = result.error.issues[0];
+    const key = String(issue.path[0]);
+    const [option, expected] = issue.message.includes('|') ? issue.message.split('|') : [`--${key}`, issue.message];
+    throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(picked[key]), expected });
   }
-  if (opts.transform !== undefined) out.transform = oneOf('--transform', opts.transform, ['auto', 'none', 'log'] as const);
-  if (opts.trend !== undefined) out.trend = oneOf('--trend', opts.trend, ['on', 'off', 'auto'] as const);
-  if (opts.seasonalLag !== undefined) out.seasonalLag = oneOf('--seasonal-lag', opts.seasonalLag, ['on', 'off', 'auto'] as const);
-  if (opts.differencing !== undefined) out.differencing = oneOf('--differencing', opts.differencing, ['none', 'first', 'seasonal', 'auto'] as const);
-  if (opts.criterion !== undefined) out.criterion = oneOf('--criterion', opts.criterion, ['aicc', 'aic', 'bic'] as const);
+  const out: SearchOptions = {};
+  for (const [k, v] of Object.entries(result.data)) if (v !== undefined) (out as Record<string, unknown>)[k] = v;
   return out;
 }

@@ -10,68 +10,18 @@
  */
 import type { Command } from 'commander';
 import { join } from 'node:path';
-import { z } from 'zod';
 import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
-import { familyNames } from '../models/registry.js';
-import { search, SEARCH_DEFAULTS, type CandidateResult, type SearchOptions, type SearchResult } from '../select/search.js';
-import { toCsv, type Cell } from '../report/tables.js';
+import { search, type CandidateResult, type SearchOptions, type SearchResult } from '../select/search.js';
+import { candidatesCsv } from '../report/candidates.js';
 import { writeFileAtomic } from '../store/atomic.js';
 import { writeModelFile, MODEL_FORMAT, MODEL_VERSION } from '../store/model-file.js';
 import { modelBody } from '../store/asserted.js';
 import { Learner } from '../forecast/online.js';
 import { addDataOptions, loadSeriesFromCli } from './data-options.js';
+import { addSearchOptions, parseSearchOptions } from './search-options.js';
+import { outputFolder, runClock } from './output.js';
 import type { CliIO } from './main.js';
-
-const switchValue = (option: string) => z.enum(['on', 'off', 'auto'], { message: `${option}|on, off or auto` });
-const wholeNumber = (option: string) =>
-  z
-    .string()
-    .regex(/^\d+$/, { message: `${option}|a whole number ≥ 0` })
-    .transform(Number);
-
-const optionsSchema = z.object({
-  maxAr: wholeNumber('--max-ar').optional(),
-  maxInputLags: wholeNumber('--max-input-lags').optional(),
-  maxDelay: wholeNumber('--max-delay').optional(),
-  harmonics: z
-    .string()
-    .regex(/^(\d+|auto)$/, { message: '--harmonics|a whole number or auto' })
-    .transform((v) => (v === 'auto' ? ('auto' as const) : Number(v)))
-    .optional(),
-  families: z
-    .string()
-    .transform((v) => v.split(',').map((s) => s.trim()))
-    .refine((list) => list.every((f) => familyNames().includes(f)), { message: `--families|a comma-separated list of ${familyNames().join(', ')}` })
-    .optional(),
-  transform: z.enum(['auto', 'none', 'log'], { message: '--transform|auto, none or log' }).optional(),
-  criterion: z.enum(['aicc', 'aic', 'bic'], { message: '--criterion|aicc, aic or bic' }).optional(),
-  trend: switchValue('--trend').optional(),
-  seasonalLag: switchValue('--seasonal-lag').optional(),
-  differencing: z.enum(['none', 'first', 'seasonal', 'auto'], { message: '--differencing|none, first, seasonal or auto' }).optional(),
-  top: z
-    .string()
-    .regex(/^[1-9]\d*$/, { message: '--top|a whole number ≥ 1' })
-    .transform(Number)
-    .optional(),
-  out: z.string().min(1, { message: '--out|a folder path' }).optional(),
-  json: z.boolean().optional(),
-});
-
-const OPTION_NAMES: Record<string, string> = {
-  maxAr: '--max-ar',
-  maxInputLags: '--max-input-lags',
-  maxDelay: '--max-delay',
-  harmonics: '--harmonics',
-  families: '--families',
-  transform: '--transform',
-  criterion: '--criterion',
-  trend: '--trend',
-  seasonalLag: '--seasonal-lag',
-  differencing: '--differencing',
-  top: '--top',
-  out: '--out',
-};
 
 interface CliSearchOptions {
   search: SearchOptions;
@@ -80,54 +30,31 @@ interface CliSearchOptions {
   json: boolean;
 }
 
-/** Checks the search options of the command line (a zod schema); UsageError naming the option. */
-export function parseSearchOptions(opts: Record<string, unknown>): CliSearchOptions {
-  const picked: Record<string, unknown> = {};
-  for (const key of Object.keys(optionsSchema.shape)) if (opts[key] !== undefined) picked[key] = opts[key];
-  const result = optionsSchema.safeParse(picked);
-  if (!result.success) {
-    const issue = result.error.issues[0];
-    const key = String(issue.path[0]);
-    const [option, expected] = issue.message.includes('|') ? issue.message.split('|') : [OPTION_NAMES[key] ?? `--${key}`, issue.message];
-    throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(picked[key]), expected });
+/** The search options plus this command's own (--top, --out, --json); UsageError naming the option. */
+function parseCommandOptions(opts: Record<string, unknown>): CliSearchOptions {
+  const search = parseSearchOptions(opts);
+  let top = 10;
+  if (opts.top !== undefined) {
+    if (!/^[1-9]\d*$/.test(String(opts.top))) {
+      throw new UsageError('option-invalid', 'option --top has an unusable value', { found: String(opts.top), expected: 'a whole number ≥ 1' });
+    }
+    top = Number(opts.top);
   }
-  const o = result.data;
-  const s: SearchOptions = {};
-  if (o.maxAr !== undefined) s.maxAr = o.maxAr;
-  if (o.maxInputLags !== undefined) s.maxInputLags = o.maxInputLags;
-  if (o.maxDelay !== undefined) s.maxDelay = o.maxDelay;
-  if (o.harmonics !== undefined) s.harmonics = o.harmonics;
-  if (o.families !== undefined) s.families = o.families;
-  if (o.transform !== undefined) s.transform = o.transform;
-  if (o.criterion !== undefined) s.criterion = o.criterion;
-  if (o.trend !== undefined) s.trend = o.trend;
-  if (o.seasonalLag !== undefined) s.seasonalLag = o.seasonalLag;
-  if (o.differencing !== undefined) s.differencing = o.differencing;
-  return { search: s, top: o.top ?? 10, ...(o.out !== undefined ? { out: o.out } : {}), json: o.json ?? false };
+  return { search, top, ...(opts.out !== undefined ? { out: String(opts.out) } : {}), json: Boolean(opts.json) };
 }
 
 export function register(program: Command, io: CliIO): void {
-  const d = SEARCH_DEFAULTS;
   const command = program
     .command('search')
     .description('search model structures for each series of a file, rank them and save the winner')
     .argument('<file>', 'CSV, TSV, XLSX or JSON file, or - for standard input')
-    .option('--max-ar <n>', `largest number of AR lags (default ${d.maxAr})`)
-    .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
-    .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
-    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
-    .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
-    .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
-    .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')
-    .option('--trend <how>', 'linear trend term: on, off or auto (default auto: with and without)')
-    .option('--seasonal-lag <how>', 'seasonal lag y[t-s]: on, off or auto (default off)')
-    .option('--differencing <how>', 'none, first, seasonal or auto (default none)')
     .option('--top <n>', 'how many candidates to show (default 10)')
     .option('--out <folder>', 'where to write candidates.csv and model.json (default output/<series>)')
     .option('--json', 'print a JSON document instead of text');
+  addSearchOptions(command);
   addDataOptions(command);
   command.action(async (file: string, opts: Record<string, unknown>) => {
-    const cli = parseSearchOptions(opts);
+    const cli = parseCommandOptions(opts);
     const { series } = await loadSeriesFromCli(file, opts, io);
     const docs: SearchDocument[] = [];
     const texts: string[] = [];
@@ -144,43 +71,6 @@ export function register(program: Command, io: CliIO): void {
   program.addHelpText('after', '\nFind the equation behind a series:\n  certa search datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
 }
 
-function outputFolder(s: Series, count: number, out: string | undefined): string {
-  const safe = s.name.replace(/[^\p{L}\p{N}._-]+/gu, '_') || 'series';
-  if (out === undefined) return join('output', safe);
-  return count > 1 ? join(out, safe) : out;
-}
-
-/** The candidates.csv columns, one row per candidate (fitted ones by rank, then failed ones). */
-export const CANDIDATE_COLUMNS = [
-  'rank', 'status', 'key', 'family', 'structure', 'criterion', 'score', 'delta', 'weight',
-  'aicc', 'aic', 'bic', 'loglik', 'rss', 'k', 'n', 'first', 'last', 'reason',
-];
-
-export function candidatesCsv(result: SearchResult): string {
-  const rows: Cell[][] = result.ranking.map((c) => [
-    c.rank,
-    c.status,
-    c.key,
-    c.family,
-    c.label,
-    result.criterion,
-    c.score,
-    c.delta,
-    c.weight,
-    c.aicc,
-    c.aic,
-    c.bic,
-    c.logLik,
-    c.rss,
-    c.k,
-    c.n,
-    result.sample.start,
-    result.sample.end,
-    c.reason ?? null,
-  ]);
-  return toCsv(CANDIDATE_COLUMNS, rows);
-}
-
 interface Written {
   candidates: string;
   model: string;
@@ -195,7 +85,7 @@ async function writeOutputs(result: SearchResult, series: Series, folder: string
   const body = modelBody({ structure: w.structure, learner, se: w.estimate.se }, series, {
     criterion: result.criterion,
     criterionValue: w.result.score,
-    now: new Date().toISOString(),
+    now: runClock(),
     meta: {
       search: {
         label: w.result.label,

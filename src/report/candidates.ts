@@ -1,18 +1,22 @@
 /**
  * The ranking of a structure search as a tidy table (`candidates.csv`): one row per candidate,
- * fitted ones best first, then those that could not be fitted, with the reason.
+ * fitted ones by rank, then those that could not be fitted, with the reason.
  */
 import type { SearchResult } from '../select/search.js';
-import type { Table } from './tables.js';
+import { tableToCsv, type Table } from './tables.js';
+
+export const CANDIDATE_COLUMNS = [
+  'rank', 'status', 'key', 'family', 'structure', 'criterion', 'score', 'delta', 'weight',
+  'aicc', 'aic', 'bic', 'loglik', 'rss', 'k', 'n', 'first', 'last', 'reason',
+];
 
 export function candidatesTable(result: SearchResult): Table {
-  const columns = ['rank', 'key', 'label', 'family', 'status', 'criterion', 'score', 'delta', 'weight', 'aicc', 'aic', 'bic', 'log_lik', 'rss', 'k', 'n', 'sample_start', 'sample_end', 'reason'];
   const rows = result.ranking.map((c) => [
     c.rank,
-    c.key,
-    c.label,
-    c.family,
     c.status,
+    c.key,
+    c.family,
+    c.label,
     result.criterion,
     c.score,
     c.delta,
@@ -28,5 +32,10 @@ export function candidatesTable(result: SearchResult): Table {
     result.sample.end,
     c.reason ?? null,
   ]);
-  return { columns, rows };
+  return { columns: [...CANDIDATE_COLUMNS], rows };
+}
+
+/** `candidates.csv` of a search. */
+export function candidatesCsv(result: SearchResult): string {
+  return tableToCsv(candidatesTable(result));
 }

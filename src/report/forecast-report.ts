@@ -3,11 +3,12 @@
  * forecast table, the metrics table, the summary a scheduler reads, the charts, and the text a
  * person reads in the terminal. Nothing here touches files.
  */
-import { formatTime } from '../data/calendar.js';
+import { formatTime, type Frequency } from '../data/calendar.js';
+import type { ForecastPaths } from '../forecast/intervals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
 import { forward } from '../models/transforms.js';
 import { FORECAST_CAUTION } from './cautions.js';
-import { candidatesTable } from './candidates.js';
+import { candidatesCsv } from './candidates.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 
@@ -34,12 +35,18 @@ export function forecastTable(run: ForecastRun): Table {
       rows.push([name, formatTime(ev.times[j], f), 'holdout', ev.actual[j], ev.fixed.point[j], ev.rolling.oneStep[j], ...bands]);
     }
   }
-  const fc = run.forecast;
-  for (let j = 0; j < run.horizon; j++) {
-    const bands = fc.paths.bands.flatMap((b) => [b.lower[j], b.upper[j]]);
-    rows.push([name, formatTime(fc.times[j], f), 'forecast', null, fc.paths.point[j], null, ...bands]);
-  }
+  rows.push(...forecastRows(name, f, run.forecast.times, run.forecast.paths));
   return { columns, rows };
+}
+
+/** The `forecast` rows of the tidy table (columns as in `forecastTable`), one per step. */
+export function forecastRows(name: string, f: Frequency, times: Float64Array, paths: ForecastPaths): Cell[][] {
+  const rows: Cell[][] = [];
+  for (let j = 0; j < times.length; j++) {
+    const bands = paths.bands.flatMap((b) => [b.lower[j], b.upper[j]]);
+    rows.push([name, formatTime(times[j], f), 'forecast', null, paths.point[j], null, ...bands]);
+  }
+  return rows;
 }
 
 /** The evaluation table (`metrics.csv`): one row per method and view. */
@@ -213,7 +220,7 @@ export function forecastFiles(run: ForecastRun): Record<string, string> {
   return {
     'forecast.csv': tableToCsv(forecastTable(run)),
     'metrics.csv': tableToCsv(metricsTable(run)),
-    'candidates.csv': tableToCsv(candidatesTable(run.search)),
+    'candidates.csv': candidatesCsv(run.search),
   };
 }
 
@@ -256,13 +263,7 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
     lines.push('Holdout: none (--holdout 0): the model was not evaluated on unseen data.');
   }
   lines.push('');
-  lines.push(`Forecast (${run.forecast.paths.method} intervals; ${run.forecast.inputs.source}):`);
-  const bandHead = run.forecast.paths.bands.map((b) => `${b.level}% interval`);
-  lines.push(pad(['time', 'point', ...bandHead], [12, 12, ...bandHead.map(() => 26)]));
-  for (let j = 0; j < run.horizon; j++) {
-    const cells = run.forecast.paths.bands.map((b) => `${fmt(b.lower[j])} to ${fmt(b.upper[j])}`);
-    lines.push(pad([formatTime(run.forecast.times[j], f), fmt(run.forecast.paths.point[j]), ...cells], [12, 12, ...cells.map(() => 26)]));
-  }
+  lines.push(...forecastTableLines(f, run.forecast.times, run.forecast.paths, run.forecast.inputs.source));
   const warnings = summary.warnings as string[];
   if (warnings.length > 0) {
     lines.push('');
@@ -278,7 +279,19 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   return `${lines.join('\n')}\n`;
 }
 
-function pad(cells: string[], widths: number[]): string {
+/** The forecast table of the terminal summary: a heading line, then time, point and bands per step. */
+export function forecastTableLines(f: Frequency, times: Float64Array, paths: ForecastPaths, inputs: string): string[] {
+  const lines = [`Forecast (${paths.method} intervals; ${inputs}):`];
+  const bandHead = paths.bands.map((b) => `${b.level}% interval`);
+  lines.push(pad(['time', 'point', ...bandHead], [12, 12, ...bandHead.map(() => 26)]));
+  for (let j = 0; j < times.length; j++) {
+    const cells = paths.bands.map((b) => `${fmt(b.lower[j])} to ${fmt(b.upper[j])}`);
+    lines.push(pad([formatTime(times[j], f), fmt(paths.point[j]), ...cells], [12, 12, ...cells.map(() => 26)]));
+  }
+  return lines;
+}
+
+export function pad(cells: string[], widths: number[]): string {
   return cells
     .map((c, i) => (widths[i] > 0 ? c.padEnd(widths[i]) : c))
     .join(' ')
