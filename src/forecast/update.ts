@@ -120,10 +120,16 @@ export interface PolicyOutcome {
   /** What was done, in words. */
   note: string;
   /** The structure's label and equation before and after the update. */
-  before: { label: string; equation: string };
-  after: { label: string; equation: string };
+  before: ModelDescription;
+  after: ModelDescription;
   /** Whether the structure itself changed (a re-search picked another one). */
   structureChanged: boolean;
+}
+
+export interface ModelDescription {
+  key: string;
+  label: string;
+  equation: string;
 }
 
 export interface Revision {
@@ -429,8 +435,8 @@ function missing(rows: Series, column: string, at: string, found: number): DataE
   });
 }
 
-function describeModel(model: AssertedState): { label: string; equation: string } {
-  return { label: model.structure.label, equation: model.structure.describe(model.learner.theta, seOf(model.learner)) };
+function describeModel(model: AssertedState): ModelDescription {
+  return { key: model.structure.key, label: model.structure.label, equation: model.structure.describe(model.learner.theta, seOf(model.learner)) };
 }
 
 /** Standard errors √(σ̂²P_jj) of the learner's current θ (0 for inactive terms). */

@@ -1,0 +1,143 @@
+/**
+ * `certa update <model.json> <new-data>`: keeps a saved model learning. Holds the model's lock
+ * (store/lock.ts) around read → update → write; reads the new file with the shared data options
+ * (the model's inputs by default; the model's series chosen by name when the file has several);
+ * learns the rows after the model's last time stamp (forecast/update.ts); writes forecast.csv,
+ * summary.json and forecast.png (unless --no-charts) into --out (default: the model's folder),
+ * then the updated model (the previous version kept as model.prev.json). Forecast files are
+ * written before the model, so a run cut short can simply be repeated. With 0 new rows nothing
+ * is written. Exit code 3 with --fail-on-drift when a drift alarm fired.
+ */
+import type { Command } from 'commander';
+import { dirname, join } from 'node:path';
+import { DataError, UsageError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import { DRIFT_POLICIES, update, type DriftPolicy, type UpdateOptions, type UpdateResult } from '../forecast/update.js';
+import { updateCharts, updateFiles, updateSummary, updateSummaryJson, updateText } from '../report/update-report.js';
+import { withLock } from '../store/lock.js';
+import { readModelFile, writeModelFile, type ModelBody } from '../store/model-file.js';
+import { addDataOptions, loadSeriesFromCli } from './data-options.js';
+import { ExitRequest, type CliIO } from './main.js';
+import { runClock, writeFiles } from './output.js';
+
+export interface CliUpdateOptions {
+  onDrift: DriftPolicy;
+  failOnDrift: boolean;
+  acceptRevisions: boolean;
+  horizon?: number;
+  levels?: number[];
+  out?: string;
+  charts: boolean;
+  json: boolean;
+}
+
+function num(option: string, raw: unknown, check: (v: number) => boolean, expected: string, integer: boolean): number {
+  const s = String(raw).trim();
+  const v = (integer ? /^\d+$/ : /^(\d+\.?\d*|\.\d+)$/).test(s) ? Number(s) : NaN;
+  if (!check(v)) throw new UsageError('option-invalid', `option ${option} has an unusable value`, { found: String(raw), expected });
+  return v;
+}
+
+export function parseUpdateOptions(opts: Record<string, unknown>): CliUpdateOptions {
+  const onDrift = String(opts.onDrift ?? 'warn');
+  if (!(DRIFT_POLICIES as readonly string[]).includes(onDrift)) {
+    throw new UsageError('option-invalid', 'option --on-drift has an unusable value', { found: onDrift, expected: DRIFT_POLICIES.join(', ') });
+  }
+  const out: CliUpdateOptions = {
+    onDrift: onDrift as DriftPolicy,
+    failOnDrift: Boolean(opts.failOnDrift),
+    acceptRevisions: Boolean(opts.acceptRevisions),
+    charts: opts.charts !== false,
+    json: Boolean(opts.json),
+  };
+  if (opts.horizon !== undefined) out.horizon = num('--horizon', opts.horizon, (v) => v >= 1 && v <= 10_000, 'a whole number of periods from 1 to 10000', true);
+  if (opts.levels !== undefined) {
+    out.levels = String(opts.levels)
+      .split(',')
+      .map((s) => num('--levels', s, (v) => v > 0 && v < 100, 'levels in percent between 0 and 100, e.g. 80,95', false));
+  }
+  if (opts.out !== undefined) out.out = String(opts.out);
+  return out;
+}
+
+/** The model's series among those loaded: by name, or the only one. */
+export function pickSeries(loaded: Series[], body: ModelBody, file: string): Series {
+  const name = body.series.name;
+  const named = loaded.find((s) => s.name === name);
+  if (named) return named;
+  if (loaded.length === 1) return loaded[0];
+  throw new DataError('series-not-found', `the new data hold ${loaded.length} series but none named "${name}", the model's series`, {
+    file,
+    found: loaded.map((s) => s.name).join(', '),
+    expected: `a series named "${name}"`,
+    hint: '--series <name> picks one series; --value <column> names the value column',
+  });
+}
+
+export interface UpdateRun {
+  result: UpdateResult;
+  summary: Record<string, unknown>;
+  text: string;
+}
+
+/** Lock, read, update, write (see the module comment). */
+export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpdateOptions, opts: Record<string, unknown>, io: CliIO): Promise<UpdateRun> {
+  const folder = cli.out ?? dirname(modelPath);
+  const locked = await withLock(
+    modelPath,
+    async () => {
+      const body = await readModelFile(modelPath);
+      const dataOpts = { ...opts };
+      if (dataOpts.inputs === undefined && body.series.inputs.length > 0) dataOpts.inputs = body.series.inputs.join(',');
+      const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io);
+      const rows = pickSeries(series, body, dataFile);
+      const options: UpdateOptions = { now: runClock(), onDrift: cli.onDrift, acceptRevisions: cli.acceptRevisions };
+      if (cli.horizon !== undefined) options.horizon = cli.horizon;
+      if (cli.levels !== undefined) options.levels = cli.levels;
+      const result = update(body, { ...rows, source: dataFile }, options);
+      const warnings = [...report.notes];
+      if (!result.changed) {
+        const summary = updateSummary(result, { model: modelPath, data: dataFile, files: [], outDir: folder, warnings });
+        return { result, summary };
+      }
+      const files: Record<string, string | Uint8Array> = { ...updateFiles(result) };
+      if (cli.charts) Object.assign(files, updateCharts(result));
+      const modelName = join(folder, 'model.json') === modelPath ? ['model.json'] : [];
+      const names = [...Object.keys(files), 'summary.json', ...modelName].sort();
+      const summary = updateSummary(result, { model: modelPath, data: dataFile, files: names, outDir: folder, warnings });
+      files['summary.json'] = updateSummaryJson(summary);
+      await writeFiles(folder, files);
+      const written = await writeModelFile(modelPath, result.body);
+      if (written.note) warnings.push(written.note);
+      return { result, summary };
+    },
+    { command: `certa update ${modelPath} ${dataFile}` },
+  );
+  const { result, summary } = locked.value;
+  if (locked.note) (summary.warnings as string[]).push(locked.note);
+  return { result, summary, text: updateText(result, summary) };
+}
+
+export function register(program: Command, io: CliIO): void {
+  const command = program
+    .command('update')
+    .description('keep a saved model learning: add new observations, watch for drift, forecast again')
+    .argument('<model>', 'the model.json written by certa forecast or certa search')
+    .argument('<file>', 'new data: CSV, TSV, XLSX or JSON (may repeat rows the model has seen), or - for standard input')
+    .option('--on-drift <policy>', `what to do on a drift alarm: ${DRIFT_POLICIES.join(', ')} (default warn)`)
+    .option('--fail-on-drift', 'exit with code 3 when a drift alarm fired (after writing)')
+    .option('--accept-revisions', 'accept changed values of rows the model has seen and re-estimate on the revised history')
+    .option('--horizon <n>', 'periods to forecast (default: as when the model was made)')
+    .option('--levels <list>', 'prediction interval levels in percent (default: as when the model was made)')
+    .option('--out <folder>', 'folder for forecast.csv, summary.json and charts (default: the model file’s folder)')
+    .option('--no-charts', 'do not render PNG charts')
+    .option('--json', 'print summary.json instead of the text summary');
+  addDataOptions(command);
+  command.action(async (model: string, file: string, opts: Record<string, unknown>) => {
+    const cli = parseUpdateOptions(opts);
+    const { result, summary, text } = await runUpdate(model, file, cli, opts, io);
+    io.out(cli.json ? updateSummaryJson(summary) : text);
+    if (cli.failOnDrift && result.alarms.length > 0) throw new ExitRequest(3);
+  });
+  program.addHelpText('after', '\nUpdate a saved model with new data:\n  certa update output/sales/model.json sales-2024.csv --on-drift adapt\n');
+}
