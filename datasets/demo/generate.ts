@@ -8,38 +8,21 @@
  *   subsidy_t      = 1 from 2019-07 on, else 0
  *   installations  = round(max(0, level_t · season_t + 55 · subsidy_t + 0.9 · frost_index_t + N(0, 10)))
  *
- * m_t is the month of the year (0 = January). Randomness comes from one seeded xorshift32
- * generator (shifts 13, 17, 5; G. Marsaglia, "Xorshift RNGs", Journal of Statistical Software
- * 8(14), 2003), turned into normal draws by the Box–Muller transform. Same seed, same file.
+ * m_t is the month of the year (0 = January). Randomness comes from certa's one seeded random
+ * source (src/linalg/random.ts), so the same seed writes the same file.
  *
  * Run: npx tsx datasets/demo/generate.ts
  */
 import { writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { createRng } from '../../src/linalg/random.js';
 
 const SEED = 20_150_101;
 
-/** xorshift32: a 32-bit state, never zero; returns uniform draws in (0, 1). */
-function xorshift32(seed: number): () => number {
-  let state = seed >>> 0 || 1;
-  return () => {
-    state ^= state << 13;
-    state >>>= 0;
-    state ^= state >>> 17;
-    state ^= state << 5;
-    state >>>= 0;
-    return (state + 0.5) / 4_294_967_296;
-  };
-}
-
-/** Standard normal draws by Box–Muller: √(−2 ln u₁) · cos(2π u₂). */
-function normal(uniform: () => number): () => number {
-  return () => Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform());
-}
-
 export function generate(seed = SEED): string {
-  const gauss = normal(xorshift32(seed));
+  const rng = createRng(seed);
+  const gauss = () => rng.normal();
   const lines = ['month,installations,subsidy,frost_index'];
   for (let t = 0; t < 120; t++) {
     const year = 2015 + Math.floor(t / 12);

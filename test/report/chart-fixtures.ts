@@ -4,6 +4,7 @@
  * Nothing here comes from real data.
  */
 import { stepTime } from '../../src/data/calendar.js';
+import { createRng } from '../../src/linalg/random.js';
 import type {
   ForecastChartInput,
   HistoryChartInput,
@@ -12,30 +13,10 @@ import type {
   ResidualChartInput,
 } from '../../src/report/charts.js';
 
-/** Small seeded generator (32-bit xorshift), so the fixture is the same on every run. */
-function xorshift(seed: number): () => number {
-  let s = seed >>> 0 || 1;
-  return () => {
-    s ^= s << 13;
-    s >>>= 0;
-    s ^= s >>> 17;
-    s ^= s << 5;
-    s >>>= 0;
-    return s / 4294967296;
-  };
-}
-
-/** Standard normal draws by the Box–Muller transform. */
+/** Standard normal draws from the project's seeded random source. */
 function normals(seed: number, n: number): Float64Array {
-  const u = xorshift(seed);
-  const out = new Float64Array(n);
-  for (let i = 0; i < n; i += 2) {
-    const r = Math.sqrt(-2 * Math.log(1 - u()));
-    const a = 2 * Math.PI * u();
-    out[i] = r * Math.cos(a);
-    if (i + 1 < n) out[i + 1] = r * Math.sin(a);
-  }
-  return out;
+  const rng = createRng(seed);
+  return Float64Array.from({ length: n }, () => rng.normal());
 }
 
 const START = Date.UTC(2016, 0, 1);
