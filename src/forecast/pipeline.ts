@@ -6,7 +6,13 @@
  * Defaults: horizon = two seasons (8 periods without a season); holdout = the smaller of two
  * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
  * 80 and 95 %; forgetting λ = 1; future inputs repeat their last season (seasonal series) or
- * are held at their last values, unless given.
+ * are held at their last values, unless given; the point forecast combines the top candidates
+ * by Akaike weights (combine.ts; `combine: false` keeps the asserted structure's own path).
+ *
+ * Combination. The asserted structure stays the single winner (its equation, refit, online
+ * learner and holdout evaluation are unchanged); only the final point forecast is the
+ * Akaike-weighted mean of the leading candidates' forecasts, each refitted on all data, and the
+ * winner's interval bands are moved by the same amount at each step (their widths kept).
  */
 import type { Series } from '../data/series.js';
 import { sliceSeries } from '../data/series.js';
@@ -19,6 +25,7 @@ import { backtest, type Backtest } from '../evaluate/backtest.js';
 import { forecastWithIntervals, type ForecastPaths, type IntervalMethod } from './intervals.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
+import { combinationMembers, combineForecasts, type Combination, type CombineOptions } from './combine.js';
 
 export interface ForecastOptions {
   search?: SearchOptions;
@@ -31,6 +38,8 @@ export interface ForecastOptions {
   /** Future inputs for the final forecast (from a file); overrides `inputPolicy`. */
   future?: (history: Series, h: number, times: number[]) => FutureInputs;
   intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean };
+  /** Point forecast combined over the top candidates by Akaike weights (default on); false = the winner's path. */
+  combine?: CombineOptions | false;
 }
 
 export interface AssertedModel {
@@ -56,7 +65,7 @@ export interface ForecastRun {
   asserted: AssertedModel;
   /** One-step fitted values on the original scale over the estimation sample of the refit. */
   fitted: { index: Int32Array; values: Float64Array };
-  forecast: { times: Float64Array; paths: ForecastPaths; inputs: FutureInputs };
+  forecast: { times: Float64Array; paths: ForecastPaths; inputs: FutureInputs; combination: Combination | null };
   warnings: string[];
 }
 
@@ -149,6 +158,23 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
         ? options.future(series, horizon, Array.from(times))
         : futureByPolicy(series, horizon, options.inputPolicy ?? defaultInputPolicy(series));
   const paths = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, intervalOptions);
+  let combination: Combination | null = null;
+  if (options.combine !== false) {
+    // Members are refitted on all data after a holdout search (the winner already is).
+    const refit = (s: Structure, e: Estimate): Estimate => (s.key === structure.key ? estimate : holdout > 0 ? s.estimate(series, from, n) : e);
+    const members = combinationMembers(found.ranking, options.combine ?? {});
+    combination = combineForecasts(members, horizon, (s, e) => s.simulate(refit(s, e).theta, series, inputs.values, horizon), series.values);
+    if (combination.point.every(Number.isFinite)) {
+      for (let j = 0; j < horizon; j++) {
+        const shift = combination.point[j] - paths.point[j];
+        for (const b of paths.bands) {
+          b.lower[j] += shift;
+          b.upper[j] += shift;
+        }
+      }
+      paths.point = combination.point;
+    }
+  }
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the asserted equation diverges over this horizon`);
@@ -174,7 +200,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
       learner,
     },
     fitted: { index, values: fittedValues },
-    forecast: { times, paths, inputs },
+    forecast: { times, paths, inputs, combination },
     warnings,
   };
 }

@@ -23,6 +23,7 @@ import { UsageError } from '../data/errors.js';
 import type { Structure, StructureSpec, Transform } from './structure.js';
 import { arxFamily } from './arx.js';
 import { odeFamily } from './ode.js';
+import { dampedFamily } from './damped.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -63,6 +64,7 @@ export interface FamilyDefinition {
 export const FAMILIES: readonly FamilyDefinition[] = [
   arxFamily,
   odeFamily,
+  dampedFamily,
 ];
 
 /** Names of the registered families, in registry order. */

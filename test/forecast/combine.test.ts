@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { search } from '../../src/select/search.js';
+import { forecastSeries } from '../../src/forecast/pipeline.js';
 import { combinationMembers, combineForecasts, combineRanking, isExplosivePath } from '../../src/forecast/combine.js';
 
 function series(values: number[]): Series {
@@ -72,5 +73,26 @@ describe('combineForecasts', () => {
     expect(c.members[0].share).toBe(0);
     expect(c.members.slice(1).reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 12);
     expect(c.point.every(Number.isFinite)).toBe(true);
+  });
+});
+
+describe('forecastSeries with combination', () => {
+  it('by default forecasts the Akaike-weighted mean and moves the bands with it; combine: false keeps the winner’s path', () => {
+    const own = forecastSeries(noisy, { holdout: 0, horizon: 4, combine: false });
+    const mixed = forecastSeries(noisy, { holdout: 0, horizon: 4 });
+    expect(own.forecast.combination).toBeNull();
+    const c = mixed.forecast.combination;
+    expect(c).not.toBeNull();
+    expect(Array.from(mixed.forecast.paths.point)).toEqual(Array.from(c!.point));
+    expect(Array.from(own.forecast.paths.point)).toEqual(Array.from(own.asserted.structure.simulate(own.asserted.estimate.theta, noisy, [], 4)));
+    for (let j = 0; j < 4; j++) {
+      const shift = mixed.forecast.paths.point[j] - own.forecast.paths.point[j];
+      expect(mixed.forecast.paths.bands[0].lower[j]).toBeCloseTo(own.forecast.paths.bands[0].lower[j] + shift, 9);
+      expect(mixed.forecast.paths.bands[0].upper[j] - mixed.forecast.paths.bands[0].lower[j]).toBeCloseTo(
+        own.forecast.paths.bands[0].upper[j] - own.forecast.paths.bands[0].lower[j],
+        9,
+      );
+    }
+    expect(mixed.asserted.structure.key).toBe(own.asserted.structure.key);
   });
 });
