@@ -19,7 +19,7 @@
  *    residuals get a Ljung–Box whiteness check (whiteness.ts).
  *
  * Defaults (small enough for interactive use: 336 ARX candidates on a positive monthly series
- * with one input; see bench/search.bench.ts): maxAr 3, maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0…min(2, ⌊s/2⌋) when
+ * with one input; see bench/search.bench.ts): maxAr 3 (max(1, ⌊n/10⌋) below 30 points, `defaultMaxAr`), maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0…min(2, ⌊s/2⌋) when
  * the series has a season), transform 'auto' (ln tried only for strictly positive series),
  * trend 'auto' (with and without), seasonalLag 'off', differencing 'none', criterion 'aicc',
  * all registered families and all inputs of the series.
@@ -229,9 +229,18 @@ function validateSeries(series: Series): void {
   }
 }
 
+/**
+ * The default AR bound for a series of n points: 3, lowered to max(1, ⌊n/10⌋) on short series.
+ * Every candidate loses the longest lag's first rows from the common sample, so the lags may
+ * take at most a tenth of the observations: 1 lag below 20 points, 2 below 30.
+ */
+export function defaultMaxAr(n: number): number {
+  return Math.min(SEARCH_DEFAULTS.maxAr, Math.max(1, Math.floor(n / 10)));
+}
+
 /** Resolves options to explicit bounds. */
 export function resolveBounds(series: Series, options: SearchOptions = {}): CandidateBounds {
-  const maxAr = checkInt('maxAr', options.maxAr ?? SEARCH_DEFAULTS.maxAr, 0, 24);
+  const maxAr = checkInt('maxAr', options.maxAr ?? defaultMaxAr(series.values.length), 0, 24);
   const maxInputLags = checkInt('maxInputLags', options.maxInputLags ?? SEARCH_DEFAULTS.maxInputLags, 0, 24);
   const maxDelay = checkInt('maxDelay', options.maxDelay ?? SEARCH_DEFAULTS.maxDelay, 0, 60);
   const season = options.season !== undefined ? options.season : series.season;

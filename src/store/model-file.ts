@@ -55,8 +55,8 @@ export const modelBodySchema = z
   .strictObject({
     /** What the structure registry needs to rebuild the structure (StructureSpec). */
     structure: z.looseObject({ family: z.string().min(1) }),
-    /** Regressor names in θ order (length p). */
-    terms: z.array(z.string().min(1)).min(1),
+    /** Regressor names in θ order (length p; 0 for a structure without coefficients, e.g. a random walk). */
+    terms: z.array(z.string().min(1)),
     /** Coefficients θ (length p). */
     theta: numberArray,
     /** Standard errors of θ (length p). */

@@ -92,7 +92,7 @@ describe('certa forecast', () => {
 
 describe('certa forecast: bad input', () => {
   const dir = mkdtempSync(join(tmpdir(), 'certa-forecast-bad-'));
-  writeFileSync(join(dir, 'short.csv'), 'month,sales\n2020-01,5\n2020-02,6\n2020-03,7\n2020-04,6\n2020-05,8\n');
+  writeFileSync(join(dir, 'short.csv'), 'month,sales\n2020-01,5\n2020-02,6\n2020-03,7\n');
   writeFileSync(join(dir, 'fut-cols.csv'), 'month,subsidy\n2025-01,1\n2025-02,1\n2025-03,1\n');
   writeFileSync(join(dir, 'fut-dates.csv'), 'month,subsidy,frost_index\n2026-01,1,50\n2026-02,1,60\n2026-03,1,60\n');
   const cases: { name: string; args: string[]; says: RegExp[] }[] = [
@@ -101,7 +101,7 @@ describe('certa forecast: bad input', () => {
     { name: 'holdout longer than the series', args: [...demoArgs, '--holdout', '500'], says: [/--holdout 500 leaves no training data/, /120 points/] },
     { name: 'future file without an input column', args: [...demoArgs, '--future', join(dir, 'fut-cols.csv')], says: [/fut-cols\.csv/, /no column named "frost_index"/] },
     { name: 'future file with the wrong dates', args: [...demoArgs, '--future', join(dir, 'fut-dates.csv'), '--horizon', '3'], says: [/fut-dates\.csv/, /does not cover the forecast horizon/] },
-    { name: 'series too short for any candidate', args: [join(dir, 'short.csv'), '--holdout', '0'], says: [/short\.csv|"sales"/, /5 points/, /needs at least/] },
+    { name: 'series too short for any candidate', args: [join(dir, 'short.csv'), '--holdout', '0'], says: [/short\.csv|"sales"/, /3 points/, /needs at least/] },
     { name: 'bad forgetting factor', args: [...demoArgs, '--forgetting', '1.5'], says: [/--forgetting/, /found "1.5"/] },
     { name: 'bad interval level', args: [...demoArgs, '--levels', '80,100'], says: [/--levels/, /found "100"/] },
   ];

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { search } from '../../src/select/search.js';
+import { defaultMaxAr, search } from '../../src/select/search.js';
 import { criteria } from '../../src/select/criteria.js';
 import { DataError, ModelError, UsageError } from '../../src/data/errors.js';
 import type { ArxSpec } from '../../src/models/arx.js';
@@ -137,7 +137,7 @@ describe('search: candidates that cannot be fitted and bad input', () => {
     const s = makeSeries([1, 3, 2, 5, 4], {}, { frequency: 'index', season: null });
     let err: unknown;
     try {
-      search(s, { families: ['arx'] });
+      search(s, { families: ['arx'], maxAr: 3 });
     } catch (e) {
       err = e;
     }
@@ -145,6 +145,17 @@ describe('search: candidates that cannot be fitted and bad input', () => {
     expect((err as ModelError).code).toBe('too-short');
     // largest history 3 (AR lags 1-3) + smallest candidate (1 term) + 3 rows = 7 points.
     expect((err as ModelError).message).toMatch(/has 5 points; the search needs at least 7/);
+  });
+
+  it('shrinks the default AR bound on a short series instead of refusing it: max(1, ⌊n/10⌋) lags', () => {
+    const s = makeSeries([1, 3, 2, 5, 4], {}, { frequency: 'index', season: null });
+    const r = search(s, { families: ['arx'] });
+    expect(r.bounds.maxAr).toBe(1);
+    expect(r.sample.from).toBe(1);
+    expect(defaultMaxAr(14)).toBe(1);
+    expect(defaultMaxAr(29)).toBe(2);
+    expect(defaultMaxAr(30)).toBe(3);
+    expect(defaultMaxAr(500)).toBe(3);
   });
 
   it('refuses a constant series', () => {
