@@ -40,7 +40,11 @@
  * 5. Window, fingerprint, state, last time stamp, `updated` and the log (time, rows added,
  *    ‖θ_after − θ_before‖₂, alarms, policy, note) are extended. When a re-search changes the
  *    terms, the parameter change is taken over the union of term names, a term missing from
- *    one side counting as 0. The log keeps the last LOG_LIMIT (1000) entries.
+ *    one side counting as 0. The log note carries the equations before and after only when
+ *    something beyond plain learning happened (an alarm, a re-search, accepted revisions), and
+ *    the log keeps the last LOG_LIMIT (240) entries, so long runs of single-row updates keep the
+ *    file small. After accepted revisions the fingerprint chain is extended by the revised rows
+ *    and then the new ones: it covers every row certa was given, in the order given.
  * 6. A forecast from the updated model: horizon from the options, else the model's
  *    `meta.horizon`, else two seasons (8 without a season); levels likewise (default 80, 95);
  *    future inputs held at their last values (or `options.future`); intervals by
@@ -57,7 +61,7 @@
  */
 import { formatTime, stepTime } from '../data/calendar.js';
 import { DataError, UsageError } from '../data/errors.js';
-import type { Series } from '../data/series.js';
+import { sliceSeries, type Series } from '../data/series.js';
 import type { Structure } from '../models/structure.js';
 import { forward } from '../models/transforms.js';
 import { search, type SearchOptions } from '../select/search.js';
@@ -78,7 +82,7 @@ export const DRIFT_POLICIES: readonly DriftPolicy[] = ['warn', 'adapt', 'researc
 export const ADAPT = { lambda: 0.9, steps: 24, inflate: 10 } as const;
 
 /** Most update-log entries a model keeps (the oldest are dropped). */
-export const LOG_LIMIT = 1000;
+export const LOG_LIMIT = 240;
 
 export interface UpdateOptions {
   /** ISO 8601 time of this update (the caller's clock), for `updated` and the log. */
@@ -294,8 +298,11 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
 
   // Rebuild the model, replaying a revised window when asked.
   let model = assertedFromBody(body);
-  const before = describeModel(model);
-  const thetaBefore = termMap(model.structure.terms, model.learner.theta);
+  const structureBefore = model.structure;
+  const thetaBefore = model.learner.theta;
+  const seBefore = Float64Array.from(body.se);
+  let beforeText: ModelDescription | undefined;
+  const describeBefore = () => (beforeText ??= { key: structureBefore.key, label: structureBefore.label, equation: structureBefore.describe(thetaBefore, seBefore) });
   const seen = revisions.length > 0 ? reviseWindow(w, rows, names, columns, lastTime) : w;
   const notes: string[] = [];
   if (revisions.length > 0) {
@@ -318,7 +325,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   const nextBody: ModelBody = { ...body, window, state };
   // The series the learner continues on: the old window (revised) plus the new rows; positions
   // are those of the old window, so the learner's `next` is the first new row.
-  const ext = appendRows(windowSeries({ ...body, window: seen }), newRows, names);
+  const ext = appendRows(body, seen, newRows, names);
 
   // 3–4. Learn row by row, watching for drift.
   const steps: UpdateStep[] = [];
@@ -374,28 +381,37 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   }
   if (adaptRemaining > 0 || state.adaptRemaining !== undefined) state.adaptRemaining = adaptRemaining;
 
-  const after = describeModel(model);
-  const parameterChange = changeNorm(thetaBefore, termMap(model.structure.terms, model.learner.theta));
+  const seAfter = seOf(model.learner);
+  const after: ModelDescription = { key: model.structure.key, label: model.structure.label, equation: model.structure.describe(model.learner.theta, seAfter) };
+  const parameterChange = structureChanged
+    ? changeNorm(termMap(structureBefore.terms, thetaBefore), termMap(model.structure.terms, model.learner.theta))
+    : euclidean(thetaBefore, model.learner.theta);
   if (body.meta.equation !== undefined || structureChanged) {
     meta = { ...meta, key: model.structure.key, label: model.structure.label, equation: after.equation };
   }
-  const fields = learnerFields({ ...model, se: seOf(model.learner) });
+  const fields = learnerFields({ ...model, se: seAfter });
   const policy: PolicyOutcome = {
     name: alarms.length === 0 ? 'continue' : policyName,
     note: notes.join('; ') || `learnt ${added} new row${added === 1 ? '' : 's'}`,
-    before,
+    get before() {
+      return describeBefore();
+    },
     after,
     structureChanged,
   };
+  // Equations go into the log when something happened beyond plain learning (an alarm, a
+  // re-search, accepted revisions), so a long run of single-row updates keeps a small log.
+  const remarkable = alarms.length > 0 || structureChanged || revisions.length > 0;
   const entry: UpdateEntry = {
     time: options.now,
     rowsAdded: added,
     parameterChange,
     alarms,
     policy: policy.name,
-    note: policy.name === 'continue' && after.equation === before.equation ? policy.note : `${policy.note}; before: ${before.equation}; after: ${after.equation}`,
+    note: remarkable ? `${policy.note}; before: ${describeBefore().equation}; after: ${after.equation}` : policy.note,
   };
-  const log = [...body.log, entry];
+  const log = body.log.length >= LOG_LIMIT ? body.log.slice(body.log.length - LOG_LIMIT + 1) : body.log.slice();
+  log.push(entry);
   const last = newRows.length > 0 ? newRows[newRows.length - 1].time : lastTime;
   Object.assign(nextBody, fields.model, {
     series: { ...body.series, lastTime: last, lastTimeLabel: label(last) },
@@ -403,12 +419,14 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
     fingerprint: extendFingerprint(body.fingerprint, revisions.length > 0 ? [...overlapRows(rows, columns, lastTime), ...newRows] : newRows),
     criterion,
     updated: options.now,
-    log: log.length > LOG_LIMIT ? log.slice(log.length - LOG_LIMIT) : log,
+    log,
     drift,
     meta,
   });
-  const series = windowSeries(nextBody);
-  const current: AssertedState = { ...model, learner: Learner.fromJSON(model.structure, { ...model.learner.toJSON(), next: series.values.length }) };
+  // The new window is the tail of `ext`; the learner's positions move with it.
+  const series = tailSeries(ext, dropped, { count: Number(state.before), sum: Number(state.beforeSum) });
+  model.learner.next = series.values.length;
+  const current = model;
   return {
     body: nextBody,
     added,
@@ -450,6 +468,13 @@ function termMap(terms: string[], theta: ArrayLike<number>): Map<string, number>
   return new Map(terms.map((t, j) => [t, theta[j]]));
 }
 
+/** ‖a − b‖₂ of two vectors of the same length. */
+function euclidean(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let s = 0;
+  for (let j = 0; j < a.length; j++) s += (a[j] - b[j]) ** 2;
+  return Math.sqrt(s);
+}
+
 /** ‖a − b‖₂ over the union of term names, a term missing from one side counting as 0. */
 function changeNorm(a: Map<string, number>, b: Map<string, number>): number {
   let s = 0;
@@ -487,16 +512,17 @@ function overlapRows(rows: Series, columns: Float64Array[], lastTime: number): D
   return out;
 }
 
-function appendRows(base: Series, rows: DataRow[], names: string[]): Series {
-  const n = base.values.length;
+/** The series of the window `seen` (what `windowSeries` gives for it) followed by the new rows. */
+function appendRows(body: ModelBody, seen: ModelBody['window'], rows: DataRow[], names: string[]): Series {
+  const n = seen.values.length;
   const m = rows.length;
   const time = new Float64Array(n + m);
   const values = new Float64Array(n + m);
-  time.set(base.time);
-  values.set(base.values);
+  time.set(seen.time);
+  values.set(seen.values);
   const inputs = names.map((name, j) => {
     const v = new Float64Array(n + m);
-    v.set(base.inputs[j].values);
+    v.set(seen.inputs[name]);
     for (let k = 0; k < m; k++) v[n + k] = rows[k].inputs[j];
     return { name, values: v };
   });
@@ -504,7 +530,20 @@ function appendRows(base: Series, rows: DataRow[], names: string[]): Series {
     time[n + k] = rows[k].time;
     values[n + k] = rows[k].value;
   }
-  return { ...base, time, values, inputs };
+  return {
+    name: body.series.name,
+    frequency: body.series.frequency as Series['frequency'],
+    season: body.series.season,
+    time,
+    values,
+    inputs,
+    before: { count: Number(body.state.before ?? 0), sum: Number(body.state.beforeSum ?? 0) },
+  };
+}
+
+/** Observations [drop, n) of a series, sharing its buffers, with `before` as the body states it. */
+function tailSeries(series: Series, drop: number, before: { count: number; sum: number }): Series {
+  return { ...sliceSeries(series, drop, series.values.length), before };
 }
 
 /** The forecast of the model after its window (module comment, step 6). */

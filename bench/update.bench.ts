@@ -1,0 +1,92 @@
+/**
+ * Online-update throughput.
+ *
+ * 1. Library: `update(body, oneRow, …)` on an in-memory body (no file, no lock), for an ARX
+ *    model (AR 1, one input, trend, one harmonic pair; 240-row window; 100 log entries) fitted on
+ *    240 seeded points. Each call includes: checking the row, rebuilding structure and learner
+ *    from the body, one RLS step, one drift step, the fingerprint hash, extending the window
+ *    and the log, and building the new body. Measured without the forecast (`skipForecast`),
+ *    with the forecast (12 steps, analytic intervals), and with serialization of the new body
+ *    (`serializeModel`: validation, canonical JSON, SHA-256 checksum, pretty text) as the CLI
+ *    writes it. Each update continues from the previous one's body (a chain of single-row
+ *    updates), timed over 2 000 updates after 200 of warm-up, best of 5 rounds.
+ * 2. CLI: wall time of one `node bin/certa.js update model.json rows.csv --no-charts` (a child
+ *    process: Node start-up, module loading, lock, read, update, write), median of 9 runs.
+ *
+ * Target: ≥ 10 000 library updates per second without charts on the 2-core reference machine.
+ * Run: `npm run bench -- update` (builds first; or `npx tsx bench/update.bench.ts` after
+ * `npm run build`).
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync, copyFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { update, type UpdateOptions } from '../src/forecast/update.js';
+import { serializeModel, type ModelBody } from '../src/store/model-file.js';
+import { formatTime } from '../src/data/calendar.js';
+import { bodyOn, rowsOf, simulateArx } from '../test/forecast/update-fixtures.js';
+
+const FIT = 240;
+const sim = simulateArx(FIT + 2200 + 20, 42);
+const start: ModelBody = (() => {
+  let b = bodyOn(sim.series, FIT);
+  for (let k = FIT; k < FIT + 100; k++) b = update(b, rowsOf(sim.series, k, k + 1), { now: '2024-01-01T00:00:00.000Z', skipForecast: true }).body;
+  return b;
+})();
+const firstRow = FIT + 100;
+const rows = Array.from({ length: 2200 }, (_, k) => rowsOf(sim.series, firstRow + k, firstRow + k + 1));
+
+function perSecond(options: Omit<UpdateOptions, 'now'>, serialize: boolean): { rate: number; us: number } {
+  let best = Infinity;
+  for (let round = 0; round < 5; round++) {
+    let body = start;
+    for (let k = 0; k < 200; k++) body = update(body, rows[k], { now: '2024-01-01T00:00:00.000Z', ...options }).body;
+    const t0 = process.hrtime.bigint();
+    for (let k = 200; k < 2200; k++) {
+      body = update(body, rows[k], { now: '2024-01-01T00:00:00.000Z', ...options }).body;
+      if (serialize) serializeModel(body);
+    }
+    best = Math.min(best, Number(process.hrtime.bigint() - t0) / 1e9);
+  }
+  return { rate: 2000 / best, us: (best / 2000) * 1e6 };
+}
+
+console.log('library update, one row, ARX (p = 6), window 240'.padEnd(56), 'updates/s', '   µs/update');
+for (const [label, options, serialize] of [
+  ['update, no forecast', { skipForecast: true }, false],
+  ['update + forecast (12 steps, analytic intervals)', {}, false],
+  ['update, no forecast + serializeModel', { skipForecast: true }, true],
+  ['update + forecast + serializeModel', {}, true],
+] as [string, Omit<UpdateOptions, 'now'>, boolean][]) {
+  const m = perSecond(options, serialize);
+  console.log(`  ${label}`.padEnd(56), m.rate.toFixed(0).padStart(9), m.us.toFixed(1).padStart(12));
+}
+
+// CLI wall time of one update (the built CLI).
+const dir = mkdtempSync(join(tmpdir(), 'certa-update-bench-'));
+try {
+  const model = join(dir, 'model.json');
+  const base = join(dir, 'base.json');
+  writeFileSync(base, serializeModel(start));
+  const f = sim.series.frequency;
+  const k = firstRow;
+  writeFileSync(join(dir, 'rows.csv'), `month,sales,price\n${formatTime(sim.series.time[k], f)},${sim.series.values[k]},${sim.series.inputs[0].values[k]}\n`);
+  const times: number[] = [];
+  for (let i = 0; i < 9; i++) {
+    copyFileSync(base, model);
+    const t0 = process.hrtime.bigint();
+    const r = spawnSync(process.execPath, ['bin/certa.js', 'update', model, join(dir, 'rows.csv'), '--no-charts', '--json'], { encoding: 'utf8', env: { ...process.env, TZ: 'UTC' } });
+    times.push(Number(process.hrtime.bigint() - t0) / 1e6);
+    if (r.status !== 0) throw new Error(`certa update failed: ${r.stderr}`);
+  }
+  times.sort((a, b) => a - b);
+  const node = spawnSync(process.execPath, ['-e', '0']);
+  void node;
+  const t0 = process.hrtime.bigint();
+  spawnSync(process.execPath, ['-e', '0']);
+  const bare = Number(process.hrtime.bigint() - t0) / 1e6;
+  console.log(`CLI: certa update (one row, --no-charts), median of 9: ${times[4].toFixed(0)} ms (bare node start: ${bare.toFixed(0)} ms)`);
+} finally {
+  rmSync(dir, { recursive: true, force: true });
+}
+console.log('target: ≥ 10 000 library updates per second without charts');
