@@ -3,7 +3,9 @@
  *
  * Two views, both reported (Tashman 2000, "Out-of-sample tests of forecasting accuracy",
  * IJF 16:437–450):
- *  (a) fixed origin: one forecast of every holdout point from the end of the training data;
+ *  (a) fixed origin: one forecast of every holdout point from the end of the training data —
+ *      the forecast certa delivers (pipeline.ts: combined over candidates unless switched off),
+ *      made by the caller, with the asserted structure's own forecast beside it when they differ;
  *  (b) rolling origin: at each holdout time o the model forecasts o, o+1, …, o+h−1; then y_o
  *      arrives and the parameters learn from it by recursive least squares with forgetting λ
  *      (no structure re-search). The same rolling run with frozen parameters is kept beside it,
@@ -15,7 +17,7 @@ import type { Series } from '../data/series.js';
 import { sliceSeries } from '../data/series.js';
 import type { Estimate, Structure } from '../models/structure.js';
 import { Learner } from '../forecast/online.js';
-import { forecastWithIntervals, type ForecastPaths, type IntervalOptions } from '../forecast/intervals.js';
+import type { ForecastPaths } from '../forecast/intervals.js';
 import { BASELINES, type BaselineName } from './baselines.js';
 import { metricTable, type MetricTable } from './metrics.js';
 
@@ -33,9 +35,12 @@ export interface BacktestOptions {
   horizon: number;
   /** Forgetting factor of the rolling run (default 1). */
   lambda: number;
-  intervals: IntervalOptions;
   /** First time index of the estimation sample (the search's common sample start). */
   sampleFrom: number;
+  /** The delivered fixed-origin forecast of the holdout from the end of training, with bands. */
+  fixed: ForecastPaths;
+  /** The asserted structure's own fixed-origin forecast, when the delivered one combines several. */
+  alone?: ForecastPaths | null;
 }
 
 export interface MetricRow {
@@ -60,13 +65,11 @@ export interface Backtest {
 }
 
 /** Runs both views for a structure estimated on the first `nTrain` points of `series`. */
-export function backtest(structure: Structure, estimate: Estimate, series: Series, nTrain: number, residuals: ArrayLike<number>, options: BacktestOptions): Backtest {
+export function backtest(structure: Structure, estimate: Estimate, series: Series, nTrain: number, options: BacktestOptions): Backtest {
   const n = series.values.length;
   const holdout = n - nTrain;
-  const train = sliceSeries(series, 0, nTrain);
   const actual = series.values.slice(nTrain, n);
-  const futureInputs = series.inputs.map((i) => i.values.slice(nTrain, n));
-  const fixed = forecastWithIntervals(structure, estimate, train, futureInputs, holdout, residuals, options.intervals);
+  const fixed = options.fixed;
 
   const learner = Learner.start(structure, estimate.active, series, options.sampleFrom, nTrain, { lambda: options.lambda });
   const rolling = roll(structure, series, nTrain, options.horizon, () => learner.theta, (o) => learner.learn(sliceSeries(series, 0, o + 1)));
@@ -84,6 +87,7 @@ export function backtest(structure: Structure, estimate: Estimate, series: Serie
     return { level: b.level, coverage: m.coverage ?? NaN, intervalScore: m.intervalScore ?? NaN };
   });
   rows.push(modelRow);
+  if (options.alone) rows.push({ method: 'asserted equation alone', view: 'fixed-origin', metrics: metricTable(actual, options.alone.point, opts) });
   for (const name of fixedBaselines(season)) {
     rows.push({ method: name, view: 'fixed-origin', metrics: metricTable(actual, BASELINES[name](trainValues, holdout, season), opts) });
   }

@@ -22,7 +22,7 @@ import { search, type SearchOptions, type SearchResult } from '../select/search.
 import type { Derived, Estimate, Structure } from '../models/structure.js';
 import { forward, inverse } from '../models/transforms.js';
 import { backtest, type Backtest } from '../evaluate/backtest.js';
-import { forecastWithIntervals, type ForecastPaths, type IntervalMethod } from './intervals.js';
+import { forecastWithIntervals, type ForecastPaths, type IntervalMethod, type IntervalOptions } from './intervals.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
 import { combinationMembers, combineForecasts, type Combination, type CombineOptions } from './combine.js';
@@ -123,13 +123,17 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
   const { structure } = found.winner;
   const from = found.sample.from;
 
+  const combine = options.combine === false ? null : options.combine ?? {};
   let evaluation: Backtest | null = null;
   if (holdout > 0) {
-    evaluation = backtest(structure, found.winner.estimate, series, nTrain, found.winner.residuals, {
+    const fixedInputs = series.inputs.map((i) => i.values.slice(nTrain, n));
+    const fixed = deliveredForecast(found, structure, found.winner.estimate, train, fixedInputs, holdout, found.winner.residuals, intervalOptions, combine, (_, e) => e);
+    evaluation = backtest(structure, found.winner.estimate, series, nTrain, {
       horizon,
       lambda: forgetting,
-      intervals: intervalOptions,
       sampleFrom: from,
+      fixed: fixed.paths,
+      alone: fixed.alone,
     });
     warnings.push(...evaluation.warnings);
   }
@@ -157,24 +161,9 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
       : options.future
         ? options.future(series, horizon, Array.from(times))
         : futureByPolicy(series, horizon, options.inputPolicy ?? defaultInputPolicy(series));
-  const paths = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, intervalOptions);
-  let combination: Combination | null = null;
-  if (options.combine !== false) {
-    // Members are refitted on all data after a holdout search (the winner already is).
-    const refit = (s: Structure, e: Estimate): Estimate => (s.key === structure.key ? estimate : holdout > 0 ? s.estimate(series, from, n) : e);
-    const members = combinationMembers(found.ranking, options.combine ?? {});
-    combination = combineForecasts(members, horizon, (s, e) => s.simulate(refit(s, e).theta, series, inputs.values, horizon), series.values);
-    if (combination.point.every(Number.isFinite)) {
-      for (let j = 0; j < horizon; j++) {
-        const shift = combination.point[j] - paths.point[j];
-        for (const b of paths.bands) {
-          b.lower[j] += shift;
-          b.upper[j] += shift;
-        }
-      }
-      paths.point = combination.point;
-    }
-  }
+  // Members other than the winner are refitted on all data after a holdout search.
+  const refit = (s: Structure, e: Estimate): Estimate => (s.key === structure.key ? estimate : holdout > 0 ? s.estimate(series, from, n) : e);
+  const { paths, combination } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit);
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the asserted equation diverges over this horizon`);
@@ -203,4 +192,39 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
     forecast: { times, paths, inputs, combination },
     warnings,
   };
+}
+
+/**
+ * The forecast certa delivers from the end of `history`: the asserted structure's simulation with
+ * its interval bands (intervals.ts) and, unless combining is off, the point replaced by the
+ * Akaike-weighted combination of the leading candidates (combine.ts) with the bands moved by the
+ * same amount at each step (their widths kept). `alone` is the asserted structure's own forecast
+ * when it differs from the delivered one. The same function serves the holdout's fixed origin and
+ * the final forecast, so the evaluation scores exactly what is delivered.
+ */
+function deliveredForecast(
+  found: SearchResult,
+  structure: Structure,
+  estimate: Estimate,
+  history: Series,
+  future: Float64Array[],
+  h: number,
+  residuals: ArrayLike<number>,
+  intervals: IntervalOptions,
+  combine: CombineOptions | null,
+  refit: (s: Structure, e: Estimate) => Estimate,
+): { paths: ForecastPaths; alone: ForecastPaths | null; combination: Combination | null } {
+  const own = forecastWithIntervals(structure, estimate, history, future, h, residuals, intervals);
+  if (combine === null) return { paths: own, alone: null, combination: null };
+  const members = combinationMembers(found.ranking, combine);
+  const combination = combineForecasts(members, h, (s, e) => s.simulate(refit(s, e).theta, history, future, h), history.values);
+  const used = combination.members.filter((m) => !m.excluded).length;
+  if (used <= 1 || !combination.point.every(Number.isFinite)) return { paths: own, alone: null, combination };
+  const shift = (x: Float64Array) => Float64Array.from(x, (v, j) => v + combination.point[j] - own.point[j]);
+  const paths: ForecastPaths = {
+    ...own,
+    point: Float64Array.from(combination.point),
+    bands: own.bands.map((b) => ({ level: b.level, lower: shift(b.lower), upper: shift(b.upper) })),
+  };
+  return { paths, alone: own, combination };
 }

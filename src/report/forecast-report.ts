@@ -133,6 +133,10 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
       : null,
     forecast: {
       inputs: run.forecast.inputs.source,
+      point: pointSource(run),
+      combination: run.forecast.combination
+        ? run.forecast.combination.members.map((m) => ({ key: m.key, weight: m.weight, share: m.share, excluded: m.excluded ?? null }))
+        : null,
       rows: Array.from(run.forecast.times, (t, j) => {
         const row: Record<string, unknown> = { time: formatTime(t, f), point: run.forecast.paths.point[j] };
         for (const b of run.forecast.paths.bands) {
@@ -263,7 +267,7 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
     lines.push('Holdout: none (--holdout 0): the model was not evaluated on unseen data.');
   }
   lines.push('');
-  lines.push(...forecastTableLines(f, run.forecast.times, run.forecast.paths, run.forecast.inputs.source));
+  lines.push(...forecastTableLines(f, run.forecast.times, run.forecast.paths, `${pointSource(run)}; ${run.forecast.inputs.source}`));
   const warnings = summary.warnings as string[];
   if (warnings.length > 0) {
     lines.push('');
@@ -291,7 +295,16 @@ export function forecastTableLines(f: Frequency, times: Float64Array, paths: For
   return lines;
 }
 
-export function pad(cells: string[], widths: number[]): string {
+/** What the point forecast is, in words: the asserted equation's path or a combination. */
+export function pointSource(run: ForecastRun): string {
+  const c = run.forecast.combination;
+  const used = c ? c.members.filter((m) => !m.excluded) : [];
+  if (!c || used.length <= 1) return 'point from the asserted equation';
+  const own = used.find((m) => m.key === run.asserted.structure.key);
+  return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
+}
+
+function pad(cells: string[], widths: number[]): string {
   return cells
     .map((c, i) => (widths[i] > 0 ? c.padEnd(widths[i]) : c))
     .join(' ')
