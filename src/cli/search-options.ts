@@ -12,7 +12,7 @@ import { SEARCH_DEFAULTS, type SearchOptions } from '../select/search.js';
 export function addSearchOptions(command: Command): Command {
   const d = SEARCH_DEFAULTS;
   return command
-    .option('--max-ar <n>', `largest number of AR lags (default ${d.maxAr})`)
+    .option('--max-ar <n>', `largest number of AR lags (default: min(${d.maxAr}, n/10), at least 1, for a series of n points)`)
     .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
     .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
     .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
