@@ -218,8 +218,9 @@ function deliveredForecast(
   if (combine === null) return { paths: own, alone: null, combination: null };
   const members = combinationMembers(found.ranking, combine);
   const combination = combineForecasts(members, h, (s, e) => s.simulate(refit(s, e).theta, history, future, h), history.values);
-  const used = combination.members.filter((m) => !m.excluded).length;
-  if (used <= 1 || !combination.point.every(Number.isFinite)) return { paths: own, alone: null, combination };
+  const used = combination.members.filter((m) => !m.excluded);
+  if (used.length === 0 || !combination.point.every(Number.isFinite)) return { paths: own, alone: null, combination };
+  if (used.length === 1 && used[0].key === structure.key) return { paths: own, alone: null, combination };
   const shift = (x: Float64Array) => Float64Array.from(x, (v, j) => v + combination.point[j] - own.point[j]);
   const paths: ForecastPaths = {
     ...own,

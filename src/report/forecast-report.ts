@@ -299,7 +299,7 @@ export function forecastTableLines(f: Frequency, times: Float64Array, paths: For
 export function pointSource(run: ForecastRun): string {
   const c = run.forecast.combination;
   const used = c ? c.members.filter((m) => !m.excluded) : [];
-  if (!c || used.length <= 1) return 'point from the asserted equation';
+  if (!c || used.length === 0 || (used.length === 1 && used[0].key === run.asserted.structure.key)) return 'point from the asserted equation';
   const own = used.find((m) => m.key === run.asserted.structure.key);
   return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
 }
