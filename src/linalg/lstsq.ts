@@ -14,7 +14,7 @@
  * ‖A‖₂ ≤ ‖A‖_F ≤ √r‖A‖₂, Golub & Van Loan 2013, §2.3.2). `qr(phi).condition` gives κ₂.
  *
  * Cost: 2np² − 2p³/3 (factorisation) + 4np (solve, residuals) + p³/3 (covariance) flops.
- * Allocates Φ's column-major copy once, plus the result arrays.
+ * Allocates one buffer for the result arrays; the factors go to storage shared by all calls.
  *
  * @example
  *   lstsq(fromRows([[1, 1], [1, 2], [1, 3]]), Float64Array.of(1, 2, 2), ['a', 'b'])
@@ -90,7 +90,11 @@ export function lstsq(phi: DesignMatrix, y: Float64Array, names: string[], optio
       throw new ModelError('non-finite', `target value in regression row ${i + 1} is not a finite number`, { found: String(y[i]), expected: 'a finite number' });
     }
   }
-  const f = tryQr(phi, { rankTolerance: options.rankTolerance });
+  // Every result array is a view of one buffer (one allocation instead of six). Qᵀy is formed
+  // alongside the factors, in the view that later holds the residuals.
+  const out = resultArrays(n, p);
+  out.residuals.set(y);
+  const f = tryQr(phi, { rankTolerance: options.rankTolerance }, factorStorage(n * (p + 1)), out.residuals);
   if (f === undefined) throw nonFiniteTerm(phi, names);
   const warnings: string[] = [];
   if (f.rank < p) {
@@ -104,17 +108,50 @@ export function lstsq(phi: DesignMatrix, y: Float64Array, names: string[], optio
     }
     warnings.push(message);
   }
-  return finish(f, phi, y, names, warnings);
+  return finish(f, phi, y, out, names, warnings);
 }
 
-/** Builds the result from a factorisation (shared with callers that factor once). */
-function finish(f: QrFactorization, phi: DesignMatrix, y: Float64Array, names: string[], warnings: string[]): LstsqResult {
+/**
+ * Storage for the factors of the fit in progress, reused by every call: the factorisation never
+ * leaves `lstsq`, so the next call may overwrite it. Matrices above FACTOR_STORAGE_LIMIT entries
+ * get their own array (there the allocation is small beside the factorisation).
+ */
+let sharedFactors = new Float64Array(0);
+const FACTOR_STORAGE_LIMIT = 1 << 16;
+
+function factorStorage(size: number): Float64Array | undefined {
+  if (size > FACTOR_STORAGE_LIMIT) return undefined;
+  if (sharedFactors.length < size) sharedFactors = new Float64Array(Math.max(size, Math.min(FACTOR_STORAGE_LIMIT, 2 * sharedFactors.length)));
+  return sharedFactors;
+}
+
+interface ResultArrays {
+  theta: Float64Array;
+  residuals: Float64Array;
+  fitted: Float64Array;
+  cov: Float64Array;
+  xtxInv: Float64Array;
+  se: Float64Array;
+}
+
+/** The result arrays of an n×p fit, zero-filled views of one buffer. */
+function resultArrays(n: number, p: number): ResultArrays {
+  const buf = new ArrayBuffer(8 * (2 * n + 2 * p * p + 2 * p));
+  let at = 0;
+  const take = (len: number): Float64Array => {
+    const v = new Float64Array(buf, at, len);
+    at += 8 * len;
+    return v;
+  };
+  return { residuals: take(n), fitted: take(n), cov: take(p * p), xtxInv: take(p * p), theta: take(p), se: take(p) };
+}
+
+/** Builds the result from a factorisation and `out.residuals` = Qᵀy (overwritten by e). */
+function finish(f: QrFactorization, phi: DesignMatrix, y: Float64Array, out: ResultArrays, names: string[], warnings: string[]): LstsqResult {
   const n = phi.rows;
   const p = phi.cols;
-  const theta = new Float64Array(p);
-  const residuals = new Float64Array(n);
-  f.solveInto(y, theta, residuals); // residuals serves as scratch for Qᵀy, then is overwritten
-  const fitted = new Float64Array(n);
+  const { theta, residuals, fitted, cov, xtxInv, se } = out;
+  f.solveTransformedInto(residuals, theta); // Qᵀy becomes scratch for z, then holds e
   const d = phi.data;
   let rss = 0;
   for (let i = 0; i < n; i++) {
@@ -130,9 +167,7 @@ function finish(f: QrFactorization, phi: DesignMatrix, y: Float64Array, names: s
   const dof = n - rank;
   const sigma2 = dof > 0 ? rss / dof : NaN;
   if (dof === 0) warnings.push(`no residual degrees of freedom (${n} rows, rank ${rank}): noise variance and standard errors are undefined`);
-  const xtxInv = f.xtxInv();
-  const cov = new Float64Array(p * p);
-  const se = new Float64Array(p);
+  f.xtxInvInto(xtxInv);
   for (let k = 0; k < p * p; k++) cov[k] = sigma2 * xtxInv[k];
   for (let j = 0; j < p; j++) se[j] = Math.sqrt(cov[j * p + j]);
   const active = new Array<boolean>(p).fill(false);

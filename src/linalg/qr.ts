@@ -170,10 +170,17 @@ export class QrFactorization {
 
   /** As {@link solve}, writing θ into `theta` (length p) and using `work` (length n) as scratch. */
   solveInto(y: Float64Array, theta: Float64Array, work: Float64Array): void {
+    this.solveTransformedInto(this.qtMul(y, work), theta);
+  }
+
+  /**
+   * As {@link solveInto} from c = Qᵀy already formed (for example by {@link tryQr}'s `rhs`);
+   * c[0:r] is overwritten by z.
+   */
+  solveTransformedInto(c: Float64Array, theta: Float64Array): void {
     const n = this.rows;
     const r = this.rank;
     const a = this.qrData;
-    const c = this.qtMul(y, work);
     // Back substitution R₁₁ z = c[0:r], in place in c.
     for (let k = r - 1; k >= 0; k--) {
       let s = c[k];
@@ -193,11 +200,19 @@ export class QrFactorization {
    */
   pivotedInverseGram(): Float64Array {
     const r = this.rank;
+    const buf = new Float64Array(2 * r * r);
+    this.inverseGramInto(buf);
+    return buf.subarray(r * r);
+  }
+
+  /** Writes U = R₁₁⁻¹ into buf[0 … r²) and S = U·Uᵀ into buf[r² … 2r²), both r×r row-major. */
+  private inverseGramInto(buf: Float64Array): void {
+    const r = this.rank;
     const n = this.rows;
     const a = this.qrData;
-    // U = R₁₁⁻¹ (upper triangular), row-major r×r, column by column.
-    const buf = new Float64Array(2 * r * r);
-    const u = buf.subarray(0, r * r);
+    // U = R₁₁⁻¹ (upper triangular), row-major r×r, column by column; entries below the
+    // diagonal are never read.
+    const u = buf;
     for (let j = 0; j < r; j++) {
       u[j * r + j] = 1 / a[j * n + j];
       for (let i = j - 1; i >= 0; i--) {
@@ -207,16 +222,15 @@ export class QrFactorization {
       }
     }
     // S = U·Uᵀ, symmetric: S_ij = Σ_{k ≥ max(i,j)} U_ik U_jk.
-    const sm = buf.subarray(r * r);
+    const so = r * r;
     for (let i = 0; i < r; i++) {
       for (let j = i; j < r; j++) {
         let s = 0;
         for (let k = j; k < r; k++) s += u[i * r + k] * u[j * r + k];
-        sm[i * r + j] = s;
-        sm[j * r + i] = s;
+        buf[so + i * r + j] = s;
+        buf[so + j * r + i] = s;
       }
     }
-    return sm;
   }
 
   /**
@@ -226,21 +240,29 @@ export class QrFactorization {
    * Cost r³/3 + p² flops.
    */
   xtxInv(): Float64Array {
+    const out = new Float64Array(this.cols * this.cols);
+    this.xtxInvInto(out);
+    return out;
+  }
+
+  /** As {@link xtxInv}, writing into `out` (length p², all zero on entry). */
+  xtxInvInto(out: Float64Array): void {
     const p = this.cols;
     const r = this.rank;
-    const sm = this.pivotedInverseGram();
-    const out = new Float64Array(p * p);
+    if (gramScratch.length < 2 * r * r) gramScratch = new Float64Array(Math.max(2 * r * r, 2 * gramScratch.length));
+    const buf = gramScratch;
+    this.inverseGramInto(buf);
+    const so = r * r;
     for (let k = 0; k < r; k++) {
       const i = this.perm[k];
       const si = this.scale[i];
       for (let l = k; l < r; l++) {
         const j = this.perm[l];
-        const v = si * sm[k * r + l] * this.scale[j];
+        const v = si * buf[so + k * r + l] * this.scale[j];
         out[i * p + j] = v;
         out[j * p + i] = v;
       }
     }
-    return out;
   }
 
   /** The upper-trapezoidal R (min(n,p)×p, row-major) of the scaled, pivoted factorisation. */
@@ -374,30 +396,49 @@ export function qr(phi: DesignMatrix, options: QrOptions = {}): QrFactorization 
   return f;
 }
 
-/** As {@link qr}, but returns undefined (instead of throwing) when Φ has a non-finite entry. */
-export function tryQr(phi: DesignMatrix, options: QrOptions = {}): QrFactorization | undefined {
+/** U = R₁₁⁻¹ and S = U·Uᵀ while (ΦᵀΦ)⁻¹ is formed; shared, grown on demand. */
+let gramScratch = new Float64Array(128);
+
+/**
+ * The partial column norms of the pivoting (2p) of the factorisation in progress; shared, grown
+ * on demand, never referenced after `tryQr` returns.
+ */
+let normScratch = new Float64Array(48);
+
+/**
+ * As {@link qr}, but returns undefined (instead of throwing) when Φ has a non-finite entry.
+ * `storage`, when given (length ≥ n·(p + 1)), receives the factors instead of a new array: a
+ * caller that factors many matrices and drops each factorisation before the next (lstsq) saves
+ * the allocation. The returned object then reads `storage`, so it is valid only until `storage`
+ * is written again. `rhs`, when given (length n), is overwritten by Qᵀ·rhs: it rides along as
+ * one more (unpivoted, unscaled) column, each reflection applied to it with the same arithmetic
+ * as {@link QrFactorization.qtMul}, so the result is the same to the last bit.
+ */
+export function tryQr(phi: DesignMatrix, options: QrOptions = {}, storage?: Float64Array, rhs?: Float64Array): QrFactorization | undefined {
   const n = phi.rows;
   const p = phi.cols;
   if (phi.data.length !== n * p) throw new RangeError(`qr: data length ${phi.data.length}, expected ${n}×${p}`);
   const tolerance = options.rankTolerance ?? Math.max(n, p) * EPSILON;
   if (!(tolerance >= 0)) throw new RangeError(`qr: rankTolerance must be ≥ 0, got ${tolerance}`);
+  if (storage !== undefined && storage.length < n * (p + 1)) throw new RangeError(`qr: storage length ${storage.length}, expected at least ${n}×${p + 1}`);
+  if (rhs !== undefined && rhs.length !== n) throw new RangeError(`qr: rhs length ${rhs.length}, expected ${n}`);
   const src = phi.data;
-  const a = new Float64Array(n * p);
+  const extra = rhs === undefined ? 0 : 1;
+  const a = storage ?? new Float64Array(n * (p + extra));
   const scale = new Float64Array(p);
   const zero = new Uint8Array(p);
-  // One row-major pass: transpose into column-major order and accumulate squared column norms.
-  const ss = new Float64Array(p);
-  for (let i = 0; i < n; i++) {
-    const o = i * p;
-    for (let j = 0; j < p; j++) {
-      const v = src[o + j];
-      a[j * n + i] = v;
-      ss[j] += v * v;
-    }
-  }
+  if (normScratch.length < 2 * p) normScratch = new Float64Array(Math.max(2 * p, 2 * normScratch.length));
+  // Column by column: copy into column-major order while summing squares (a register
+  // accumulator per column), then scale the contiguous column (Φ_s = Φ·D).
   for (let j = 0; j < p; j++) {
-    let norm = Math.sqrt(ss[j]);
     const off = j * n;
+    let ss = 0;
+    for (let i = 0; i < n; i++) {
+      const v = src[i * p + j];
+      a[off + i] = v;
+      ss += v * v;
+    }
+    let norm = Math.sqrt(ss);
     if (!(norm > 1e-150 && norm < 1e150)) {
       // NaN/Infinity, zero, or a sum of squares at risk of over- or underflow: rescale by the
       // largest magnitude first.
@@ -425,15 +466,29 @@ export function tryQr(phi: DesignMatrix, options: QrOptions = {}): QrFactorizati
   }
   const tau = new Float64Array(p);
   const perm = new Int32Array(p);
-  factorInPlace(a, n, p, tau, perm, zero);
+  if (rhs !== undefined) a.set(rhs, n * p);
+  factorInPlace(a, n, p, extra, tau, perm, zero, normScratch);
+  if (rhs !== undefined) rhs.set(a.subarray(n * p, n * (p + 1)));
   return new QrFactorization(n, p, a, tau, scale, perm, tolerance, zero);
 }
 
-/** Householder QR with column pivoting of the column-major n×p `a`, in place. */
-function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array, perm: Int32Array, zero: Uint8Array): void {
-  const norms = new Float64Array(2 * p);
+/**
+ * Contiguous copy of the current Householder vector v_k (below the diagonal), shared by every
+ * factorisation: the column updates read v from this small buffer instead of from the strided
+ * factor storage. Grown on demand; only used inside one synchronous `factorInPlace` call.
+ */
+let reflectorScratch = new Float64Array(256);
+
+/**
+ * Householder QR with column pivoting of the column-major n×p `a`, in place; `extra` (0 or 1)
+ * more columns after the p are transformed by the reflections but never pivoted. The update of the
+ * trailing columns handles four columns per pass over v_k; each column's sums are formed in the
+ * same order as one column at a time, so the factors do not depend on the pairing.
+ */
+function factorInPlace(a: Float64Array, n: number, p: number, extra: number, tau: Float64Array, perm: Int32Array, zero: Uint8Array, norms: Float64Array): void {
+  const pe = p + extra; // columns the reflections are applied to
   const vn1 = norms.subarray(0, p); // partial column norms, downdated
-  const vn2 = norms.subarray(p); // norms at last exact computation
+  const vn2 = norms.subarray(p, 2 * p); // norms at last exact computation
   for (let j = 0; j < p; j++) {
     // Scaled columns have unit norm (to rounding): start every non-zero column at exactly 1,
     // so the first pivot is the first non-zero column.
@@ -441,6 +496,8 @@ function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array,
     vn1[j] = zero[j] === 1 ? 0 : 1;
     vn2[j] = vn1[j];
   }
+  if (reflectorScratch.length < n) reflectorScratch = new Float64Array(Math.max(n, 2 * reflectorScratch.length));
+  const v = reflectorScratch;
   const tol3z = Math.sqrt(EPSILON);
   const m = Math.min(n, p);
   for (let k = 0; k < m; k++) {
@@ -467,28 +524,94 @@ function factorInPlace(a: Float64Array, n: number, p: number, tau: Float64Array,
       vn2[pvt] = vn2[k];
     }
     // Householder vector for a[k:n, k]: β = −sign(α)·‖x‖, τ = (β − α)/β, v = x/(α − β).
+    // v (without its leading 1) lives in v[0 … len) while the trailing columns are updated.
     const ok = k * n;
+    const below = ok + k + 1; // first entry under the diagonal
+    const len = n - k - 1;
     const alpha = a[ok + k];
     let xs = 0;
-    for (let i = k + 1; i < n; i++) xs += a[ok + i] * a[ok + i];
+    for (let i = 0; i < len; i++) {
+      const x = a[below + i];
+      v[i] = x;
+      xs += x * x;
+    }
     if (xs === 0) {
       tau[k] = 0;
     } else {
       const norm = Math.sqrt(alpha * alpha + xs);
       const beta = alpha >= 0 ? -norm : norm;
-      tau[k] = (beta - alpha) / beta;
+      const t = (beta - alpha) / beta;
+      tau[k] = t;
       const inv = 1 / (alpha - beta);
-      for (let i = k + 1; i < n; i++) a[ok + i] *= inv;
+      for (let i = 0; i < len; i++) {
+        const x = v[i] * inv;
+        v[i] = x;
+        a[below + i] = x;
+      }
       a[ok + k] = beta;
-      // Apply H_k to the remaining columns.
-      const t = tau[k];
-      for (let j = k + 1; j < p; j++) {
-        const oj = j * n;
-        let s = a[oj + k];
-        for (let i = k + 1; i < n; i++) s += a[ok + i] * a[oj + i];
-        s *= t;
-        a[oj + k] -= s;
-        for (let i = k + 1; i < n; i++) a[oj + i] -= s * a[ok + i];
+      // Apply H_k to the remaining columns, four at a time (four independent sums per pass
+      // over v), then two, then one: s_j = τ·(a_kj + vᵀa[k+1:n, j]), a[k:n, j] −= s_j·(1, v).
+      let j = k + 1;
+      for (; j + 3 < pe; j += 4) {
+        const o1 = j * n + k + 1;
+        const o2 = o1 + n;
+        const o3 = o2 + n;
+        const o4 = o3 + n;
+        let s1 = a[o1 - 1];
+        let s2 = a[o2 - 1];
+        let s3 = a[o3 - 1];
+        let s4 = a[o4 - 1];
+        for (let i = 0; i < len; i++) {
+          const vi = v[i];
+          s1 += vi * a[o1 + i];
+          s2 += vi * a[o2 + i];
+          s3 += vi * a[o3 + i];
+          s4 += vi * a[o4 + i];
+        }
+        s1 *= t;
+        s2 *= t;
+        s3 *= t;
+        s4 *= t;
+        a[o1 - 1] -= s1;
+        a[o2 - 1] -= s2;
+        a[o3 - 1] -= s3;
+        a[o4 - 1] -= s4;
+        for (let i = 0; i < len; i++) {
+          const vi = v[i];
+          a[o1 + i] -= s1 * vi;
+          a[o2 + i] -= s2 * vi;
+          a[o3 + i] -= s3 * vi;
+          a[o4 + i] -= s4 * vi;
+        }
+      }
+      if (j + 1 < pe) {
+        const o1 = j * n + k + 1;
+        const o2 = o1 + n;
+        let s1 = a[o1 - 1];
+        let s2 = a[o2 - 1];
+        for (let i = 0; i < len; i++) {
+          const vi = v[i];
+          s1 += vi * a[o1 + i];
+          s2 += vi * a[o2 + i];
+        }
+        s1 *= t;
+        s2 *= t;
+        a[o1 - 1] -= s1;
+        a[o2 - 1] -= s2;
+        for (let i = 0; i < len; i++) {
+          const vi = v[i];
+          a[o1 + i] -= s1 * vi;
+          a[o2 + i] -= s2 * vi;
+        }
+        j += 2;
+      }
+      if (j < pe) {
+        const o1 = j * n + k + 1;
+        let s1 = a[o1 - 1];
+        for (let i = 0; i < len; i++) s1 += v[i] * a[o1 + i];
+        s1 *= t;
+        a[o1 - 1] -= s1;
+        for (let i = 0; i < len; i++) a[o1 + i] -= s1 * v[i];
       }
     }
     // Downdate partial norms; recompute when cancellation makes the downdate unreliable.

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import { fromRows, type DesignMatrix } from '../../src/linalg/matrix.js';
-import { qr } from '../../src/linalg/qr.js';
+import { qr, tryQr } from '../../src/linalg/qr.js';
+import { lstsq } from '../../src/linalg/lstsq.js';
 import { createRng } from '../../src/linalg/random.js';
 import { readPolynomialDat } from './nist.js';
 
@@ -85,5 +86,36 @@ describe('qr(phi)', () => {
     const rows = [[1, 2, 2 + 2e-9], [1, 3, 3], [1, 5, 5], [1, 7, 7 - 7e-9]];
     expect(qr(fromRows(rows)).rank).toBe(3);
     expect(qr(fromRows(rows), { rankTolerance: 1e-6 }).rank).toBe(2);
+  });
+
+  it('tryQr with storage and rhs: the same factors as qr(phi), and rhs becomes Qᵀy bit for bit', () => {
+    // Invariant: the right-hand side carried through the factorisation gets exactly the
+    // arithmetic of qtMul, and borrowed storage changes nothing but where the factors live.
+    for (const [seed, n, p] of [[4, 30, 1], [5, 40, 6], [6, 9, 9], [7, 5, 8]]) {
+      const phi = randomMatrix(seed, n, p);
+      const y = Float64Array.from({ length: n }, (_, i) => Math.sin(i + seed));
+      const fresh = qr(phi);
+      const rhs = Float64Array.from(y);
+      const storage = new Float64Array(n * (p + 1) + 3).fill(7);
+      const lent = tryQr(phi, {}, storage, rhs)!;
+      expect(Array.from(rhs)).toEqual(Array.from(fresh.qtMul(y)));
+      expect(Array.from(lent.diagonal())).toEqual(Array.from(fresh.diagonal()));
+      expect(Array.from(lent.perm)).toEqual(Array.from(fresh.perm));
+      expect(Array.from(lent.solve(y))).toEqual(Array.from(fresh.solve(y)));
+      expect(Array.from(lent.xtxInv())).toEqual(Array.from(fresh.xtxInv()));
+    }
+  });
+
+  it('lstsq gives the same fit before and after fits of other shapes (its shared factor storage)', () => {
+    const phi = randomMatrix(8, 25, 4);
+    const y = Float64Array.from({ length: 25 }, (_, i) => i % 3);
+    const names = ['a', 'b', 'c', 'd'];
+    const first = lstsq(phi, y, names);
+    lstsq(randomMatrix(9, 60, 9), new Float64Array(60).fill(1), Array.from({ length: 9 }, (_, j) => `x${j}`));
+    lstsq(randomMatrix(10, 3, 2), Float64Array.of(1, 2, 4), ['u', 'v']);
+    const again = lstsq(phi, y, names);
+    expect(Array.from(again.theta)).toEqual(Array.from(first.theta));
+    expect(Array.from(again.cov)).toEqual(Array.from(first.cov));
+    expect(Array.from(again.residuals)).toEqual(Array.from(first.residuals));
   });
 });
