@@ -33,8 +33,8 @@
  *
  * Prediction. Inputs are linearly interpolated within a sampling interval (the same assumption
  * the trapezoid rule makes). `oneStep` integrates the fitted ODE from the observed x_{t−1} over
- * one interval by classical RK4 (rk4.ts) with `substeps` equal steps; for the cumulative state
- * the prediction of y_t is X̂_t − X_{t−1}. `simulate` repeats this from the last observation,
+ * one interval by classical RK4 (rk4.ts, its polynomial-plus-forcing form) with `substeps`
+ * equal steps; for the cumulative state the prediction of y_t is X̂_t − X_{t−1}. `simulate` repeats this from the last observation,
  * adding each step's shock to the one-step prediction on the scoring scale.
  *
  * Scoring scale: 'none' (z = y) or 'log' (z = ln y, for strictly positive series); the
@@ -50,7 +50,7 @@ import { sparseRegression } from '../linalg/sparse.js';
 import { odeDerived, odeSummary } from './ode-derived.js';
 import { equilibria } from './ode-roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
-import { rk4 } from './rk4.js';
+import { rk4Polynomial } from './rk4.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { deterministicNames, maxHarmonics } from './terms.js';
 import { isStrictlyPositive } from './transforms.js';
@@ -387,37 +387,71 @@ class OdeStructure implements Structure {
    */
   private substeps(theta: Float64Array, x: number, dt: number): number {
     let slope = 0;
-    this.spec.powers.forEach((p, k) => {
+    const powers = this.spec.powers;
+    for (let k = 0; k < powers.length; k++) {
+      const p = powers[k];
       if (p >= 1) slope += p * theta[k] * x ** (p - 1);
-    });
+    }
     const need = Math.ceil(Math.abs(slope) * dt);
     return Number.isFinite(need) ? Math.min(10_000, Math.max(this.spec.substeps, need)) : this.spec.substeps;
   }
 
   /**
-   * The right-hand side f(τ, x) over one sampling interval [τa, τa + dt], inputs linearly
-   * interpolated from ua (at τa) to ub (at τa + dt).
+   * An integrator of the fitted ODE over one sampling interval [τa, τa + dt] for a fixed θ:
+   * RK4 (rk4Polynomial) on f(τ, x) = Σ_p θ_p x^p + F(τ), with the inputs linearly interpolated
+   * from ua (at τa) to ub (at τa + dt) and the seasonal harmonics both gathered into the forcing
+   * F, formed once per half-step node. The harmonic part depends only on τa modulo the season
+   * (τ reduced as in harmonicFiller), so for the default number of steps it is computed once per
+   * phase of the season and reused for every interval that starts at that phase.
    */
-  private rhs(theta: Float64Array, tauA: number, dt: number, ua: ArrayLike<number>, ub: ArrayLike<number>): (tau: number, x: number) => number {
+  private integrator(theta: Float64Array, dt: number): (tauA: number, x0: number, ua: ArrayLike<number>, ub: ArrayLike<number>, steps: number) => number {
     const powers = this.spec.powers;
     const np = powers.length;
-    const ni = ua.length;
+    const ni = this.spec.inputs.length;
     const nh = this.harmonicNames.length;
-    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
-    const buf = new Float64Array(nh);
     const poly = [0, 0, 0, 0];
     for (let k = 0; k < np; k++) poly[powers[k]] = theta[k];
-    return (tau, x) => {
-      let f = poly[0] + x * (poly[1] + x * (poly[2] + x * poly[3]));
-      if (ni > 0) {
-        const s = (tau - tauA) / dt;
-        for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
+    const [c0, c1, c2, c3] = poly;
+    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
+    const season = this.spec.season ?? 1;
+    const values = new Float64Array(nh);
+    const byPhase = new Map<number, Float64Array>();
+    const cachedSteps = this.spec.substeps;
+    let forcing = new Float64Array(2 * cachedSteps + 1);
+    const harmonicPart = (phase: number, nodes: number, half: number): Float64Array => {
+      const sums = new Float64Array(nodes);
+      for (let j = 0; j < nodes; j++) {
+        harm(phase + j * half, values, 0);
+        let f = 0;
+        for (let k = 0; k < nh; k++) f += theta[np + ni + k] * values[k];
+        sums[j] = f;
       }
+      return sums;
+    };
+    return (tauA, x0, ua, ub, steps) => {
+      const nodes = 2 * steps + 1;
+      if (forcing.length < nodes) forcing = new Float64Array(nodes);
+      const half = dt / steps / 2;
       if (nh > 0) {
-        harm(tau, buf, 0);
-        for (let k = 0; k < nh; k++) f += theta[np + ni + k] * buf[k];
+        const phase = ((tauA % season) + season) % season;
+        let sums = steps === cachedSteps ? byPhase.get(phase) : undefined;
+        if (sums === undefined) {
+          sums = harmonicPart(phase, nodes, half);
+          if (steps === cachedSteps) byPhase.set(phase, sums);
+        }
+        forcing.set(sums);
+      } else {
+        forcing.fill(0, 0, nodes);
       }
-      return f;
+      if (ni > 0) {
+        for (let j = 0; j < nodes; j++) {
+          const s = (j * half) / dt;
+          let f = forcing[j];
+          for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
+          forcing[j] = f;
+        }
+      }
+      return rk4Polynomial(c0, c1, c2, c3, forcing, x0, dt, steps);
     };
   }
 
@@ -473,13 +507,14 @@ class OdeStructure implements Structure {
     const out = new Float64Array(Math.max(0, hi - from));
     const ua = new Float64Array(cols.length);
     const ub = new Float64Array(cols.length);
+    const step = this.integrator(theta, dt);
     for (let t = from; t < hi; t++) {
       for (let k = 0; k < cols.length; k++) {
         ua[k] = cols[k][t - 1];
         ub[k] = cols[k][t];
       }
       const tauA = this.tau(t - 1, dt, origin);
-      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, x[t - 1], dt, this.substeps(theta, x[t - 1], dt));
+      const next = step(tauA, x[t - 1], ua, ub, this.substeps(theta, x[t - 1], dt));
       const yhat = this.spec.state === 'level' ? next : next - x[t - 1];
       out[t - from] = this.spec.transform === 'log' ? Math.log(yhat) : yhat;
     }
@@ -508,10 +543,11 @@ class OdeStructure implements Structure {
     for (let k = 0; k < cols.length; k++) ua[k] = cols[k][n - 1];
     let state = x[n - 1];
     const origin = series.before?.count ?? 0;
+    const step = this.integrator(theta, dt);
     for (let j = 0; j < h; j++) {
       for (let k = 0; k < cols.length; k++) ub[k] = future[idx[k]][j];
       const tauA = this.tau(n - 1 + j, dt, origin);
-      const next = rk4(this.rhs(theta, tauA, dt, ua, ub), tauA, state, dt, this.substeps(theta, state, dt));
+      const next = step(tauA, state, ua, ub, this.substeps(theta, state, dt));
       let yhat = this.spec.state === 'level' ? next : next - state;
       if (shocks) yhat = this.spec.transform === 'log' ? Math.exp(Math.log(yhat) + shocks[j]) : yhat + shocks[j];
       out[j] = yhat;

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { rk4 } from '../../src/models/rk4.js';
+import { rk4, rk4Polynomial } from '../../src/models/rk4.js';
 
 describe('rk4(f, τ0, x0, span, substeps)', () => {
   it('integrates dx/dτ = r·x to e^{rτ} (analytic solution of the linear ODE)', () => {
@@ -36,5 +36,27 @@ describe('rk4(f, τ0, x0, span, substeps)', () => {
   it('refuses a non-integer number of substeps', () => {
     expect(() => rk4((_t, v) => v, 0, 1, 1, 0)).toThrow(RangeError);
     expect(() => rk4((_t, v) => v, 0, 1, 1, 1.5)).toThrow(RangeError);
+  });
+});
+
+describe('rk4Polynomial(c0, c1, c2, c3, forcing, x0, span, substeps)', () => {
+  it('integrates dx/dτ = 0.1·x with zero forcing to e^{0.1} within 1e-11 (the doc example; local error (λh)⁵/120 per step)', () => {
+    expect(Math.abs(rk4Polynomial(0, 0.1, 0, 0, new Float64Array(21), 1, 1, 10) - Math.exp(0.1))).toBeLessThan(1e-11);
+  });
+
+  it('takes the same steps as rk4 with the same right-hand side written as a function', () => {
+    // f(τ, x) = 0.3 − 0.2x + 0.05x² − 0.01x³ + sin(τ), the forcing sampled at the half-step nodes.
+    const [c0, c1, c2, c3] = [0.3, -0.2, 0.05, -0.01];
+    for (const [tau0, x0, span, m] of [[0, 1, 1, 8], [2.5, -0.7, 3, 5], [10, 2, 0.5, 1]]) {
+      const h = span / m;
+      const forcing = Float64Array.from({ length: 2 * m + 1 }, (_, j) => Math.sin(tau0 + (j * h) / 2));
+      const viaFunction = rk4((t, x) => c0 + x * (c1 + x * (c2 + x * c3)) + Math.sin(t), tau0, x0, span, m);
+      expect(Math.abs(rk4Polynomial(c0, c1, c2, c3, forcing, x0, span, m) - viaFunction)).toBeLessThan(1e-13);
+    }
+  });
+
+  it('returns a non-finite state once the cubic blows up, and refuses too few forcing nodes', () => {
+    expect(Number.isFinite(rk4Polynomial(0, 0, 0, 1, new Float64Array(11), 10, 5, 5))).toBe(false);
+    expect(() => rk4Polynomial(0, 1, 0, 0, new Float64Array(4), 1, 1, 2)).toThrow(RangeError);
   });
 });
