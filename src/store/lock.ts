@@ -2,8 +2,10 @@
  * An advisory lock beside a model file, so two updates (say a scheduled job and a person at a
  * terminal) never read-modify-write the same `model.json` at once.
  *
- * The lock is the file `<model>.lock`, created exclusively (open with O_CREAT|O_EXCL, flag `wx`):
- * of two processes racing, exactly one creation succeeds. It holds one JSON object
+ * The lock is the file `<model>.lock`, created exclusively with its content in place (a private
+ * file hard-linked to the lock name, which fails when the name exists; where hard links are not
+ * available, open with O_CREAT|O_EXCL, flag `wx`, then write): of two processes racing, exactly
+ * one creation succeeds, and the other reads a complete holder. It holds one JSON object
  * `{ pid, host, started, command }` naming the holder, which is what a refused process reports.
  *
  * Stale-lock rule (a lock left behind by a process that died without releasing it):
@@ -126,7 +128,37 @@ interface HeldLock {
   mtimeMs: number;
 }
 
+/**
+ * Creates the lock with its content in one step where the file system allows it: the content is
+ * written to a private file first and hard-linked to the lock name (link fails with EEXIST when
+ * the lock exists), so no other process ever reads a lock without its holder. Where hard links
+ * are not supported, falls back to an exclusive create followed by the write.
+ */
 async function createExclusive(lockPath: string, content: string): Promise<boolean> {
+  takeoverCounter += 1;
+  const staged = `${lockPath}.new.${process.pid}.${takeoverCounter}`;
+  let linked: boolean | null = null;
+  try {
+    await fsp.writeFile(staged, content, { flag: 'wx', mode: 0o644 });
+    try {
+      await fsp.link(staged, lockPath);
+      linked = true;
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (code === 'EEXIST') linked = false;
+      else if (code !== 'EPERM' && code !== 'ENOTSUP' && code !== 'ENOSYS' && code !== 'EOPNOTSUPP') throw ioError(lockPath, e, 'could not create the lock file');
+    }
+  } catch (e) {
+    if (e instanceof StoreError) throw e;
+    throw ioError(lockPath, e, 'could not create the lock file');
+  } finally {
+    await fsp.rm(staged, { force: true }).catch(() => undefined);
+  }
+  if (linked !== null) return linked;
+  return createExclusiveOpen(lockPath, content);
+}
+
+async function createExclusiveOpen(lockPath: string, content: string): Promise<boolean> {
   let handle: fsp.FileHandle | undefined;
   try {
     handle = await fsp.open(lockPath, 'wx', 0o644);

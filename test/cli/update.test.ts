@@ -7,25 +7,13 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { formatTime } from '../../src/data/calendar.js';
-import type { Series } from '../../src/data/series.js';
 import { acquireLock } from '../../src/store/lock.js';
 import { parseModel, serializeModel } from '../../src/store/model-file.js';
 import { bodyOn, simulateArx } from '../forecast/update-fixtures.js';
 import { ensureBuilt, runCli } from './run-cli.js';
+import { csvRows } from './update-data.js';
 
 let work: string;
-
-/** Rows [from, to) of a simulated series as a CSV file (month, sales, price). */
-export function csvRows(series: Series, from: number, to: number, edit?: (row: number, cells: string[]) => void): string {
-  const lines = ['month,sales,price'];
-  for (let t = from; t < to; t++) {
-    const cells = [formatTime(series.time[t], series.frequency), String(series.values[t]), String(series.inputs[0].values[t])];
-    edit?.(t, cells);
-    lines.push(cells.join(','));
-  }
-  return `${lines.join('\n')}\n`;
-}
 
 beforeAll(() => {
   ensureBuilt();
