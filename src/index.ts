@@ -22,10 +22,25 @@ export { search, type SearchOptions, type SearchResult } from './select/search.j
 export { forecastSeries, type ForecastOptions, type ForecastRun } from './forecast/pipeline.js';
 export { forecastWithIntervals } from './forecast/intervals.js';
 export { Learner } from './forecast/online.js';
-export { createDriftState, stepDrift } from './forecast/drift.js';
+export { createDriftState, stepDrift, type DriftAlarm, type DriftState } from './forecast/drift.js';
+export {
+  update,
+  ADAPT,
+  DRIFT_POLICIES,
+  type DriftPolicy,
+  type UpdateOptions,
+  type UpdateResult,
+  type UpdateStep,
+  type UpdateForecast,
+  type PolicyOutcome,
+  type Revision,
+} from './forecast/update.js';
 export { backtest } from './evaluate/backtest.js';
 export * as metrics from './evaluate/metrics.js';
 export { BASELINES } from './evaluate/baselines.js';
 
 export { readModelFile, writeModelFile, parseModel, serializeModel, type ModelBody } from './store/model-file.js';
 export { modelBody, assertedFromBody, windowSeries } from './store/asserted.js';
+export { withLock, acquireLock, type LockHandle } from './store/lock.js';
+export { runUpdate, parseUpdateOptions, type CliUpdateOptions, type UpdateRun } from './cli/update.js';
+export { updateSummary, updateText, updateTable } from './report/update-report.js';
