@@ -33,7 +33,8 @@ export class ExitRequest extends Error {
   }
 }
 
-export function buildProgram(io: CliIO): Command {
+/** The program with the commands `argv` needs (see commands.ts: only the one it names). */
+export async function buildProgram(io: CliIO, argv: string[] = []): Promise<Command> {
   const program = new Command();
   program
     .name('certa')
@@ -42,7 +43,7 @@ export function buildProgram(io: CliIO): Command {
         'Start with:  certa inspect <file>   (what certa reads in your file)',
     )
     .option('--debug', 'print stack traces of internal errors');
-  registerCommands(program, io);
+  await registerCommands(program, io, argv);
   configureTree(program, io);
   return program;
 }
@@ -62,9 +63,10 @@ function configureTree(command: Command, io: CliIO): void {
 
 /** Runs the CLI and resolves to the exit code; never calls process.exit. */
 export async function main(argv: string[], io: CliIO = processIO): Promise<number> {
-  const program = buildProgram(io);
   const debug = argv.includes('--debug');
+  let program: Command | undefined;
   try {
+    program = await buildProgram(io, argv);
     await program.parseAsync(argv);
     return 0;
   } catch (e) {
@@ -74,7 +76,7 @@ export async function main(argv: string[], io: CliIO = processIO): Promise<numbe
       if (e.code === 'commander.helpDisplayed' || e.code === 'commander.version' || e.code === 'commander.help') return 0;
       if (e.code === 'commander.executeSubCommandAsync') return e.exitCode;
       io.err(`certa: ${e.message.replace(/^error: /, '').split('\n')[0]}\n`);
-      io.err(`hint: run certa ${commandPath(program, argv)}--help for usage\n`);
+      io.err(`hint: run certa ${program ? commandPath(program, argv) : ''}--help for usage\n`);
       return 2;
     }
     if (isCertaError(e)) {
