@@ -183,9 +183,15 @@ export function odeStructure(options: OdeOptions): Structure {
  * Seasonal harmonics at a continuous time τ (base periods): sin(2πkτ/s), cos(2πkτ/s) for
  * k = 1…K in the column order and naming of terms.ts (the sine of k = s/2 left out, since it
  * vanishes at every sample). RK4 evaluates them between samples, so they are computed from τ
- * reduced modulo s rather than tabulated at whole periods.
+ * reduced modulo s rather than tabulated at whole periods. The values depend only on the reduced
+ * τ, which repeats from season to season, so each filler (one per K and s, shared by every
+ * structure) remembers the values it computed for up to HARMONIC_MEMORY reduced times and copies
+ * them on the next request: the same numbers, without the sines and cosines.
  */
 function harmonicFiller(K: number, season: number | null): (tau: number, out: Float64Array, offset: number) => void {
+  const key = `${K}:${season}`;
+  const known = harmonicFillers.get(key);
+  if (known !== undefined) return known;
   const omega: number[] = [];
   const isSin: boolean[] = [];
   if (season !== null) {
@@ -200,11 +206,25 @@ function harmonicFiller(K: number, season: number | null): (tau: number, out: Fl
     }
   }
   const s = season ?? 1;
-  return (tau, out, offset) => {
+  const count = omega.length;
+  const memory = new Map<number, Float64Array>();
+  const filler = (tau: number, out: Float64Array, offset: number): void => {
     const tm = ((tau % s) + s) % s;
-    for (let c = 0; c < omega.length; c++) out[offset + c] = isSin[c] ? Math.sin(omega[c] * tm) : Math.cos(omega[c] * tm);
+    let values = memory.get(tm);
+    if (values === undefined) {
+      values = new Float64Array(count);
+      for (let c = 0; c < count; c++) values[c] = isSin[c] ? Math.sin(omega[c] * tm) : Math.cos(omega[c] * tm);
+      if (memory.size < HARMONIC_MEMORY) memory.set(tm, values);
+    }
+    for (let c = 0; c < count; c++) out[offset + c] = values[c];
   };
+  harmonicFillers.set(key, filler);
+  return filler;
 }
+
+/** Reduced times whose harmonic values one filler keeps (a bound on its memory). */
+const HARMONIC_MEMORY = 4096;
+const harmonicFillers = new Map<string, (tau: number, out: Float64Array, offset: number) => void>();
 
 /** Name of the state symbol in terms and equations. */
 export function stateSymbol(state: OdeState): string {
