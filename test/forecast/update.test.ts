@@ -6,6 +6,10 @@ import { describe, expect, it } from 'vitest';
 import { DataError, UsageError } from '../../src/data/errors.js';
 import { lstsq } from '../../src/linalg/lstsq.js';
 import { ArxStructure } from '../../src/models/arx.js';
+import { odeStructure } from '../../src/models/ode.js';
+import { sliceSeries } from '../../src/data/series.js';
+import { Learner } from '../../src/forecast/online.js';
+import { modelBody } from '../../src/store/asserted.js';
 import { ADAPT, update } from '../../src/forecast/update.js';
 import { parseModel, serializeModel, type ModelBody } from '../../src/store/model-file.js';
 import { fingerprintSeries } from '../../src/store/fingerprint.js';
@@ -36,6 +40,25 @@ describe('update: continuation equals a batch fit', () => {
     expect(body.log).toHaveLength(50);
     // the window series continues the trend: positions in the window plus `before` are absolute times
     expect(windowSeries(body).before?.count).toBe(120);
+  });
+
+  it('a cumulative-state ODE (Bass-type, one harmonic) updated row by row through the file (window 30) ends at the batch fit on all 150 points (to 1e-8)', () => {
+    // per-period adoptions of a seeded series: positive values with a yearly pattern
+    const { series: raw } = simulateArx(150, 15);
+    const series = { ...raw, inputs: [], values: raw.values.map((v) => Math.abs(v) + 1) };
+    const s = odeStructure({ state: 'cumulative', powers: [0, 1, 2], harmonics: 1, season: 12, initialCumulative: 40 });
+    const head = sliceSeries(series, 0, 100);
+    const est = s.estimate(head, 1, 100);
+    const learner = Learner.start(s, est.active, head, 1, 100, { lambda: 1 });
+    let body = roundTrip(modelBody({ structure: s, learner, se: est.se }, head, { criterion: 'aicc', criterionValue: 0, now: NOW, windowCapacity: 30 }));
+    for (let k = 100; k < 150; k++) body = roundTrip(update(body, rowsOf(series, k, k + 1), { now: NOW, skipForecast: k < 149 }).body);
+    const reg = s.regression(series, 1, 150);
+    const batch = lstsq(reg.phi, reg.y, s.terms).theta;
+    for (let j = 0; j < batch.length; j++) expect(Math.abs(body.theta[j] - batch[j])).toBeLessThan(1e-8 * Math.max(1, Math.abs(batch[j])));
+    let before = 0;
+    for (let t = 0; t < 120; t++) before += series.values[t];
+    expect(body.state.before).toBe(120);
+    expect(Math.abs(Number(body.state.beforeSum) - before)).toBeLessThan(1e-9 * before);
   });
 
   it('the same 50 rows in one file give the same θ as 50 single-row updates (to 1e-12)', () => {
