@@ -70,7 +70,7 @@ import { extendFingerprint, type DataRow } from '../store/fingerprint.js';
 import type { ModelBody, UpdateEntry } from '../store/model-file.js';
 import { extendWindow } from '../store/window.js';
 import { createDriftState, stepDrift, type DriftAlarm, type DriftState } from './drift.js';
-import { futureByPolicy, type FutureInputs } from './future.js';
+import { defaultInputPolicy, futureByPolicy, type FutureInputs } from './future.js';
 import { forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
 import { Learner } from './online.js';
 import { defaultHorizon } from './pipeline.js';
@@ -564,7 +564,7 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
   const times = new Float64Array(horizon);
   for (let j = 0; j < horizon; j++) times[j] = stepTime(series.time[n - 1], f, j + 1);
   const inputs =
-    series.inputs.length === 0 ? { values: [], source: 'no inputs' } : options.future ? options.future(series, horizon, Array.from(times)) : futureByPolicy(series, horizon, 'hold');
+    series.inputs.length === 0 ? { values: [], source: 'no inputs' } : options.future ? options.future(series, horizon, Array.from(times)) : futureByPolicy(series, horizon, defaultInputPolicy(series));
   const method = options.intervals?.method ?? (isLinearStructure(structure) ? 'analytic' : 'bootstrap');
   const residuals = method === 'bootstrap' ? windowResiduals(structure, learner.theta, series) : new Float64Array(0);
   const estimate = { theta: learner.theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };

@@ -152,7 +152,7 @@ export function updateText(result: UpdateResult, summary: Record<string, unknown
   }
   if (result.forecast) {
     lines.push('');
-    lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, result.forecast.inputs.source));
+    lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, `point from the asserted equation; ${result.forecast.inputs.source}`));
   }
   const warnings = summary.warnings as string[];
   if (warnings.length > 0) {
