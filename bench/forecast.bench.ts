@@ -5,7 +5,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadSeries } from '../src/data/load.js';
 import { forecastSeries } from '../src/forecast/pipeline.js';
@@ -49,7 +49,7 @@ function cli(extra: string[]): number {
 const cliCharts = cli([]);
 const cliNoCharts = cli(['--no-charts']);
 
-console.log(`demo: 120 monthly points, 2 inputs, ${candidates} candidates searched`);
+console.log(`demo: 120 monthly points, 2 inputs, ${candidates} candidates searched (load average ${loadavg()[0].toFixed(1)})`);
 console.log(`library, no charts     ${median(lib).toFixed(0).padStart(6)} ms (median of ${reps})`);
 console.log(`library, with charts   ${median(libCharts).toFixed(0).padStart(6)} ms`);
 console.log(`CLI, --no-charts       ${cliNoCharts.toFixed(0).padStart(6)} ms (wall, Node start-up included)`);

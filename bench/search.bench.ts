@@ -5,6 +5,7 @@
  * Target on the 2-core reference machine: under 25 ms per series on one core.
  * Run: `npm run bench -- search` (or `npx tsx bench/search.bench.ts`).
  */
+import { loadavg } from 'node:os';
 import type { Series } from '../src/data/series.js';
 import { createRng } from '../src/linalg/random.js';
 import { familyNames } from '../src/models/registry.js';
@@ -51,4 +52,4 @@ for (const [label, options] of cases) {
   const m = measure(series, options);
   console.log(label.padEnd(40), String(m.candidates).padStart(10), String(m.fitted).padStart(7), m.ms.toFixed(1).padStart(11), ((m.ms * 1000) / m.candidates).toFixed(0).padStart(14));
 }
-console.log('target: default search under 25 ms per series');
+console.log(`target: default search under 25 ms per series (load average ${loadavg()[0].toFixed(1)} at the end)`);
