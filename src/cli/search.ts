@@ -14,6 +14,7 @@ import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { search, type CandidateResult, type SearchOptions, type SearchResult } from '../select/search.js';
 import { candidatesCsv } from '../report/candidates.js';
+import { criterionLabel } from '../select/criteria.js';
 import { writeFileAtomic } from '../store/atomic.js';
 import { writeModelFile, MODEL_FORMAT, MODEL_VERSION } from '../store/model-file.js';
 import { modelBody } from '../store/asserted.js';
@@ -205,12 +206,11 @@ function fixed(v: number | null, places: number): string {
   return v === null ? '—' : v.toFixed(places);
 }
 
-const CRITERION_LABEL: Record<string, string> = { aicc: 'AICc', aic: 'AIC', bic: 'BIC' };
 
 export function renderText(doc: SearchDocument): string {
   const out: string[] = [];
   const s = doc.series;
-  const crit = CRITERION_LABEL[doc.criterion] ?? doc.criterion;
+  const crit = criterionLabel(doc.criterion);
   out.push(`series "${s.name}" (${s.frequency}, ${s.length} points${s.inputs.length > 0 ? `; inputs ${s.inputs.join(', ')}` : ''})`);
   out.push(`sample ${doc.sample.start} to ${doc.sample.end}: ${doc.sample.n} one-step errors, the same for every candidate`);
   out.push(`${doc.candidates.fitted} of ${doc.candidates.total} candidates fitted${doc.candidates.failed > 0 ? ` (${doc.candidates.failed} could not be: reasons in candidates.csv)` : ''}`);

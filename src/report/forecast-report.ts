@@ -8,6 +8,7 @@ import type { ForecastPaths } from '../forecast/intervals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
 import { forward } from '../models/transforms.js';
 import { FORECAST_CAUTION } from './cautions.js';
+import { criterionLabel } from '../select/criteria.js';
 import { candidatesCsv } from './candidates.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
@@ -166,6 +167,7 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
     title: `${title}: history and one-step fitted values`,
     subtitle: asserted.structure.label,
     frequency: f,
+    valueLabel: series.name,
     time: series.time,
     actual: series.values,
     fitted,
@@ -176,6 +178,7 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
     title: `${title}: forecast, ${run.horizon} periods`,
     subtitle: `${asserted.structure.label}; ${run.forecast.inputs.source}`,
     frequency: f,
+    valueLabel: series.name,
     history: { time: series.time.subarray(n - show), values: series.values.subarray(n - show) },
     forecast: {
       time: run.forecast.times,
@@ -190,6 +193,7 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
       title: `${title}: holdout, actual against forecasts`,
       subtitle: `trained to ${formatTime(series.time[ev.nTrain - 1], f)}; rolling forecasts learn with λ = ${run.forgetting}`,
       frequency: f,
+      valueLabel: series.name,
       context: { time: series.time.subarray(ev.nTrain - ctxLen, ev.nTrain), values: series.values.subarray(ev.nTrain - ctxLen, ev.nTrain) },
       time: ev.times,
       actual: ev.actual,
@@ -202,8 +206,8 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   }
   out['ranking.png'] = rankingChart({
     title: `${title}: candidate structures`,
-    subtitle: `Δ${run.search.criterion.toUpperCase()} from the best; ${run.search.fitted} fitted, ${run.search.failed} failed`,
-    criterion: run.search.criterion === 'aicc' ? 'AICc' : run.search.criterion.toUpperCase(),
+    subtitle: `Δ${criterionLabel(run.search.criterion)} from the best; ${run.search.fitted} fitted, ${run.search.failed} failed`,
+    criterion: criterionLabel(run.search.criterion),
     candidates: run.search.ranking.filter((c) => c.status === 'fitted').map((c) => ({ name: c.label, delta: c.delta })),
   });
   const z = forward(asserted.structure.transform, series.values);
@@ -244,7 +248,7 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   lines.push(`  ${asserted.equation}`);
   for (const d of asserted.derived) lines.push(`  ${d.name}: ${typeof d.value === 'number' ? fmt(d.value) : String(d.value)}${d.unit ? ` ${d.unit}` : ''}${d.note ? `  (${d.note})` : ''}`);
   lines.push('');
-  lines.push(`Candidates: ${search.fitted} fitted, ${search.failed} could not be fitted; ranked by ${search.criterion.toUpperCase()} on ${search.sample.start} to ${search.sample.end} (n = ${search.sample.n})`);
+  lines.push(`Candidates: ${search.fitted} fitted, ${search.failed} could not be fitted; ranked by ${criterionLabel(search.criterion)} on ${search.sample.start} to ${search.sample.end} (n = ${search.sample.n})`);
   const top = search.ranking.filter((c) => c.status === 'fitted').slice(0, 5);
   lines.push(pad(['rank', 'Δ', 'weight', 'structure'], [4, 8, 7, 0]));
   for (const c of top) lines.push(pad([String(c.rank), fmt(c.delta), c.weight.toFixed(3), c.label], [4, 8, 7, 0]));

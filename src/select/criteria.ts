@@ -92,3 +92,8 @@ export function akaikeWeights(values: number[]): number[] {
   for (let i = 0; i < m; i++) w[i] /= total;
   return w;
 }
+
+/** How a criterion is written for people: AIC, AICc, BIC. */
+export function criterionLabel(c: Criterion | string): string {
+  return ({ aic: 'AIC', aicc: 'AICc', bic: 'BIC' } as Record<string, string>)[c] ?? c;
+}
