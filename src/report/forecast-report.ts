@@ -272,6 +272,13 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   }
   lines.push('');
   lines.push(...forecastTableLines(f, run.forecast.times, run.forecast.paths, `${pointSource(run)}; ${run.forecast.inputs.source}`));
+  lines.push(...footerLines(summary));
+  return `${lines.join('\n')}\n`;
+}
+
+/** The end of a terminal summary: warnings, where the files went, and the caution. */
+export function footerLines(summary: Record<string, unknown>): string[] {
+  const lines: string[] = [];
   const warnings = summary.warnings as string[];
   if (warnings.length > 0) {
     lines.push('');
@@ -284,7 +291,7 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   }
   lines.push('');
   lines.push(FORECAST_CAUTION);
-  return `${lines.join('\n')}\n`;
+  return lines;
 }
 
 /** The forecast table of the terminal summary: a heading line, then time, point and bands per step. */

@@ -9,7 +9,7 @@ import type { DriftAlarm } from '../forecast/drift.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { forecastChart } from './charts.js';
-import { fmt, forecastRows, forecastTableLines } from './forecast-report.js';
+import { fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 
 /** `forecast.csv` after an update: window rows as `history`, then `forecast` rows. */
@@ -154,17 +154,6 @@ export function updateText(result: UpdateResult, summary: Record<string, unknown
     lines.push('');
     lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, `point from the asserted equation; ${result.forecast.inputs.source}`));
   }
-  const warnings = summary.warnings as string[];
-  if (warnings.length > 0) {
-    lines.push('');
-    for (const w of warnings) lines.push(`warning: ${w}`);
-  }
-  const files = summary.files as string[];
-  if (files.length > 0) {
-    lines.push('');
-    lines.push(`Wrote ${files.join(', ')} to ${String(summary.outDir)}`);
-  }
-  lines.push('');
-  lines.push(FORECAST_CAUTION);
+  lines.push(...footerLines(summary));
   return `${lines.join('\n')}\n`;
 }
