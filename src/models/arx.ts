@@ -23,7 +23,7 @@ import type { DesignMatrix } from '../linalg/matrix.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { deterministicFiller, deterministicNames, fillDeterministicRows, maxHarmonics, type DeterministicTerms } from './terms.js';
 import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
 
@@ -112,6 +112,42 @@ function difference(x: Float64Array, D: number): Float64Array {
   return w;
 }
 
+/**
+ * Transformed and differenced copies of a series' arrays (ln y, its differences, differenced
+ * inputs), shared by every structure reading the same array: a search fits hundreds of
+ * candidates on one series, and each would otherwise derive the same copies again. An entry
+ * keeps a copy of the values it was derived from and is dropped as soon as the array no longer
+ * holds them (arrays may be edited in place between calls), so a derived array is always the one
+ * its source would give now. Entries go with their source array (weak keys).
+ */
+const derivedArrays = new WeakMap<Float64Array, { copy: Float64Array; byKey: Map<string, Float64Array> }>();
+
+/** The derived arrays of x, emptied when x changed since they were made. */
+function derivedOf(x: Float64Array): Map<string, Float64Array> {
+  let entry = derivedArrays.get(x);
+  if (entry !== undefined) {
+    const c = entry.copy;
+    let same = c.length === x.length;
+    for (let i = 0; same && i < x.length; i++) same = c[i] === x[i];
+    if (!same) entry = undefined;
+  }
+  if (entry === undefined) {
+    entry = { copy: x.slice(), byKey: new Map() };
+    derivedArrays.set(x, entry);
+  }
+  return entry.byKey;
+}
+
+/** `make()` for source x under `key`, computed once while x holds the same values. */
+function derived(byKey: Map<string, Float64Array>, key: string, make: () => Float64Array): Float64Array {
+  let a = byKey.get(key);
+  if (a === undefined) {
+    a = make();
+    byKey.set(key, a);
+  }
+  return a;
+}
+
 function fmt(x: number): string {
   if (x === 0) return '0';
   const a = Math.abs(x);
@@ -186,15 +222,23 @@ export class ArxStructure implements Structure {
 
   /** The scoring-scale target z, its differenced form w and the differenced inputs v. */
   private prepare(series: Series, values: Float64Array, inputs: Float64Array[]): { z: Float64Array; w: Float64Array; v: Float64Array[] } {
-    if (this.transform === 'log' && !isStrictlyPositive(values)) {
-      throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
-        expected: 'all values > 0',
-        hint: 'use --transform none',
-      });
-    }
-    const z = this.transform === 'none' ? values : forward(this.transform, values);
-    const w = difference(z, this.D);
-    const v = inputs.map((u) => difference(u, this.D));
+    // Only read, never written: the arrays may be shared with other structures (derivedOf).
+    const D = this.D;
+    const own = this.transform === 'none' && D === 0 ? undefined : derivedOf(values);
+    const z =
+      this.transform === 'none'
+        ? values
+        : derived(own as Map<string, Float64Array>, this.transform, () => {
+            if (!isStrictlyPositive(values)) {
+              throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
+                expected: 'all values > 0',
+                hint: 'use --transform none',
+              });
+            }
+            return forward(this.transform, values);
+          });
+    const w = D === 0 ? z : derived(own as Map<string, Float64Array>, `${this.transform}:${D}`, () => difference(z, D));
+    const v = D === 0 ? inputs : inputs.map((u) => derived(derivedOf(u), `none:${D}`, () => difference(u, D)));
     return { z, w, v };
   }
 
@@ -225,6 +269,26 @@ export class ArxStructure implements Structure {
     this.fillDet(t + origin, out, o + this.detAt);
   }
 
+  /**
+   * Writes the rows of positions start … start + rows − 1 into out (row-major, p columns): the
+   * values `fillRow` writes, filled column by column.
+   */
+  private fillRows(start: number, rows: number, w: Float64Array, v: Float64Array[], out: Float64Array, origin: number): void {
+    const p = this.terms.length;
+    for (let r = 0, o = 0; r < rows; r++, o += p) out[o] = 1;
+    const fillColumn = (col: number, x: Float64Array, lag: number): void => {
+      const first = start - lag;
+      for (let r = 0, o = col; r < rows; r++, o += p) out[o] = x[first + r];
+    };
+    for (let i = 1; i <= this.spec.ar; i++) fillColumn(this.arAt + i - 1, w, i);
+    if (this.slagAt >= 0) fillColumn(this.slagAt, w, this.spec.season as number);
+    const inputs = this.spec.inputs;
+    for (let j = 0; j < inputs.length; j++) {
+      for (let l = 0; l < inputs[j].lags; l++) fillColumn(this.inputAt[j] + l, v[j], inputs[j].delay + l);
+    }
+    if (this.detAt < p) fillDeterministicRows(this.det, start + origin, rows, out, p, this.detAt);
+  }
+
   regression(series: Series, from: number, to: number): Regression {
     const start = Math.max(from, this.history);
     const end = Math.min(to, series.values.length);
@@ -233,17 +297,18 @@ export class ArxStructure implements Structure {
     const { w, v } = this.prepare(series, series.values, this.inputsOf(series));
     const origin = series.before?.count ?? 0;
     const phi: DesignMatrix = { rows, cols: p, data: new Float64Array(rows * p) };
-    const y = new Float64Array(rows);
     const index = new Int32Array(rows);
-    for (let r = 0; r < rows; r++) {
-      const t = start + r;
-      index[r] = t;
-      y[r] = w[t];
-      this.fillRow(t, w, v, phi.data, r * p, origin);
-    }
+    for (let r = 0; r < rows; r++) index[r] = start + r;
+    const y = w.slice(start, start + rows);
+    this.fillRows(start, rows, w, v, phi.data, origin);
     return { index, y, phi };
   }
 
+  /**
+   * Least squares on the rows of [from, to). The fitted values Φθ̂ are the one-step predictions
+   * of w on those rows (the same row values and the same sum as `oneStep`), so they are returned
+   * as `oneStep` too, shifted back to z by z_{t−D} when differenced.
+   */
   estimate(series: Series, from: number, to: number): Estimate {
     const reg = this.regression(series, from, to);
     if (reg.y.length <= this.terms.length) {
@@ -252,6 +317,17 @@ export class ArxStructure implements Structure {
       });
     }
     const fit = lstsq(reg.phi, reg.y, this.terms, { onRankDeficient: 'throw' });
+    const start = reg.index[0];
+    const rows = reg.y.length;
+    let oneStep: Float64Array | undefined;
+    if (start === from && to - from === rows) {
+      // `fit.fitted` belongs to this call alone: it becomes the predictions in place.
+      oneStep = fit.fitted;
+      if (this.D > 0) {
+        const { z } = this.prepare(series, series.values, this.inputsOf(series));
+        for (let r = 0; r < rows; r++) oneStep[r] = z[start + r - this.D] + oneStep[r];
+      }
+    }
     return {
       theta: fit.theta,
       se: fit.se,
@@ -261,6 +337,7 @@ export class ArxStructure implements Structure {
       rank: fit.rank,
       condition: fit.condition,
       warnings: fit.warnings,
+      ...(oneStep !== undefined ? { oneStep } : {}),
     };
   }
 

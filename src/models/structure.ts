@@ -52,6 +52,13 @@ export interface Estimate {
   rank: number;
   condition: number;
   warnings: string[];
+  /**
+   * One-step predictions of z_t for t in [from, to) of the `estimate` call, when the structure
+   * gets them from the fit at no cost (an ARX model's fitted values are its one-step predictions
+   * on the estimation rows). Identical to `oneStep(theta, series, from, to)` on the same series;
+   * absent when the structure does not provide them, in which case callers use `oneStep`.
+   */
+  oneStep?: Float64Array;
 }
 
 /** A quantity a user reads off the fitted equation. */

@@ -58,21 +58,38 @@ export function deterministicCount(d: DeterministicTerms): number {
 }
 
 /**
+ * The harmonic values at each phase r = t mod s, row-major s × m (m harmonic columns), tabulated
+ * once per (K, s) and shared by every filler: they depend on nothing else.
+ */
+function harmonicTable(cols: HarmonicColumn[], K: number, s: number): Float64Array {
+  const key = `${K}:${s}`;
+  let table = harmonicTables.get(key);
+  if (table === undefined) {
+    const m = cols.length;
+    table = new Float64Array(m * s);
+    for (let r = 0; r < s && m > 0; r++) {
+      for (let c = 0; c < m; c++) {
+        const angle = (2 * Math.PI * cols[c].k * r) / s;
+        table[r * m + c] = cols[c].kind === 'sin' ? Math.sin(angle) : Math.cos(angle);
+      }
+    }
+    harmonicTables.set(key, table);
+  }
+  return table;
+}
+
+const harmonicTables = new Map<string, Float64Array>();
+
+/**
  * A filler writing the deterministic values at time t into `out` from `offset`; returns the
  * number of values written. The harmonic values depend only on t mod s, so they are tabulated
- * once per filler (s rows), and filling a row costs no sin/cos evaluation.
+ * (s rows, once per K and s), and filling a row costs no sin/cos evaluation.
  */
 export function deterministicFiller(d: DeterministicTerms): (t: number, out: Float64Array, offset: number) => number {
   const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
   const s = d.season ?? 1;
   const m = cols.length;
-  const table = new Float64Array(m * s);
-  for (let r = 0; r < s && m > 0; r++) {
-    for (let c = 0; c < m; c++) {
-      const angle = (2 * Math.PI * cols[c].k * r) / s;
-      table[r * m + c] = cols[c].kind === 'sin' ? Math.sin(angle) : Math.cos(angle);
-    }
-  }
+  const table = m > 0 ? harmonicTable(cols, d.harmonics, s) : new Float64Array(0);
   const intercept = d.intercept;
   const trend = d.trend;
   return (t, out, offset) => {
@@ -85,4 +102,32 @@ export function deterministicFiller(d: DeterministicTerms): (t: number, out: Flo
     }
     return j - offset;
   };
+}
+
+/**
+ * The values `deterministicFiller(d)` writes for times t0 … t0 + rows − 1, written into the
+ * rows of a row-major matrix `out` with `stride` columns, from column `offset`, column by column.
+ */
+export function fillDeterministicRows(d: DeterministicTerms, t0: number, rows: number, out: Float64Array, stride: number, offset: number): void {
+  let j = offset;
+  if (d.intercept) {
+    for (let r = 0, o = j; r < rows; r++, o += stride) out[o] = 1;
+    j++;
+  }
+  if (d.trend) {
+    for (let r = 0, o = j; r < rows; r++, o += stride) out[o] = t0 + r;
+    j++;
+  }
+  if (d.harmonics > 0 && d.season !== null) {
+    const s = d.season;
+    const cols = harmonicColumns(d.harmonics, s);
+    const m = cols.length;
+    const table = harmonicTable(cols, d.harmonics, s);
+    let phase = ((t0 % s) + s) % s;
+    for (let r = 0, o = j; r < rows; r++, o += stride) {
+      const base = phase * m;
+      for (let c = 0; c < m; c++) out[o + c] = table[base + c];
+      if (++phase === s) phase = 0;
+    }
+  }
 }

@@ -413,7 +413,8 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       results.push(failed(s, 'explosive fitted dynamics (a characteristic root on or outside the unit circle)', from, to));
       continue;
     }
-    const pred = s.oneStep(est.theta, series, from, to);
+    // The fit's own one-step predictions when the structure gives them (Estimate.oneStep).
+    const pred = est.oneStep !== undefined && est.oneStep.length === rows ? est.oneStep : s.oneStep(est.theta, series, from, to);
     const z = zOf(s.transform);
     let rss = 0;
     for (let t = from; t < to; t++) {
