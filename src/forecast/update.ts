@@ -296,8 +296,9 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
     };
   }
 
-  // Rebuild the model, replaying a revised window when asked.
-  let model = assertedFromBody(body);
+  // Rebuild the model (or take over the one the previous update left), replaying a revised
+  // window when asked.
+  let model = carriedFrom(body) ?? assertedFromBody(body);
   const structureBefore = model.structure;
   const thetaBefore = model.learner.theta;
   const seBefore = Float64Array.from(body.se);
@@ -427,12 +428,14 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   const series = tailSeries(ext, dropped, { count: Number(state.before), sum: Number(state.beforeSum) });
   model.learner.next = series.values.length;
   const current = model;
+  const forecast = options.skipForecast ? null : forecastFrom(current, series, nextBody, options, warnings);
+  carry(nextBody, current);
   return {
     body: nextBody,
     added,
     changed: true,
     series,
-    forecast: options.skipForecast ? null : forecastFrom(current, series, nextBody, options, warnings),
+    forecast,
     alarms,
     steps,
     revisions,
@@ -441,6 +444,55 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
     warnings,
     entry,
   };
+}
+
+/**
+ * The structure and learner an update ends with, kept (weakly) beside the body it returned, so
+ * the next update of that body need not rebuild them from the body's spec and arrays. An entry
+ * is taken once (the learner goes on learning) and only when the body still holds exactly the
+ * spec and learning state it was written with; otherwise the body is read as usual.
+ */
+const carried = new WeakMap<ModelBody, { model: AssertedState; spec: string }>();
+
+function carry(body: ModelBody, model: AssertedState): void {
+  carried.set(body, { model, spec: JSON.stringify(body.structure) });
+}
+
+function carriedFrom(body: ModelBody): AssertedState | undefined {
+  const entry = carried.get(body);
+  if (!entry) return undefined;
+  carried.delete(body);
+  const { structure, learner } = entry.model;
+  if (body.structure !== structure.spec || JSON.stringify(body.structure) !== entry.spec) return undefined;
+  if (!holdsLearner(body, learner)) return undefined;
+  learner.next = body.window.values.length;
+  return { structure, learner, se: body.se };
+}
+
+/** True when the body's learning state is, number for number, that of `learner`. */
+function holdsLearner(body: ModelBody, learner: Learner): boolean {
+  const rls = learner.rls;
+  const state = body.state;
+  const active = state.active;
+  const p = learner.active.length;
+  if (!Array.isArray(active) || active.length !== p || body.theta.length !== p || body.P.length !== p) return false;
+  if (!(Object.is(body.lambda, rls.lambda) && Object.is(state.traceMax, rls.traceMax) && Object.is(state.rlsRss, rls.rss))) return false;
+  if (!(Object.is(state.rlsCount, rls.effectiveCount) && Object.is(state.rlsUpdates, rls.updates))) return false;
+  const theta = learner.theta;
+  const P = rls.P;
+  const k = rls.p;
+  const cols: number[] = [];
+  for (let j = 0; j < p; j++) {
+    if (active[j] !== (learner.active[j] ? 1 : 0) || !Object.is(body.theta[j], theta[j])) return false;
+    if (learner.active[j]) cols.push(j);
+  }
+  if (cols.length !== k) return false;
+  for (let a = 0; a < k; a++) {
+    const row = body.P[cols[a]];
+    if (!Array.isArray(row)) return false;
+    for (let b = 0; b < k; b++) if (!Object.is(row[cols[b]], P[a * k + b])) return false;
+  }
+  return true;
 }
 
 function missing(rows: Series, column: string, at: string, found: number): DataError {
