@@ -226,6 +226,29 @@ function harmonicFiller(K: number, season: number | null): (tau: number, out: Fl
 const HARMONIC_MEMORY = 4096;
 const harmonicFillers = new Map<string, (tau: number, out: Float64Array, offset: number) => void>();
 
+/** x^p for a library power p ∈ {0, 1, 2, 3} (0 gives the constant term 1). */
+function statePower(x: number, p: number): number {
+  return p === 0 ? 1 : p === 1 ? x : p === 2 ? x * x : x * x * x;
+}
+
+/**
+ * The seasonal harmonics at the 2·steps + 1 RK4 half-step nodes phase + j·dt/(2·steps) of an
+ * interval starting at a given phase of the season, nodes × terms row-major, by phase. They
+ * depend only on the harmonics, the season, dt and the step count, so every structure with the
+ * same four shares them (at most HARMONIC_MEMORY phases each).
+ */
+function nodeHarmonicsOf(K: number, season: number, dt: number, steps: number): Map<number, Float64Array> {
+  const key = `${K}:${season}:${dt}:${steps}`;
+  let byPhase = nodeHarmonics.get(key);
+  if (byPhase === undefined) {
+    byPhase = new Map();
+    nodeHarmonics.set(key, byPhase);
+  }
+  return byPhase;
+}
+
+const nodeHarmonics = new Map<string, Map<number, Float64Array>>();
+
 /** Name of the state symbol in terms and equations. */
 export function stateSymbol(state: OdeState): string {
   return state === 'level' ? 'y' : 'X';
@@ -372,33 +395,6 @@ class OdeStructure implements Structure {
     });
   }
 
-  /** Writes w·φ(τ, x, u) into out[offset…] (adds when `add`). */
-  private library(): (tau: number, x: number, u: ArrayLike<number>, w: number, out: Float64Array, offset: number, add: boolean) => void {
-    const powers = this.spec.powers;
-    const nh = this.harmonicNames.length;
-    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
-    const buf = new Float64Array(nh);
-    return (tau, x, u, w, out, offset, add) => {
-      let j = offset;
-      for (const p of powers) {
-        const v = w * (p === 0 ? 1 : p === 1 ? x : p === 2 ? x * x : x * x * x);
-        out[j] = add ? out[j] + v : v;
-        j++;
-      }
-      for (let k = 0; k < u.length; k++) {
-        out[j] = add ? out[j] + w * u[k] : w * u[k];
-        j++;
-      }
-      if (nh > 0) {
-        harm(tau, buf, 0);
-        for (let k = 0; k < nh; k++) {
-          out[j] = add ? out[j] + w * buf[k] : w * buf[k];
-          j++;
-        }
-      }
-    };
-  }
-
   /**
    * RK4 steps for one sampling interval from state x: `spec.substeps`, raised when needed so
    * that h·|∂f/∂x| ≤ 1 at the start of the interval (h = dt/steps), well inside classical RK4's
@@ -438,38 +434,57 @@ class OdeStructure implements Structure {
     const byPhase = new Map<number, Float64Array>();
     const cachedSteps = this.spec.substeps;
     let forcing = new Float64Array(2 * cachedSteps + 1);
+    // Never written: the forcing of an ODE without inputs and harmonics.
+    let none = new Float64Array(2 * cachedSteps + 1);
+    const atNodes = nh > 0 ? nodeHarmonicsOf(this.spec.harmonics, season, dt, cachedSteps) : undefined;
     const harmonicPart = (phase: number, nodes: number, half: number): Float64Array => {
       const sums = new Float64Array(nodes);
+      // The harmonics at the nodes of the default step count, formed once per phase for every
+      // structure; other step counts evaluate them here.
+      let known = nodes === 2 * cachedSteps + 1 ? atNodes?.get(phase) : undefined;
+      if (known === undefined && nodes === 2 * cachedSteps + 1 && atNodes !== undefined && atNodes.size < HARMONIC_MEMORY) {
+        known = new Float64Array(nodes * nh);
+        for (let j = 0; j < nodes; j++) harm(phase + j * half, known, j * nh);
+        atNodes.set(phase, known);
+      }
+      const at = np + ni;
       for (let j = 0; j < nodes; j++) {
-        harm(phase + j * half, values, 0);
         let f = 0;
-        for (let k = 0; k < nh; k++) f += theta[np + ni + k] * values[k];
+        if (known !== undefined) {
+          const o = j * nh;
+          for (let k = 0; k < nh; k++) f += theta[at + k] * known[o + k];
+        } else {
+          harm(phase + j * half, values, 0);
+          for (let k = 0; k < nh; k++) f += theta[at + k] * values[k];
+        }
         sums[j] = f;
       }
       return sums;
     };
     return (tauA, x0, ua, ub, steps) => {
       const nodes = 2 * steps + 1;
-      if (forcing.length < nodes) forcing = new Float64Array(nodes);
       const half = dt / steps / 2;
+      let sums: Float64Array | undefined;
       if (nh > 0) {
         const phase = ((tauA % season) + season) % season;
-        let sums = steps === cachedSteps ? byPhase.get(phase) : undefined;
+        sums = steps === cachedSteps ? byPhase.get(phase) : undefined;
         if (sums === undefined) {
           sums = harmonicPart(phase, nodes, half);
           if (steps === cachedSteps) byPhase.set(phase, sums);
         }
-        forcing.set(sums);
-      } else {
-        forcing.fill(0, 0, nodes);
       }
-      if (ni > 0) {
-        for (let j = 0; j < nodes; j++) {
-          const s = (j * half) / dt;
-          let f = forcing[j];
-          for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
-          forcing[j] = f;
-        }
+      if (ni === 0) {
+        // The forcing is the harmonic part alone (read, not written, by the integration).
+        if (sums !== undefined) return rk4Polynomial(c0, c1, c2, c3, sums, x0, dt, steps);
+        if (none.length < nodes) none = new Float64Array(nodes);
+        return rk4Polynomial(c0, c1, c2, c3, none, x0, dt, steps);
+      }
+      if (forcing.length < nodes) forcing = new Float64Array(nodes);
+      for (let j = 0; j < nodes; j++) {
+        const s = (j * half) / dt;
+        let f = sums !== undefined ? sums[j] : 0;
+        for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
+        forcing[j] = f;
       }
       return rk4Polynomial(c0, c1, c2, c3, forcing, x0, dt, steps);
     };
@@ -486,20 +501,35 @@ class OdeStructure implements Structure {
     const phi = zeros(rows, p);
     const y = new Float64Array(rows);
     const index = new Int32Array(rows);
-    const fill = this.library();
     const origin = series.before?.count ?? 0;
-    const ua = new Float64Array(cols.length);
-    const ub = new Float64Array(cols.length);
+    const powers = this.spec.powers;
+    const np = powers.length;
+    const ni = cols.length;
+    const nh = this.harmonicNames.length;
+    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
+    // Each entry is (dt/2)·φ(start) + (dt/2)·φ(end). The harmonics at an interval's end are
+    // those at the next interval's start, so they are formed once per observation.
+    let ha = new Float64Array(nh);
+    let hb = new Float64Array(nh);
+    if (nh > 0 && rows > 0) harm(this.tau(lo - 1, dt, origin), ha, 0);
+    const w = dt / 2;
+    const d = phi.data;
     for (let r = 0; r < rows; r++) {
       const t = lo + r;
-      for (let k = 0; k < cols.length; k++) {
-        ua[k] = cols[k][t - 1];
-        ub[k] = cols[k][t];
-      }
       index[r] = t;
       y[r] = x[t] - x[t - 1];
-      fill(this.tau(t - 1, dt, origin), x[t - 1], ua, dt / 2, phi.data, r * p, false);
-      fill(this.tau(t, dt, origin), x[t], ub, dt / 2, phi.data, r * p, true);
+      const xa = x[t - 1];
+      const xb = x[t];
+      let j = r * p;
+      for (let k = 0; k < np; k++, j++) d[j] = w * statePower(xa, powers[k]) + w * statePower(xb, powers[k]);
+      for (let k = 0; k < ni; k++, j++) d[j] = w * cols[k][t - 1] + w * cols[k][t];
+      if (nh > 0) {
+        harm(this.tau(t, dt, origin), hb, 0);
+        for (let k = 0; k < nh; k++, j++) d[j] = w * ha[k] + w * hb[k];
+        const next = ha;
+        ha = hb;
+        hb = next;
+      }
     }
     return { index, y, phi };
   }
