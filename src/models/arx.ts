@@ -148,6 +148,14 @@ function derived(byKey: Map<string, Float64Array>, key: string, make: () => Floa
   return a;
 }
 
+/** Φ storage of the fit in progress (ArxStructure.estimate), reused by every fit. */
+let sharedRows = new Float64Array(0);
+
+/** out[r·p + col] = x[first + r] for r < rows: one lagged column of a row-major Φ. */
+function laggedColumn(out: Float64Array, p: number, col: number, rows: number, x: Float64Array, first: number): void {
+  for (let r = 0, o = col; r < rows; r++, o += p) out[o] = x[first + r];
+}
+
 function fmt(x: number): string {
   if (x === 0) return '0';
   const a = Math.abs(x);
@@ -276,27 +284,38 @@ export class ArxStructure implements Structure {
   private fillRows(start: number, rows: number, w: Float64Array, v: Float64Array[], out: Float64Array, origin: number): void {
     const p = this.terms.length;
     for (let r = 0, o = 0; r < rows; r++, o += p) out[o] = 1;
-    const fillColumn = (col: number, x: Float64Array, lag: number): void => {
-      const first = start - lag;
-      for (let r = 0, o = col; r < rows; r++, o += p) out[o] = x[first + r];
-    };
-    for (let i = 1; i <= this.spec.ar; i++) fillColumn(this.arAt + i - 1, w, i);
-    if (this.slagAt >= 0) fillColumn(this.slagAt, w, this.spec.season as number);
+    for (let i = 1; i <= this.spec.ar; i++) laggedColumn(out, p, this.arAt + i - 1, rows, w, start - i);
+    if (this.slagAt >= 0) laggedColumn(out, p, this.slagAt, rows, w, start - (this.spec.season as number));
     const inputs = this.spec.inputs;
     for (let j = 0; j < inputs.length; j++) {
-      for (let l = 0; l < inputs[j].lags; l++) fillColumn(this.inputAt[j] + l, v[j], inputs[j].delay + l);
+      for (let l = 0; l < inputs[j].lags; l++) laggedColumn(out, p, this.inputAt[j] + l, rows, v[j], start - inputs[j].delay - l);
     }
     if (this.detAt < p) fillDeterministicRows(this.det, start + origin, rows, out, p, this.detAt);
   }
 
   regression(series: Series, from: number, to: number): Regression {
+    return this.rows(series, from, to, false);
+  }
+
+  /**
+   * The regression of [from, to); with `scratch`, Φ is written into storage shared by every
+   * call (valid until the next such call), for fits that drop Φ before returning.
+   */
+  private rows(series: Series, from: number, to: number, scratch: boolean): Regression {
     const start = Math.max(from, this.history);
     const end = Math.min(to, series.values.length);
     const rows = Math.max(0, end - start);
     const p = this.terms.length;
     const { w, v } = this.prepare(series, series.values, this.inputsOf(series));
     const origin = series.before?.count ?? 0;
-    const phi: DesignMatrix = { rows, cols: p, data: new Float64Array(rows * p) };
+    let data: Float64Array;
+    if (scratch) {
+      if (sharedRows.length < rows * p) sharedRows = new Float64Array(Math.max(rows * p, 2 * sharedRows.length));
+      data = sharedRows.length === rows * p ? sharedRows : sharedRows.subarray(0, rows * p);
+    } else {
+      data = new Float64Array(rows * p);
+    }
+    const phi: DesignMatrix = { rows, cols: p, data };
     const index = new Int32Array(rows);
     for (let r = 0; r < rows; r++) index[r] = start + r;
     const y = w.slice(start, start + rows);
@@ -310,7 +329,8 @@ export class ArxStructure implements Structure {
    * as `oneStep` too, shifted back to z by z_{t−D} when differenced.
    */
   estimate(series: Series, from: number, to: number): Estimate {
-    const reg = this.regression(series, from, to);
+    // lstsq keeps no reference to Φ, so Φ may live in the shared rows.
+    const reg = this.rows(series, from, to, true);
     if (reg.y.length <= this.terms.length) {
       throw new ModelError('too-short', `${this.label}: ${reg.y.length} rows for ${this.terms.length} coefficients`, {
         expected: `more than ${this.terms.length} rows (series length ≥ ${this.history + this.terms.length + 1})`,
