@@ -298,7 +298,8 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
 
   // Rebuild the model (or take over the one the previous update left), replaying a revised
   // window when asked.
-  let model = carriedFrom(body) ?? assertedFromBody(body);
+  const reused = carriedFrom(body);
+  let model = reused?.model ?? assertedFromBody(body);
   const structureBefore = model.structure;
   const thetaBefore = model.learner.theta;
   const seBefore = Float64Array.from(body.se);
@@ -429,7 +430,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   model.learner.next = series.values.length;
   const current = model;
   const forecast = options.skipForecast ? null : forecastFrom(current, series, nextBody, options, warnings);
-  carry(nextBody, current);
+  carry(nextBody, current, reused !== undefined && nextBody.structure === body.structure ? reused.spec : undefined);
   return {
     body: nextBody,
     added,
@@ -454,19 +455,22 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
  */
 const carried = new WeakMap<ModelBody, { model: AssertedState; spec: string }>();
 
-function carry(body: ModelBody, model: AssertedState): void {
-  carried.set(body, { model, spec: JSON.stringify(body.structure) });
+/** Keeps `model` for the next update of `body`; `spec` is the spec's JSON text when already known. */
+function carry(body: ModelBody, model: AssertedState, spec: string = JSON.stringify(body.structure)): void {
+  carried.set(body, { model, spec });
 }
 
-function carriedFrom(body: ModelBody): AssertedState | undefined {
+/** The carried model of `body` when it still matches the body, with its spec's JSON text. */
+function carriedFrom(body: ModelBody): { model: AssertedState; spec: string } | undefined {
   const entry = carried.get(body);
   if (!entry) return undefined;
   carried.delete(body);
   const { structure, learner } = entry.model;
-  if (body.structure !== structure.spec || JSON.stringify(body.structure) !== entry.spec) return undefined;
-  if (!holdsLearner(body, learner)) return undefined;
+  if (body.structure !== structure.spec) return undefined;
+  const spec = JSON.stringify(body.structure);
+  if (spec !== entry.spec || !holdsLearner(body, learner)) return undefined;
   learner.next = body.window.values.length;
-  return { structure, learner, se: body.se };
+  return { model: { structure, learner, se: body.se }, spec };
 }
 
 /** True when the body's learning state is, number for number, that of `learner`. */
@@ -513,7 +517,9 @@ function describeModel(model: AssertedState): ModelDescription {
 function seOf(learner: Learner): Float64Array {
   const p = learner.structure.terms.length;
   const cov = learner.cov;
-  return Float64Array.from({ length: p }, (_, j) => Math.sqrt(Math.max(0, cov[j * p + j])));
+  const out = new Float64Array(p);
+  for (let j = 0; j < p; j++) out[j] = Math.sqrt(Math.max(0, cov[j * p + j]));
+  return out;
 }
 
 function termMap(terms: string[], theta: ArrayLike<number>): Map<string, number> {

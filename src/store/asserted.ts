@@ -84,10 +84,14 @@ export function learnerFields(model: AssertedState): {
 } {
   const { structure, learner } = model;
   const p = structure.terms.length;
-  const json = learner.toJSON();
-  const cols = json.active.map((a, j) => (a ? j : -1)).filter((j) => j >= 0);
+  const rls = learner.rls;
+  const active = learner.active;
+  const cols: number[] = [];
+  for (let j = 0; j < active.length; j++) if (active[j]) cols.push(j);
+  const k = cols.length;
+  const flat = rls.P;
   const P: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
-  for (let a = 0; a < cols.length; a++) for (let b = 0; b < cols.length; b++) P[cols[a]][cols[b]] = json.rls.P[a][b];
+  for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) P[cols[a]][cols[b]] = flat[a * k + b];
   return {
     model: {
       structure: structure.spec,
@@ -95,16 +99,16 @@ export function learnerFields(model: AssertedState): {
       theta: Array.from(learner.theta),
       se: Array.from(model.se, (v) => (Number.isFinite(v) ? v : 0)),
       P,
-      lambda: json.rls.lambda,
+      lambda: rls.lambda,
       sigma2: learner.sigma2,
       transform: structure.transform,
     },
     state: {
-      active: json.active.map((a) => (a ? 1 : 0)),
-      rlsRss: json.rls.rss,
-      rlsCount: json.rls.count,
-      traceMax: json.rls.traceMax,
-      rlsUpdates: json.rls.updates,
+      active: active.map((a) => (a ? 1 : 0)),
+      rlsRss: rls.rss,
+      rlsCount: rls.effectiveCount,
+      traceMax: rls.traceMax,
+      rlsUpdates: rls.updates,
     },
   };
 }

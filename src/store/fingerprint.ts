@@ -12,7 +12,7 @@
  * extending by a, saving, and later extending by b; the order of rows matters, and so does every
  * digit of every value.
  */
-import { createHash } from 'node:crypto';
+import { hash } from 'node:crypto';
 import type { Series } from '../data/series.js';
 import { canonicalJson } from './canonical-json.js';
 
@@ -42,10 +42,30 @@ export function extendFingerprint(fp: Fingerprint, rows: Iterable<DataRow>): Fin
   let hex = fp.hash.startsWith('sha256:') ? fp.hash.slice(7) : fp.hash;
   let count = fp.rows;
   for (const row of rows) {
-    hex = sha256Hex(`${hex}\n${canonicalJson([row.time, row.value, ...row.inputs])}`);
+    hex = sha256Hex(`${hex}\n${rowJson(row)}`);
     count += 1;
   }
   return { hash: `sha256:${hex}`, rows: count };
+}
+
+/** canonicalJson([time, value, ...inputs]), written directly when every entry is a finite number. */
+function rowJson(row: DataRow): string {
+  let text = numberText(row.time);
+  const value = numberText(row.value);
+  if (text === undefined || value === undefined) return canonicalJson([row.time, row.value, ...row.inputs]);
+  text = `[${text},${value}`;
+  for (const x of row.inputs) {
+    const t = numberText(x);
+    if (t === undefined) return canonicalJson([row.time, row.value, ...row.inputs]);
+    text += `,${t}`;
+  }
+  return `${text}]`;
+}
+
+/** A finite number as canonicalJson writes it; undefined for anything else. */
+function numberText(x: unknown): string | undefined {
+  if (typeof x !== 'number' || !Number.isFinite(x)) return undefined;
+  return x === 0 ? '0' : String(x);
 }
 
 /** Rows [from, to) of a series, for `extendFingerprint`. */
@@ -62,5 +82,5 @@ export function fingerprintSeries(series: Series, from = 0, to = series.values.l
 
 /** Lowercase hex SHA-256 of a UTF-8 text. */
 export function sha256Hex(text: string): string {
-  return createHash('sha256').update(text, 'utf8').digest('hex');
+  return hash('sha256', text, 'hex');
 }

@@ -41,12 +41,9 @@ export function windowFromSeries(series: Series, capacity = DEFAULT_WINDOW_CAPAC
  * capacity dropped. Refuses a row that is not later than the window's last time stamp.
  */
 export function extendWindow(window: HistoryWindow, rows: Iterable<DataRow>, inputNames: readonly string[]): HistoryWindow {
-  const time = window.time.slice();
-  const values = window.values.slice();
-  const inputs: Record<string, number[]> = {};
-  for (const name of inputNames) inputs[name] = (window.inputs[name] ?? []).slice();
-  for (const row of rows) {
-    const last = time.length > 0 ? time[time.length - 1] : -Infinity;
+  const added = Array.isArray(rows) ? (rows as readonly DataRow[]) : Array.from(rows);
+  let last = window.time.length > 0 ? window.time[window.time.length - 1] : -Infinity;
+  for (const row of added) {
     if (!(row.time > last)) {
       throw new DataError('row-not-newer', 'a new row is not later than the last row the model has seen', {
         found: String(row.time),
@@ -60,16 +57,22 @@ export function extendWindow(window: HistoryWindow, rows: Iterable<DataRow>, inp
         expected: `${inputNames.length} (${inputNames.join(', ')})`,
       });
     }
-    time.push(row.time);
-    values.push(row.value);
-    inputNames.forEach((name, j) => inputs[name].push(row.inputs[j]));
+    last = row.time;
   }
-  const drop = Math.max(0, time.length - window.capacity);
-  if (drop > 0) {
-    time.splice(0, drop);
-    values.splice(0, drop);
-    for (const name of inputNames) inputs[name].splice(0, drop);
-  }
+  // Each column: its old entries then the new ones, less the `drop` oldest (as many as appending
+  // would push the time column beyond capacity).
+  const m = added.length;
+  const drop = Math.max(0, window.time.length + m - window.capacity);
+  const appended = (old: readonly number[], fresh: (row: DataRow) => number): number[] => {
+    const fromOld = Math.min(drop, old.length);
+    const out = old.slice(fromOld);
+    for (let k = drop - fromOld; k < m; k++) out.push(fresh(added[k]));
+    return out;
+  };
+  const time = appended(window.time, (row) => row.time);
+  const values = appended(window.values, (row) => row.value);
+  const inputs: Record<string, number[]> = {};
+  inputNames.forEach((name, j) => (inputs[name] = appended(window.inputs[name] ?? [], (row) => row.inputs[j])));
   return { capacity: window.capacity, time, values, inputs };
 }
 
