@@ -23,7 +23,7 @@ import type { DesignMatrix } from '../linalg/matrix.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, fillDeterministicRows, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { deterministicFiller, deterministicNames, deterministicRowsFiller, maxHarmonics, type DeterministicTerms } from './terms.js';
 import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
 
@@ -190,6 +190,7 @@ export class ArxStructure implements Structure {
   private readonly detAt: number;
   private readonly det: DeterministicTerms;
   private readonly fillDet: (t: number, out: Float64Array, offset: number) => number;
+  private readonly fillDetRows: (t0: number, rows: number, out: Float64Array, stride: number, offset: number) => void;
   private readonly D: number;
 
   constructor(specIn: StructureSpec) {
@@ -219,6 +220,7 @@ export class ArxStructure implements Structure {
     this.det = { intercept: false, trend: spec.trend, harmonics: spec.harmonics, season: spec.season };
     terms.push(...deterministicNames(this.det));
     this.fillDet = deterministicFiller(this.det);
+    this.fillDetRows = deterministicRowsFiller(this.det);
     this.terms = terms;
     let hw = spec.ar;
     if (spec.seasonalLag) hw = Math.max(hw, spec.season as number);
@@ -290,7 +292,7 @@ export class ArxStructure implements Structure {
     for (let j = 0; j < inputs.length; j++) {
       for (let l = 0; l < inputs[j].lags; l++) laggedColumn(out, p, this.inputAt[j] + l, rows, v[j], start - inputs[j].delay - l);
     }
-    if (this.detAt < p) fillDeterministicRows(this.det, start + origin, rows, out, p, this.detAt);
+    if (this.detAt < p) this.fillDetRows(start + origin, rows, out, p, this.detAt);
   }
 
   regression(series: Series, from: number, to: number): Regression {
@@ -348,17 +350,18 @@ export class ArxStructure implements Structure {
         for (let r = 0; r < rows; r++) oneStep[r] = z[start + r - this.D] + oneStep[r];
       }
     }
-    return {
+    const est: Estimate = {
       theta: fit.theta,
       se: fit.se,
       cov: fit.cov,
-      active: this.terms.map(() => true),
+      active: new Array<boolean>(this.terms.length).fill(true),
       sigma2: fit.sigma2,
       rank: fit.rank,
       condition: fit.condition,
       warnings: fit.warnings,
-      ...(oneStep !== undefined ? { oneStep } : {}),
     };
+    if (oneStep !== undefined) est.oneStep = oneStep;
+    return est;
   }
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {

@@ -313,6 +313,74 @@ export function samplingInterval(series: Series): number {
   return first;
 }
 
+/**
+ * Work shared by the ODE candidates of one grid that differ only in their scoring transform.
+ * Their regression is on the untransformed state, so their estimates are the same, and so are
+ * their one-step predictions of y for the same θ (a log candidate scores their logarithm): the
+ * second candidate takes copies of what the first computed. Everything is tied to the series
+ * object, its sample and the values it held then (compared on every use, since arrays may be
+ * edited in place); on any other series or sample the structures compute afresh.
+ */
+class SharedFit {
+  private series?: Series;
+  private values = new Float64Array(0);
+  private inputs: Float64Array[] = [];
+  private origin = 0;
+  private sum = 0;
+  private fit?: { from: number; to: number; estimate: Estimate };
+  private predicted?: { from: number; to: number; theta: Float64Array; yhat: Float64Array };
+
+  /** True when `series` is the one the stored work was done on, with the same values. */
+  private holds(series: Series, cols: Float64Array[]): boolean {
+    if (this.series !== series || (series.before?.count ?? 0) !== this.origin || (series.before?.sum ?? 0) !== this.sum) return false;
+    if (!sameValues(this.values, series.values) || cols.length !== this.inputs.length) return false;
+    for (let k = 0; k < cols.length; k++) if (!sameValues(this.inputs[k], cols[k])) return false;
+    return true;
+  }
+
+  /** Makes `series` the one the stored work refers to, dropping work done on another. */
+  private use(series: Series, cols: Float64Array[]): void {
+    if (this.holds(series, cols)) return;
+    this.series = series;
+    this.values = series.values.slice();
+    this.inputs = cols.map((c) => c.slice());
+    this.origin = series.before?.count ?? 0;
+    this.sum = series.before?.sum ?? 0;
+    this.fit = undefined;
+    this.predicted = undefined;
+  }
+
+  estimate(series: Series, cols: Float64Array[], from: number, to: number, compute: () => Estimate): Estimate {
+    const f = this.fit;
+    if (f !== undefined && f.from === from && f.to === to && this.holds(series, cols)) return copyEstimate(f.estimate);
+    const estimate = compute();
+    this.use(series, cols);
+    this.fit = { from, to, estimate: copyEstimate(estimate) };
+    return estimate;
+  }
+
+  /** One-step predictions of y (original scale) for θ on [from, to). */
+  predictions(theta: Float64Array, series: Series, cols: Float64Array[], from: number, to: number, compute: () => Float64Array): Float64Array {
+    const p = this.predicted;
+    if (p !== undefined && p.from === from && p.to === to && sameValues(p.theta, theta) && this.holds(series, cols)) return p.yhat;
+    const yhat = compute();
+    this.use(series, cols);
+    this.predicted = { from, to, theta: theta.slice(), yhat };
+    return yhat;
+  }
+}
+
+/** Same length and the same numbers in every position. */
+function sameValues(a: Float64Array, b: Float64Array): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+function copyEstimate(e: Estimate): Estimate {
+  return { ...e, theta: e.theta.slice(), se: e.se.slice(), cov: e.cov.slice(), active: [...e.active], warnings: [...e.warnings] };
+}
+
 class OdeStructure implements Structure {
   readonly family = 'ode';
   readonly key: string;
@@ -323,8 +391,12 @@ class OdeStructure implements Structure {
   readonly transform: Transform;
   private readonly harmonicNames: string[];
 
-  constructor(spec: OdeSpec) {
+  /** Work shared with the grid's twin of another transform (odeCandidates), if any. */
+  private readonly shared: SharedFit | undefined;
+
+  constructor(spec: OdeSpec, shared?: SharedFit) {
     this.spec = spec;
+    this.shared = shared;
     this.transform = spec.transform;
     const symbol = stateSymbol(spec.state);
     this.harmonicNames = deterministicNames({ intercept: false, trend: false, harmonics: spec.harmonics, season: spec.season });
@@ -355,7 +427,7 @@ class OdeStructure implements Structure {
         throw new ModelError('non-finite-value', `series "${series.name}" has a missing or non-finite value at observation ${i}`, { found: String(y[i]) });
       }
     }
-    if (this.spec.state === 'level') return Float64Array.from(y);
+    if (this.spec.state === 'level') return y.slice();
     const x = new Float64Array(y.length);
     // A later window of the series continues the sum of everything before it (series.before).
     let acc = this.spec.initialCumulative + (series.before?.sum ?? 0);
@@ -535,6 +607,11 @@ class OdeStructure implements Structure {
   }
 
   estimate(series: Series, from: number, to: number): Estimate {
+    if (this.shared === undefined) return this.fit(series, from, to);
+    return this.shared.estimate(series, this.inputColumns(series), from, to, () => this.fit(series, from, to));
+  }
+
+  private fit(series: Series, from: number, to: number): Estimate {
     const reg = this.regression(series, from, to);
     const p = this.terms.length;
     if (reg.y.length < p + 1) {
@@ -549,6 +626,17 @@ class OdeStructure implements Structure {
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
     if (from < this.history) throw new RangeError(`oneStep needs from ≥ ${this.history}, got ${from}`);
+    const yhat =
+      this.shared === undefined
+        ? this.levelOneStep(theta, series, from, to)
+        : this.shared.predictions(theta, series, this.inputColumns(series), from, to, () => this.levelOneStep(theta, series, from, to));
+    const out = new Float64Array(yhat.length);
+    for (let i = 0; i < yhat.length; i++) out[i] = this.spec.transform === 'log' ? Math.log(yhat[i]) : yhat[i];
+    return out;
+  }
+
+  /** One-step predictions of y_t on the original scale, t in [from, to) (from ≥ 1). */
+  private levelOneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
     const x = this.state(series);
     const dt = this.dt(series);
     const cols = this.inputColumns(series);
@@ -565,8 +653,7 @@ class OdeStructure implements Structure {
       }
       const tauA = this.tau(t - 1, dt, origin);
       const next = step(tauA, x[t - 1], ua, ub, this.substeps(theta, x[t - 1], dt));
-      const yhat = this.spec.state === 'level' ? next : next - x[t - 1];
-      out[t - from] = this.spec.transform === 'log' ? Math.log(yhat) : yhat;
+      out[t - from] = this.spec.state === 'level' ? next : next - x[t - 1];
     }
     return out;
   }
@@ -707,6 +794,8 @@ export function odeCandidates(series: Series, bounds: CandidateBounds): Structur
   const harmonics = bounds.season !== null && bounds.harmonics.length > 0 ? bounds.harmonics : [0];
   const ppy = periodsPerYear(series.frequency);
   const out: Structure[] = [];
+  // Candidates that differ only in the transform share their fit and predictions (SharedFit).
+  const twins = new Map<string, SharedFit>();
   for (const transform of bounds.transforms) {
     if (transform === 'log' && !positive) continue;
     const shapes: [OdeState, number[], OdeSelection][] = LEVEL_SHAPES.map(([p, sel]) => ['level', p, sel]);
@@ -716,7 +805,14 @@ export function odeCandidates(series: Series, bounds: CandidateBounds): Structur
         if (inputs.length > 0 && powers.length === 1) continue;
         for (const k of harmonics) {
           if (k > 0 && powers.length === 1) continue;
-          const s = odeStructure({ state, powers, inputs, harmonics: k, season: k > 0 ? bounds.season : null, transform, dt, periodsPerYear: ppy, selection });
+          const spec = odeSpec({ state, powers, inputs, harmonics: k, season: k > 0 ? bounds.season : null, transform, dt, periodsPerYear: ppy, selection });
+          const twin = JSON.stringify({ ...spec, transform: null });
+          let shared = twins.get(twin);
+          if (shared === undefined) {
+            shared = new SharedFit();
+            twins.set(twin, shared);
+          }
+          const s = new OdeStructure(spec, shared);
           if (n - 1 < s.terms.length + 2) continue;
           out.push(s);
         }

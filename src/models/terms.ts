@@ -105,29 +105,34 @@ export function deterministicFiller(d: DeterministicTerms): (t: number, out: Flo
 }
 
 /**
- * The values `deterministicFiller(d)` writes for times t0 … t0 + rows − 1, written into the
- * rows of a row-major matrix `out` with `stride` columns, from column `offset`, column by column.
+ * A filler writing the values `deterministicFiller(d)` writes for times t0 … t0 + rows − 1 into
+ * the rows of a row-major matrix `out` with `stride` columns, from column `offset`, column by
+ * column.
  */
-export function fillDeterministicRows(d: DeterministicTerms, t0: number, rows: number, out: Float64Array, stride: number, offset: number): void {
-  let j = offset;
-  if (d.intercept) {
-    for (let r = 0, o = j; r < rows; r++, o += stride) out[o] = 1;
-    j++;
-  }
-  if (d.trend) {
-    for (let r = 0, o = j; r < rows; r++, o += stride) out[o] = t0 + r;
-    j++;
-  }
-  if (d.harmonics > 0 && d.season !== null) {
-    const s = d.season;
-    const cols = harmonicColumns(d.harmonics, s);
-    const m = cols.length;
-    const table = harmonicTable(cols, d.harmonics, s);
-    let phase = ((t0 % s) + s) % s;
-    for (let r = 0, o = j; r < rows; r++, o += stride) {
-      const base = phase * m;
-      for (let c = 0; c < m; c++) out[o + c] = table[base + c];
-      if (++phase === s) phase = 0;
+export function deterministicRowsFiller(d: DeterministicTerms): (t0: number, rows: number, out: Float64Array, stride: number, offset: number) => void {
+  const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
+  const s = d.season ?? 1;
+  const m = cols.length;
+  const table = m > 0 ? harmonicTable(cols, d.harmonics, s) : new Float64Array(0);
+  const intercept = d.intercept;
+  const trend = d.trend;
+  return (t0, rows, out, stride, offset) => {
+    let j = offset;
+    if (intercept) {
+      for (let r = 0, o = j; r < rows; r++, o += stride) out[o] = 1;
+      j++;
     }
-  }
+    if (trend) {
+      for (let r = 0, o = j; r < rows; r++, o += stride) out[o] = t0 + r;
+      j++;
+    }
+    if (m > 0) {
+      let phase = ((t0 % s) + s) % s;
+      for (let r = 0, o = j; r < rows; r++, o += stride) {
+        const base = phase * m;
+        for (let c = 0; c < m; c++) out[o + c] = table[base + c];
+        if (++phase === s) phase = 0;
+      }
+    }
+  };
 }
