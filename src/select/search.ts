@@ -8,7 +8,8 @@
  * 2. Common sample: rows t ∈ [from, n) with from = the largest `history` among all candidates
  *    (or a later `sampleStart`), so every candidate predicts the same observations.
  * 3. Each candidate is estimated on that sample (`estimate`), its one-step predictions of
- *    z_t = g(y_t) are formed (`oneStep`), and RSS = Σ (z_t − ẑ_t)² enters the Gaussian
+ *    z_t = g(y_t) are formed (`oneStep`, or taken from the estimate when the structure returns
+ *    them with it, `Estimate.oneStep`), and RSS = Σ (z_t − ẑ_t)² enters the Gaussian
  *    criteria of criteria.ts with k = active coefficients + 1 (the noise variance) and, for log
  *    candidates, the log-Jacobian −Σ ln y_t over the sample, so all candidates are scored on the
  *    original scale.
