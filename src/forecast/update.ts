@@ -61,7 +61,7 @@
  */
 import { formatTime, stepTime } from '../data/calendar.js';
 import { DataError, UsageError } from '../data/errors.js';
-import { sliceSeries, type Series } from '../data/series.js';
+import type { Series } from '../data/series.js';
 import type { Structure } from '../models/structure.js';
 import { forward } from '../models/transforms.js';
 import { search, type SearchOptions } from '../select/search.js';
@@ -335,11 +335,10 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   let drift: DriftState = body.drift;
   let adaptRemaining = Number(body.state.adaptRemaining ?? 0);
   const baseLambda = body.lambda;
-  const rls = () => model.learner.rls;
   const offset = ext.values.length - newRows.length;
   for (let k = 0; k < newRows.length; k++) {
     const lam = adaptRemaining > 0 ? ADAPT.lambda : baseLambda;
-    if (rls().lambda !== lam) rls().lambda = lam;
+    if (model.learner.rls.lambda !== lam) model.learner.rls.lambda = lam;
     const learnt = model.learner.learn(ext, offset + k + 1);
     if (adaptRemaining > 0) adaptRemaining--;
     const t = newRows[k].time;
@@ -357,7 +356,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
       }
     }
   }
-  if (rls().lambda !== baseLambda) rls().lambda = baseLambda;
+  if (model.learner.rls.lambda !== baseLambda) model.learner.rls.lambda = baseLambda;
 
   let structureChanged = false;
   let criterion = body.criterion;
@@ -453,24 +452,46 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
  * is taken once (the learner goes on learning) and only when the body still holds exactly the
  * spec and learning state it was written with; otherwise the body is read as usual.
  */
-const carried = new WeakMap<ModelBody, { model: AssertedState; spec: string }>();
+const carried = new WeakMap<ModelBody, { model: AssertedState; spec: unknown }>();
 
-/** Keeps `model` for the next update of `body`; `spec` is the spec's JSON text when already known. */
-function carry(body: ModelBody, model: AssertedState, spec: string = JSON.stringify(body.structure)): void {
+/** Keeps `model` for the next update of `body`; `spec` is a private copy of the body's spec when one is at hand. */
+function carry(body: ModelBody, model: AssertedState, spec: unknown = copyJson(body.structure)): void {
   carried.set(body, { model, spec });
 }
 
-/** The carried model of `body` when it still matches the body, with its spec's JSON text. */
-function carriedFrom(body: ModelBody): { model: AssertedState; spec: string } | undefined {
+/** The carried model of `body` when it still matches the body, with the private copy of its spec. */
+function carriedFrom(body: ModelBody): { model: AssertedState; spec: unknown } | undefined {
   const entry = carried.get(body);
   if (!entry) return undefined;
   carried.delete(body);
   const { structure, learner } = entry.model;
-  if (body.structure !== structure.spec) return undefined;
-  const spec = JSON.stringify(body.structure);
-  if (spec !== entry.spec || !holdsLearner(body, learner)) return undefined;
+  if (body.structure !== structure.spec || !sameJson(body.structure, entry.spec) || !holdsLearner(body, learner)) return undefined;
   learner.next = body.window.values.length;
-  return { model: { structure, learner, se: body.se }, spec };
+  return { model: { structure, learner, se: body.se }, spec: entry.spec };
+}
+
+/** A deep copy of a JSON value (plain objects, arrays, scalars). */
+function copyJson(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(copyJson);
+  if (value === null || typeof value !== 'object') return value;
+  const out: Record<string, unknown> = {};
+  for (const key of Object.keys(value)) out[key] = copyJson((value as Record<string, unknown>)[key]);
+  return out;
+}
+
+/** Whether two JSON values are equal: same scalars (Object.is), same array entries, same keys and members. */
+function sameJson(a: unknown, b: unknown): boolean {
+  if (Object.is(a, b)) return true;
+  if (a === null || b === null || typeof a !== 'object' || typeof b !== 'object') return false;
+  if (Array.isArray(a) !== Array.isArray(b)) return false;
+  if (Object.getPrototypeOf(a) !== Object.getPrototypeOf(b)) return false;
+  const ka = Object.keys(a);
+  const kb = Object.keys(b);
+  if (ka.length !== kb.length) return false;
+  for (let i = 0; i < ka.length; i++) {
+    if (ka[i] !== kb[i] || !sameJson((a as Record<string, unknown>)[ka[i]], (b as Record<string, unknown>)[ka[i]])) return false;
+  }
+  return true;
 }
 
 /** True when the body's learning state is, number for number, that of `learner`. */
@@ -599,9 +620,19 @@ function appendRows(body: ModelBody, seen: ModelBody['window'], rows: DataRow[],
   };
 }
 
-/** Observations [drop, n) of a series, sharing its buffers, with `before` as the body states it. */
+/**
+ * Observations [drop, n) of a series, sharing its buffers, with `before` as the body states it
+ * (what `sliceSeries` gives, without summing the dropped values it would then replace).
+ */
 function tailSeries(series: Series, drop: number, before: { count: number; sum: number }): Series {
-  return { ...sliceSeries(series, drop, series.values.length), before };
+  const n = series.values.length;
+  return {
+    ...series,
+    time: series.time.subarray(drop, n),
+    values: series.values.subarray(drop, n),
+    inputs: series.inputs.map((i) => ({ name: i.name, values: i.values.subarray(drop, n) })),
+    before,
+  };
 }
 
 /** The forecast of the model after its window (module comment, step 6). */

@@ -90,14 +90,20 @@ export function learnerFields(model: AssertedState): {
   for (let j = 0; j < active.length; j++) if (active[j]) cols.push(j);
   const k = cols.length;
   const flat = rls.P;
-  const P: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  const P: number[][] = [];
+  for (let i = 0; i < p; i++) P.push(new Array<number>(p).fill(0));
   for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) P[cols[a]][cols[b]] = flat[a * k + b];
+  const theta: number[] = [];
+  const th = learner.theta;
+  for (let j = 0; j < th.length; j++) theta.push(th[j]);
+  const se: number[] = [];
+  for (let j = 0; j < model.se.length; j++) se.push(Number.isFinite(model.se[j]) ? model.se[j] : 0);
   return {
     model: {
       structure: structure.spec,
       terms: [...structure.terms],
-      theta: Array.from(learner.theta),
-      se: Array.from(model.se, (v) => (Number.isFinite(v) ? v : 0)),
+      theta,
+      se,
       P,
       lambda: rls.lambda,
       sigma2: learner.sigma2,

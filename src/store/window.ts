@@ -61,19 +61,20 @@ export function extendWindow(window: HistoryWindow, rows: Iterable<DataRow>, inp
   }
   // Each column: its old entries then the new ones, less the `drop` oldest (as many as appending
   // would push the time column beyond capacity).
-  const m = added.length;
-  const drop = Math.max(0, window.time.length + m - window.capacity);
-  const appended = (old: readonly number[], fresh: (row: DataRow) => number): number[] => {
-    const fromOld = Math.min(drop, old.length);
-    const out = old.slice(fromOld);
-    for (let k = drop - fromOld; k < m; k++) out.push(fresh(added[k]));
-    return out;
-  };
-  const time = appended(window.time, (row) => row.time);
-  const values = appended(window.values, (row) => row.value);
+  const drop = Math.max(0, window.time.length + added.length - window.capacity);
+  const time = appended(window.time, added, drop, (row) => row.time);
+  const values = appended(window.values, added, drop, (row) => row.value);
   const inputs: Record<string, number[]> = {};
-  inputNames.forEach((name, j) => (inputs[name] = appended(window.inputs[name] ?? [], (row) => row.inputs[j])));
+  inputNames.forEach((name, j) => (inputs[name] = appended(window.inputs[name] ?? [], added, drop, (row) => row.inputs[j])));
   return { capacity: window.capacity, time, values, inputs };
+}
+
+/** `old` then `fresh` of each row, less the `drop` oldest entries. */
+function appended(old: readonly number[], rows: readonly DataRow[], drop: number, fresh: (row: DataRow) => number): number[] {
+  const fromOld = Math.min(drop, old.length);
+  const out = old.slice(fromOld);
+  for (let k = drop - fromOld; k < rows.length; k++) out.push(fresh(rows[k]));
+  return out;
 }
 
 function checkCapacity(capacity: number): void {
