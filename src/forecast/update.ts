@@ -47,7 +47,8 @@
  *    and then the new ones: it covers every row certa was given, in the order given.
  * 6. A forecast from the updated model: horizon from the options, else the model's
  *    `meta.horizon`, else two seasons (8 without a season); levels likewise (default 80, 95);
- *    future inputs held at their last values (or `options.future`); intervals by
+ *    future inputs by the same default policy as `certa forecast` (future.ts: repeat the last
+ *    season for a seasonal series, else hold the last values) or `options.future`; intervals by
  *    forecastWithIntervals (intervals.ts) with the learner's σ̂², σ̂²P and, for simulation
  *    intervals, the one-step residuals of the current θ over the window.
  *
