@@ -11,29 +11,27 @@ export type AggregatorName = 'sum' | 'mean' | 'last' | 'min' | 'max';
 
 export const AGGREGATOR_NAMES: readonly AggregatorName[] = ['sum', 'mean', 'last', 'min', 'max'];
 
+/** Sum and count of the non-missing (non-NaN) values in [from, to). */
+function finiteSum(values: ArrayLike<number>, from: number, to: number): { s: number; n: number } {
+  let s = 0;
+  let n = 0;
+  for (let i = from; i < to; i++) {
+    const v = values[i];
+    if (v === v) {
+      s += v;
+      n++;
+    }
+  }
+  return { s, n };
+}
+
 export const aggregators: Record<AggregatorName, Aggregator> = {
   sum(values, from, to) {
-    let s = 0;
-    let n = 0;
-    for (let i = from; i < to; i++) {
-      const v = values[i];
-      if (v === v) {
-        s += v;
-        n++;
-      }
-    }
+    const { s, n } = finiteSum(values, from, to);
     return n > 0 ? s : NaN;
   },
   mean(values, from, to) {
-    let s = 0;
-    let n = 0;
-    for (let i = from; i < to; i++) {
-      const v = values[i];
-      if (v === v) {
-        s += v;
-        n++;
-      }
-    }
+    const { s, n } = finiteSum(values, from, to);
     return n > 0 ? s / n : NaN;
   },
   last(values, from, to) {

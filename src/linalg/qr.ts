@@ -123,18 +123,8 @@ export class QrFactorization {
     const n = this.rows;
     if (y.length !== n) throw new RangeError(`qtMul: vector length ${y.length}, expected ${n}`);
     if (out !== y) out.set(y);
-    const a = this.qrData;
     const m = Math.min(n, this.cols);
-    for (let k = 0; k < m; k++) {
-      const t = this.tau[k];
-      if (t === 0) continue;
-      const off = k * n;
-      let s = out[k];
-      for (let i = k + 1; i < n; i++) s += a[off + i] * out[i];
-      s *= t;
-      out[k] -= s;
-      for (let i = k + 1; i < n; i++) out[i] -= s * a[off + i];
-    }
+    for (let k = 0; k < m; k++) this.reflect(k, out);
     return out;
   }
 
@@ -143,19 +133,23 @@ export class QrFactorization {
     const n = this.rows;
     if (v.length !== n) throw new RangeError(`qMul: vector length ${v.length}, expected ${n}`);
     if (out !== v) out.set(v);
-    const a = this.qrData;
     const m = Math.min(n, this.cols);
-    for (let k = m - 1; k >= 0; k--) {
-      const t = this.tau[k];
-      if (t === 0) continue;
-      const off = k * n;
-      let s = out[k];
-      for (let i = k + 1; i < n; i++) s += a[off + i] * out[i];
-      s *= t;
-      out[k] -= s;
-      for (let i = k + 1; i < n; i++) out[i] -= s * a[off + i];
-    }
+    for (let k = m - 1; k >= 0; k--) this.reflect(k, out);
     return out;
+  }
+
+  /** Applies reflection k, H_k = I − τ_k v_k v_kᵀ (v_k stored below the diagonal, v_k[k] = 1), to `out` in place. */
+  private reflect(k: number, out: Float64Array): void {
+    const t = this.tau[k];
+    if (t === 0) return;
+    const n = this.rows;
+    const a = this.qrData;
+    const off = k * n;
+    let s = out[k];
+    for (let i = k + 1; i < n; i++) s += a[off + i] * out[i];
+    s *= t;
+    out[k] -= s;
+    for (let i = k + 1; i < n; i++) out[i] -= s * a[off + i];
   }
 
   /**
