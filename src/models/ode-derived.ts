@@ -248,7 +248,8 @@ export function odeDerived(spec: OdeSpec, terms: string[], theta: Float64Array, 
     out.push({ name: 'share adopted', value: n > 0 ? x[n - 1] / m : 0, note: 'cumulative so far / m' });
     // Launch time: where the Bass curve F(t) = (1 − e^{−(p+q)t})/(1 + (q/p)e^{−(p+q)t}) equals
     // X_0/m, i.e. t_0 = −ln((1 − F)/(1 + F·q/p))/(p + q) before the start of the first period.
-    const F0 = spec.initialCumulative / m;
+    // On a later window of the series the cumulative level at its start includes what came before.
+    const F0 = (spec.initialCumulative + (ctx.series.before?.sum ?? 0)) / m;
     if (p > 0 && q >= 0 && F0 >= 0 && F0 < 1) {
       const elapsed = -Math.log((1 - F0) / (1 + (F0 * q) / p)) / (p + q);
       const at = dateAt(ctx.series, peak - elapsed);

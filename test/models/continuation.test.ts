@@ -88,4 +88,19 @@ describe('structures continue on a window with series.before', () => {
     // summation order differs (X₀ + Σ before, then the window), so agreement to rounding
     compare(s, full, 80, theta, 1e-12);
   });
+
+  it('Bass-type diffusion: the derived peak date is the same from a later window as from the whole series', () => {
+    // Closed-form Bass adoption (Bass 1969), p = 0.03, q = 0.38, m = 10,000, noise-free, 60 months.
+    const p = 0.03;
+    const q = 0.38;
+    const F = (t: number) => (1 - Math.exp(-(p + q) * t)) / (1 + (q / p) * Math.exp(-(p + q) * t));
+    const y = Float64Array.from({ length: 60 }, (_, t) => 10_000 * (F(t + 1) - F(t)));
+    const full = makeSeries(y, {});
+    const s = odeStructure({ state: 'cumulative', powers: [0, 1, 2] });
+    const theta = s.estimate(full, 1, 60).theta;
+    const peak = (series: Series) => s.derived(theta, series).find((d) => d.name === 'peak date')?.value;
+    expect(peak(full)).toBeDefined();
+    expect(peak(sliceSeries(full, 20, 60))).toBe(peak(full));
+  });
 });
+
