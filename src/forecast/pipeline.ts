@@ -63,8 +63,11 @@ export interface ForecastRun {
   search: SearchResult;
   evaluation: Backtest | null;
   asserted: AssertedModel;
-  /** One-step fitted values on the original scale over the estimation sample of the refit. */
-  fitted: { index: Int32Array; values: Float64Array };
+  /**
+   * One-step fitted values on the original scale over the estimation sample of the refit, and the
+   * one-step residuals on the scoring scale (z − ẑ, the ones intervals resample).
+   */
+  fitted: { index: Int32Array; values: Float64Array; residuals: Float64Array };
   forecast: { times: Float64Array; paths: ForecastPaths; inputs: FutureInputs; combination: Combination | null };
   warnings: string[];
 }
@@ -188,7 +191,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
       derived: structure.derived(estimate.theta, series),
       learner,
     },
-    fitted: { index, values: fittedValues },
+    fitted: { index, values: fittedValues, residuals },
     forecast: { times, paths, inputs, combination },
     warnings,
   };

@@ -80,18 +80,22 @@ function harmonicTable(cols: HarmonicColumn[], K: number, s: number): Float64Arr
 
 const harmonicTables = new Map<string, Float64Array>();
 
+/** What both fillers need: season s, harmonic column count m and the tabulated values (s × m). */
+function layout(d: DeterministicTerms): { s: number; m: number; table: Float64Array; intercept: boolean; trend: boolean } {
+  const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
+  const s = d.season ?? 1;
+  const m = cols.length;
+  const table = m > 0 ? harmonicTable(cols, d.harmonics, s) : new Float64Array(0);
+  return { s, m, table, intercept: d.intercept, trend: d.trend };
+}
+
 /**
  * A filler writing the deterministic values at time t into `out` from `offset`; returns the
  * number of values written. The harmonic values depend only on t mod s, so they are tabulated
  * (s rows, once per K and s), and filling a row costs no sin/cos evaluation.
  */
 export function deterministicFiller(d: DeterministicTerms): (t: number, out: Float64Array, offset: number) => number {
-  const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
-  const s = d.season ?? 1;
-  const m = cols.length;
-  const table = m > 0 ? harmonicTable(cols, d.harmonics, s) : new Float64Array(0);
-  const intercept = d.intercept;
-  const trend = d.trend;
+  const { s, m, table, intercept, trend } = layout(d);
   return (t, out, offset) => {
     let j = offset;
     if (intercept) out[j++] = 1;
@@ -110,12 +114,7 @@ export function deterministicFiller(d: DeterministicTerms): (t: number, out: Flo
  * column.
  */
 export function deterministicRowsFiller(d: DeterministicTerms): (t0: number, rows: number, out: Float64Array, stride: number, offset: number) => void {
-  const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
-  const s = d.season ?? 1;
-  const m = cols.length;
-  const table = m > 0 ? harmonicTable(cols, d.harmonics, s) : new Float64Array(0);
-  const intercept = d.intercept;
-  const trend = d.trend;
+  const { s, m, table, intercept, trend } = layout(d);
   return (t0, rows, out, stride, offset) => {
     let j = offset;
     if (intercept) {

@@ -349,18 +349,33 @@ export function historyChart(input: HistoryChartInput): Buffer {
   if (input.fitted !== undefined) {
     datasets.push(lineDataset('fitted', points(input.time, input.fitted, f), palette.fitted, { dash: [7, 4], order: 0 }));
   }
-  const styles = datasets.map(lineLegend);
-  const { first, last } = finiteBounds(input.time);
   const marker = input.holdoutStart === undefined ? null : axisValue(input.holdoutStart, f);
+  return renderTimeLines(input, datasets, datasets.map(lineLegend), finiteBounds(input.time), marker, width, height);
+}
+
+/**
+ * Renders line datasets on a calendar time axis with the chart frame (title, subtitle, legend),
+ * the value axis titled from `text`, and, when `marker` is given, the dashed holdout marker with
+ * the part after it shaded. Shared by the history, forecast and holdout charts.
+ */
+function renderTimeLines(
+  text: ChartText & { frequency: Frequency },
+  datasets: ChartDataset<'line', Point[]>[],
+  styles: ReturnType<typeof lineLegend>[],
+  bounds: { first: number; last: number },
+  marker: number | null,
+  width: number,
+  height: number,
+): Buffer {
   const config: ChartConfiguration = {
     type: 'line',
     data: { datasets },
     options: {
       layout: LAYOUT,
-      plugins: frame(input.title, input.subtitle, styles),
-      scales: { x: timeScale(first, last, f, width), y: valueScale(valueTitle(input)) },
+      plugins: { ...frame(text.title, text.subtitle, styles), filler: { propagate: false } },
+      scales: { x: timeScale(bounds.first, bounds.last, text.frequency, width), y: valueScale(valueTitle(text)) },
     },
-    plugins: [markerPlugin(marker, 'holdout', true)],
+    plugins: marker === null ? [] : [markerPlugin(marker, 'holdout', true)],
   } as ChartConfiguration;
   return renderChart(config, width, height);
 }
@@ -404,17 +419,7 @@ export function forecastChart(input: ForecastChartInput): Buffer {
     datasets.push({ ...lineDataset('', lower, color, { width: 0, order }), fill: false });
     styles.push({ kind: 'rect', color }, NO_LEGEND);
   });
-  const { first, last } = finiteBounds(input.history.time, input.forecast.time);
-  const config: ChartConfiguration = {
-    type: 'line',
-    data: { datasets },
-    options: {
-      layout: LAYOUT,
-      plugins: { ...frame(input.title, input.subtitle, styles), filler: { propagate: false } },
-      scales: { x: timeScale(first, last, f, width), y: valueScale(valueTitle(input)) },
-    },
-  } as ChartConfiguration;
-  return renderChart(config, width, height);
+  return renderTimeLines(input, datasets, styles, finiteBounds(input.history.time, input.forecast.time), null, width, height);
 }
 
 /**
@@ -435,20 +440,8 @@ export function holdoutChart(input: HoldoutChartInput): Buffer {
     const color = palette.cycle[i % palette.cycle.length];
     datasets.push(lineDataset(fcast.label, points(input.time, fcast.values, f), color, { dash: dashes[i % dashes.length], points: showPoints(input.time.length), order: 0 }));
   });
-  const styles = datasets.map(lineLegend);
-  const { first, last } = finiteBounds(input.context?.time ?? [], input.time);
   const marker = input.context !== undefined && input.time.length > 0 ? axisValue(input.time[0], f) : null;
-  const config: ChartConfiguration = {
-    type: 'line',
-    data: { datasets },
-    options: {
-      layout: LAYOUT,
-      plugins: frame(input.title, input.subtitle, styles),
-      scales: { x: timeScale(first, last, f, width), y: valueScale(valueTitle(input)) },
-    },
-    plugins: [markerPlugin(marker, 'holdout', true)],
-  } as ChartConfiguration;
-  return renderChart(config, width, height);
+  return renderTimeLines(input, datasets, datasets.map(lineLegend), finiteBounds(input.context?.time ?? [], input.time), marker, width, height);
 }
 
 function shorten(name: string, max: number): string {

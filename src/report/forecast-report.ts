@@ -6,7 +6,6 @@
 import { formatTime, type Frequency } from '../data/calendar.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
-import { forward } from '../models/transforms.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
 import { candidatesCsv } from './candidates.js';
@@ -210,14 +209,12 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
     criterion: criterionLabel(run.search.criterion),
     candidates: run.search.ranking.filter((c) => c.status === 'fitted').map((c) => ({ name: c.label, delta: c.delta })),
   });
-  const z = forward(asserted.structure.transform, series.values);
-  const resid = Float64Array.from(run.fitted.index, (t, i) => z[t] - forward(asserted.structure.transform, Float64Array.of(run.fitted.values[i]))[0]);
   out['residuals.png'] = residualChart({
     title: `${title}: one-step residuals${asserted.structure.transform === 'log' ? ' (log scale)' : ''}`,
     subtitle: run.search.winner.whiteness.pValue !== undefined ? `Ljung–Box p = ${fmt(run.search.winner.whiteness.pValue)}` : undefined,
     frequency: f,
     time: Float64Array.from(run.fitted.index, (t) => series.time[t]),
-    residuals: resid,
+    residuals: run.fitted.residuals,
     season: series.season,
   });
   return out;
