@@ -1,38 +1,62 @@
 /**
- * Forecast combination by Akaike weights: instead of trusting the single best structure when the
- * evidence is close, the point forecast is the weighted mean of the candidates' forecasts,
+ * Forecast combination: instead of trusting the single best structure, the point forecast is a
+ * weighted mean of candidates' forecasts, weighted at two levels.
  *
- *   F̄_{n+k} = Σ_i w_i F^{(i)}_{n+k} / Σ_i w_i,   w_i = exp(−Δ_i/2) / Σ_j exp(−Δ_j/2),
+ * Within a family, by Akaike weights (Burnham & Anderson, "Model Selection and Multimodel
+ * Inference", 2nd ed., 2002, §2.9 weights, §4.2.1 eq. 4.1 model-averaged predictions):
  *
- * with Δ_i the candidate's distance to the best criterion value on the search's common sample
- * (Burnham & Anderson, "Model Selection and Multimodel Inference", 2nd ed., 2002, §4.2.1,
- * eq. 4.1 on model-averaged predictions; Akaike weights §2.9).
+ *   F^{(f)}_{n+k} = Σ_{i∈f} w_i F^{(i)}_{n+k},   w_i = exp(−Δ_i/2) / Σ_{j∈f} exp(−Δ_j/2),
  *
- * Members: fitted candidates in ranking order while their cumulative weight is below `mass`
- * (default 0.99), at most `maxMembers` (default 30). A member whose simulated path is not finite
- * or explodes is left out and the others' weights renormalised; when only the winner is left the
- * result is the winner's forecast. Explodes: |F_{n+k} − y_n| > k·R for some step k, with R the
- * range (max − min) of the history — a path that moves, per step, more than the series has
- * moved in all its history (`isExplosivePath`).
+ * with Δ_i the candidate's distance to its family's best criterion value on the search's common
+ * sample. Across families, with equal weights: F̄_{n+k} = (1/G) Σ_f F^{(f)}_{n+k} over the G
+ * families that delivered a forecast.
+ *
+ * Why two levels. The criterion compares one-step predictions on the estimation sample; among
+ * structures of one family (nested lags, terms switched on and off) that is the evidence the
+ * criterion was made for. Between families that describe the series differently — a level that
+ * returns to a fitted line or curve (ARX, ODE) against a change carried on from the last value
+ * (damped.ts) — a better one-step fit is a weak guide to which extrapolates better over a
+ * horizon, and which of them does depends on the series; equal weights over structurally
+ * different forecasts are the robust choice there (Clemen, "Combining forecasts: A review and
+ * annotated bibliography", IJF 5, 1989; Stock & Watson, "Combination forecasts of output growth
+ * in a seven-country data set", J. Forecasting 23, 2004: simple averages are hard to beat;
+ * Makridakis & Hibon 2000: combinations outperform the methods combined). `across: 'evidence'`
+ * gives instead one Akaike weighting over all candidates of all families.
+ *
+ * Members: in each family, its fitted candidates in ranking order while their cumulative
+ * (within-family) weight is below `mass` (default 0.99), at most `maxMembers` (default 30) per
+ * family. When the search's winner uses inputs, only candidates that use inputs are members:
+ * averaging in structures blind to the inputs would dilute the effect the evidence gives them,
+ * and a forecast under user-given future inputs would answer them only in part.
+ *
+ * A member whose simulated path is not finite or explodes is left out and the others in its
+ * family renormalised; a family left without members drops out of the mean. Explodes:
+ * |F_{n+k} − y_n| > k·R for some step k, with R the range (max − min) of the history — a path
+ * that moves, per step, more than the series has moved in all its history (`isExplosivePath`).
  *
  * Cost: one simulation of h steps per member.
  */
 import type { Series } from '../data/series.js';
 import type { CandidateResult } from '../select/search.js';
 import type { Estimate, Structure } from '../models/structure.js';
+import { akaikeWeights } from '../select/criteria.js';
 
 export interface CombineOptions {
-  /** Cumulative Akaike weight the members cover (default 0.99). */
+  /** Cumulative Akaike weight the members of a family cover (default 0.99). */
   mass?: number;
-  /** Most members (default 30). */
+  /** Most members per family (default 30). */
   maxMembers?: number;
+  /** Weights across families: equal (default), or one Akaike weighting over all candidates ('evidence'). */
+  across?: 'equal' | 'evidence';
 }
 
-export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30 } as const;
+export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'equal' } as const;
 
 export interface CombinationMember {
   key: string;
-  /** Akaike weight in the search. */
+  /** The group the member is weighted in: its family, or 'all' when weighting by evidence across families. */
+  group: string;
+  /** Akaike weight within its group. */
   weight: number;
   /** Weight in the combination after renormalisation (0 when left out). */
   share: number;
@@ -44,42 +68,69 @@ export interface CombinationMember {
 export interface Combination {
   point: Float64Array;
   members: CombinationMember[];
+  /** Groups that delivered a forecast, each weighted 1/groups. */
+  groups: number;
+}
+
+export interface Member {
+  result: CandidateResult;
+  structure: Structure;
+  estimate: Estimate;
+  /** The group it is weighted in and its Akaike weight there. */
+  group: string;
+  weight: number;
+}
+
+/** True when a structure's regressors include an input of the series (its spec lists inputs). */
+export function usesInputs(structure: Structure): boolean {
+  const inputs = (structure.spec as { inputs?: unknown }).inputs;
+  return Array.isArray(inputs) && inputs.length > 0;
 }
 
 /**
- * The members of a combination from a search ranking (best first), with their estimates.
- * `refit`, when given, re-estimates a member (e.g. on all data after a holdout search).
+ * The members of a combination from a search ranking (best first, fitted ones first), with
+ * their estimates, groups and within-group weights (see the file comment).
  */
-export function combinationMembers(
-  ranking: readonly CandidateResult[],
-  options: CombineOptions = {},
-): { result: CandidateResult; structure: Structure; estimate: Estimate }[] {
+export function combinationMembers(ranking: readonly CandidateResult[], options: CombineOptions = {}): Member[] {
   const mass = options.mass ?? COMBINE_DEFAULTS.mass;
   const most = options.maxMembers ?? COMBINE_DEFAULTS.maxMembers;
-  const out: { result: CandidateResult; structure: Structure; estimate: Estimate }[] = [];
-  let covered = 0;
-  for (const r of ranking) {
-    if (r.status !== 'fitted' || !r.estimate) continue;
-    if (out.length >= most || (out.length > 0 && covered >= mass)) break;
-    out.push({ result: r, structure: r.structure, estimate: r.estimate });
-    covered += r.weight;
+  const across = options.across ?? COMBINE_DEFAULTS.across;
+  let fitted = ranking.filter((r) => r.status === 'fitted' && r.estimate !== undefined);
+  if (fitted.length > 0 && usesInputs(fitted[0].structure)) fitted = fitted.filter((r) => usesInputs(r.structure));
+  const groups = new Map<string, CandidateResult[]>();
+  for (const r of fitted) {
+    const g = across === 'equal' ? r.family : 'all';
+    const list = groups.get(g);
+    if (list) list.push(r);
+    else groups.set(g, [r]);
+  }
+  const out: Member[] = [];
+  for (const [group, list] of groups) {
+    const weights = akaikeWeights(list.map((r) => r.score));
+    let covered = 0;
+    for (let i = 0; i < list.length; i++) {
+      if (i >= most || (i > 0 && covered >= mass)) break;
+      const r = list[i];
+      out.push({ result: r, structure: r.structure, estimate: r.estimate as Estimate, group, weight: weights[i] });
+      covered += weights[i];
+    }
   }
   return out;
 }
 
 /**
- * Weighted mean of the members' h-step point forecasts from the end of `history` (see the file
- * comment). `simulate(structure, estimate)` returns a member's point forecast; `history`, when
- * given, the observed values the forecast continues, for the explosion check.
+ * The two-level weighted mean of the members' h-step point forecasts from the end of `history`
+ * (see the file comment). `simulate(structure, estimate)` returns a member's point forecast;
+ * `history`, when given, the observed values the forecast continues, for the explosion check.
  */
 export function combineForecasts(
-  members: readonly { result: CandidateResult; structure: Structure; estimate: Estimate }[],
+  members: readonly Member[],
   h: number,
   simulate: (structure: Structure, estimate: Estimate) => Float64Array,
   history?: ArrayLike<number>,
 ): Combination {
   const used: CombinationMember[] = [];
-  let total = 0;
+  const totals = new Map<string, number>();
   for (const m of members) {
     let forecast: Float64Array;
     let excluded: string | undefined;
@@ -91,23 +142,24 @@ export function combineForecasts(
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
     }
-    used.push({ key: m.result.key, weight: m.result.weight, share: 0, forecast, ...(excluded ? { excluded } : {}) });
-    if (!excluded) total += m.result.weight;
+    used.push({ key: m.result.key, group: m.group, weight: m.weight, share: 0, forecast, ...(excluded ? { excluded } : {}) });
+    if (!excluded && m.weight > 0) totals.set(m.group, (totals.get(m.group) ?? 0) + m.weight);
   }
   const point = new Float64Array(h);
-  if (!(total > 0)) {
+  const groups = totals.size;
+  if (groups === 0) {
     point.fill(NaN);
-    return { point, members: used };
+    return { point, members: used, groups };
   }
   for (const m of used) {
-    if (m.excluded) continue;
-    m.share = m.weight / total;
+    if (m.excluded || !(m.weight > 0)) continue;
+    m.share = m.weight / (totals.get(m.group) as number) / groups;
     for (let k = 0; k < h; k++) point[k] += m.share * m.forecast[k];
   }
-  return { point, members: used };
+  return { point, members: used, groups };
 }
 
-/** Convenience: the combination of a ranking's members simulated from `history` without inputs. */
+/** Convenience: the combination of a ranking's members simulated from `history`, inputs held at their last values. */
 export function combineRanking(ranking: readonly CandidateResult[], history: Series, h: number, options: CombineOptions = {}): Combination {
   const future = history.inputs.map((i) => new Float64Array(h).fill(i.values[i.values.length - 1]));
   return combineForecasts(combinationMembers(ranking, options), h, (s, e) => s.simulate(e.theta, history, future, h), history.values);

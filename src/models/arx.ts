@@ -26,6 +26,7 @@ import { forward, inverse, isStrictlyPositive, transformedName } from './transfo
 import { deterministicFiller, deterministicNames, deterministicRowsFiller, maxHarmonics, type DeterministicTerms } from './terms.js';
 import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
+import { linearEquation } from './equation.js';
 
 export interface ArxInputSpec {
   /** Input name, as in `series.inputs`. */
@@ -154,13 +155,6 @@ let sharedRows = new Float64Array(0);
 /** out[r·p + col] = x[first + r] for r < rows: one lagged column of a row-major Φ. */
 function laggedColumn(out: Float64Array, p: number, col: number, rows: number, x: Float64Array, first: number): void {
   for (let r = 0, o = col; r < rows; r++, o += p) out[o] = x[first + r];
-}
-
-function fmt(x: number): string {
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  if (a >= 1e-3 && a < 1e6) return String(Number(x.toPrecision(4)));
-  return x.toExponential(3);
 }
 
 function inputValues(series: Series, name: string): Float64Array {
@@ -427,16 +421,7 @@ export class ArxStructure implements Structure {
   }
 
   describe(theta: Float64Array, se?: Float64Array): string {
-    const lhs = `${diffPrefix(this.spec)}${transformedName(this.transform, 'y')}[t]`;
-    const parts: string[] = [];
-    for (let j = 0; j < this.terms.length; j++) {
-      const c = theta[j];
-      const mag = fmt(Math.abs(c)) + (se ? ` (±${fmt(se[j])})` : '');
-      const sign = c < 0 ? '−' : '+';
-      const body = this.terms[j] === 'const' ? mag : `${mag}·${this.terms[j]}`;
-      parts.push(j === 0 ? (c < 0 ? `−${body}` : body) : `${sign} ${body}`);
-    }
-    return `${lhs} = ${parts.join(' ')} + e[t]`;
+    return linearEquation(`${diffPrefix(this.spec)}${transformedName(this.transform, 'y')}[t]`, this.terms, theta, se);
   }
 
   /** Dynamic coefficients: the AR lags and the seasonal lag. */

@@ -135,7 +135,7 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
       inputs: run.forecast.inputs.source,
       point: pointSource(run),
       combination: run.forecast.combination
-        ? run.forecast.combination.members.map((m) => ({ key: m.key, weight: m.weight, share: m.share, excluded: m.excluded ?? null }))
+        ? run.forecast.combination.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, share: m.share, excluded: m.excluded ?? null }))
         : null,
       rows: Array.from(run.forecast.times, (t, j) => {
         const row: Record<string, unknown> = { time: formatTime(t, f), point: run.forecast.paths.point[j] };
@@ -309,7 +309,11 @@ export function pointSource(run: ForecastRun): string {
   const used = c ? c.members.filter((m) => !m.excluded) : [];
   if (!c || used.length === 0 || (used.length === 1 && used[0].key === run.asserted.structure.key)) return 'point from the asserted equation';
   const own = used.find((m) => m.key === run.asserted.structure.key);
-  return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
+  const share = `the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
+  if (c.groups > 1 && used.every((m) => m.group !== 'all')) {
+    return `point = mean over ${c.groups} model families of their Akaike-weighted candidates' forecasts (${used.length} candidates), ${share}`;
+  }
+  return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, ${share}`;
 }
 
 function pad(cells: string[], widths: number[]): string {

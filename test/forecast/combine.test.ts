@@ -3,7 +3,8 @@ import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { search } from '../../src/select/search.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { combinationMembers, combineForecasts, combineRanking, isExplosivePath } from '../../src/forecast/combine.js';
+import { combinationMembers, combineForecasts, combineRanking, isExplosivePath, usesInputs } from '../../src/forecast/combine.js';
+import { akaikeWeights } from '../../src/select/criteria.js';
 
 function series(values: number[]): Series {
   return {
@@ -33,7 +34,7 @@ describe('combinationMembers', () => {
     const members = combinationMembers(found.ranking, { mass: 0.9 });
     expect(members[0].result.key).toBe(found.winner.result.key);
     let before = 0;
-    for (let i = 0; i < members.length - 1; i++) before += members[i].result.weight;
+    for (let i = 0; i < members.length - 1; i++) before += members[i].weight;
     expect(before).toBeLessThan(0.9);
     expect(members.length).toBeLessThanOrEqual(found.fitted);
   });
@@ -53,9 +54,9 @@ describe('combineForecasts', () => {
 
   it('is the weight-normalised mean of the members’ forecasts', () => {
     const c = combineForecasts(members, 2, (s, e) => s.simulate(e.theta, noisy, [], 2), noisy.values);
-    const total = members.reduce((a, m) => a + m.result.weight, 0);
+    const total = members.reduce((a, m) => a + m.weight, 0);
     for (let k = 0; k < 2; k++) {
-      const want = members.reduce((a, m) => a + (m.result.weight / total) * m.structure.simulate(m.estimate.theta, noisy, [], 2)[k], 0);
+      const want = members.reduce((a, m) => a + (m.weight / total) * m.structure.simulate(m.estimate.theta, noisy, [], 2)[k], 0);
       expect(c.point[k]).toBeCloseTo(want, 10);
     }
     expect(c.members.reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 12);
@@ -76,8 +77,65 @@ describe('combineForecasts', () => {
   });
 });
 
+describe('two-level weights: Akaike weights within a family, equal weights across families', () => {
+  const found = search(noisy, { families: ['arx', 'damped'] });
+
+  it('weights each family’s candidates by Akaike weights over that family alone', () => {
+    const members = combinationMembers(found.ranking, { mass: 1, maxMembers: 1000 });
+    for (const family of ['arx', 'damped']) {
+      const mine = members.filter((m) => m.group === family);
+      const all = found.ranking.filter((r) => r.status === 'fitted' && r.family === family);
+      expect(mine.map((m) => m.result.key)).toEqual(all.map((r) => r.key));
+      const want = akaikeWeights(all.map((r) => r.score));
+      mine.forEach((m, i) => expect(m.weight).toBeCloseTo(want[i], 12));
+    }
+  });
+
+  it('gives each family half of the combination, so the point is the mean of the two family forecasts', () => {
+    const c = combineRanking(found.ranking, noisy, 3);
+    expect(c.groups).toBe(2);
+    const familyPoint = (family: string) => {
+      const own = combineRanking(found.ranking.filter((r) => r.family === family), noisy, 3);
+      expect(own.groups).toBe(1);
+      return own.point;
+    };
+    const arx = familyPoint('arx');
+    const damped = familyPoint('damped');
+    for (let k = 0; k < 3; k++) expect(c.point[k]).toBeCloseTo((arx[k] + damped[k]) / 2, 10);
+    for (const family of ['arx', 'damped']) {
+      expect(c.members.filter((m) => m.group === family).reduce((a, m) => a + m.share, 0)).toBeCloseTo(0.5, 12);
+    }
+  });
+
+  it('with across: evidence uses one Akaike weighting over all candidates', () => {
+    const members = combinationMembers(found.ranking, { across: 'evidence', mass: 1, maxMembers: 1000 });
+    expect(new Set(members.map((m) => m.group))).toEqual(new Set(['all']));
+    members.forEach((m) => expect(m.weight).toBeCloseTo(m.result.weight, 12));
+  });
+
+  it('drops a family whose every member is left out, and the other takes the whole weight', () => {
+    const members = combinationMembers(found.ranking);
+    const c = combineForecasts(members, 2, (s, e) => (s.family === 'damped' ? Float64Array.of(NaN, NaN) : s.simulate(e.theta, noisy, [], 2)), noisy.values);
+    expect(c.groups).toBe(1);
+    expect(c.members.filter((m) => m.group === 'arx').reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 12);
+  });
+
+  it('when the winner uses inputs, combines only candidates that use inputs', () => {
+    const r = createRng(3);
+    const u = Array.from({ length: 60 }, () => r.normal());
+    const y = Array.from({ length: 60 }, (_, t) => 20 + 4 * (t > 0 ? u[t - 1] : 0) + 0.2 * r.normal());
+    const s: Series = { ...series(y), inputs: [{ name: 'u', values: Float64Array.from(u) }] };
+    const withInputs = search(s, { families: ['arx', 'damped'] });
+    expect(usesInputs(withInputs.winner.structure)).toBe(true);
+    const members = combinationMembers(withInputs.ranking);
+    expect(members.length).toBeGreaterThan(0);
+    expect(members.every((m) => usesInputs(m.structure))).toBe(true);
+    expect(members.some((m) => m.group === 'damped')).toBe(false);
+  });
+});
+
 describe('forecastSeries with combination', () => {
-  it('by default forecasts the Akaike-weighted mean and moves the bands with it; combine: false keeps the winner’s path', () => {
+  it('by default forecasts the combination and moves the bands with it; combine: false keeps the winner’s path', () => {
     const own = forecastSeries(noisy, { holdout: 0, horizon: 4, combine: false });
     const mixed = forecastSeries(noisy, { holdout: 0, horizon: 4 });
     expect(own.forecast.combination).toBeNull();

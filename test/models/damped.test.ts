@@ -5,6 +5,7 @@ import { createRng } from '../../src/linalg/random.js';
 import { DampedStructure, dampedFamily } from '../../src/models/damped.js';
 import { structureFromSpec } from '../../src/models/registry.js';
 import { search } from '../../src/select/search.js';
+import { BASELINES } from '../../src/evaluate/baselines.js';
 
 function series(values: ArrayLike<number>): Series {
   return { name: 'y', frequency: 'index', season: null, time: Float64Array.from(values, (_, i) => i), values: Float64Array.from(values), inputs: [] };
@@ -71,16 +72,81 @@ describe('DampedStructure', () => {
 });
 
 describe('search with the damped family', () => {
-  it('ranks the damped trend first on a long damped-trend series among the damped candidates', () => {
+  it('ranks the damped trend first on a long damped-trend series among the change structures without drift', () => {
     const s = series(dampedPath(0.7, 200, 11, 0.3));
-    const r = search(s, { families: ['damped'], transform: 'none' });
+    const r = search(s, { families: ['damped'], transform: 'none', trend: 'off' });
     expect(r.winner.result.key).toBe('damped|phi');
     expect(r.ranking.map((c) => c.key).sort()).toEqual(['damped|phi', 'damped|rw']);
   });
 
-  it('offers only the random walk when maxAr is 0', () => {
+  it('offers the random walk with and without drift when maxAr is 0', () => {
     const s = series(dampedPath(0.7, 30, 5));
     const r = search(s, { families: ['damped'], transform: 'none', maxAr: 0 });
-    expect(r.ranking.map((c) => c.key)).toEqual(['damped|rw']);
+    expect(r.ranking.map((c) => c.key).sort()).toEqual(['damped|rw', 'damped|rw|drift']);
+  });
+
+  it('on a seasonal series offers each harmonic count with and without drift and damping', () => {
+    const values = Array.from({ length: 40 }, (_, t) => 50 + t + [3, -1, -4, 2][t % 4]);
+    const s: Series = { ...series(values), frequency: 'quarterly', season: 4 };
+    const r = search(s, { families: ['damped'], transform: 'none' });
+    expect(r.ranking.length).toBe(3 * 2 * 2);
+    expect(r.ranking.map((c) => c.key)).toContain('damped|phi|drift|K2s4');
+  });
+});
+
+describe('the change family with drift and harmonics', () => {
+  const drift = new DampedStructure({ family: 'damped', damped: false, drift: true, transform: 'none' });
+
+  // Analytic identity: least squares of Δy on a constant is the mean change (y_n − y_1)/(n − 1),
+  // so the random walk with drift forecasts y_n + k·(y_n − y_1)/(n − 1), the drift method of
+  // Hyndman & Athanasopoulos (2021), §5.2, which baselines.ts implements independently.
+  it('as a random walk with drift forecasts the drift method’s straight line', () => {
+    const rng = createRng(21);
+    const values = Array.from({ length: 25 }, (_, t) => 40 + 1.5 * t + 3 * rng.normal());
+    const s = series(values);
+    const e = drift.estimate(s, 1, 25);
+    expect(e.theta[0]).toBeCloseTo((values[24] - values[0]) / 24, 12);
+    const f = drift.simulate(e.theta, s, [], 5);
+    const want = BASELINES.drift(s.values, 5, null);
+    for (let k = 0; k < 5; k++) expect(f[k]).toBeCloseTo(want[k], 10);
+    expect(drift.describe(e.theta)).toMatch(/^Δy\[t\] = [0-9.]+ \+ e\[t\]$/);
+    expect(drift.derived(e.theta, s).find((d) => d.name === 'long-run change')?.value).toBeCloseTo(e.theta[0], 12);
+  });
+
+  // Analytic identity: for y_t = a + b·t + S(t mod 4) the change Δy_t = b + ΔS is periodic, and
+  // two harmonic pairs span every period-4 pattern (terms.ts), so the fit is exact and the
+  // forecast continues the series without error.
+  it('with a full set of harmonics continues a trend plus a quarterly pattern exactly', () => {
+    const pattern = [3, -1, -4, 2];
+    const y = (t: number) => 50 + 0.8 * t + pattern[t % 4];
+    const s: Series = { ...series(Array.from({ length: 20 }, (_, t) => y(t))), frequency: 'quarterly', season: 4 };
+    const st = new DampedStructure({ family: 'damped', damped: false, drift: true, harmonics: 2, season: 4, transform: 'none' });
+    const e = st.estimate(s, 1, 20);
+    expect(e.sigma2).toBeLessThan(1e-20);
+    const f = st.simulate(e.theta, s, [], 9);
+    for (let k = 0; k < 9; k++) expect(f[k]).toBeCloseTo(y(20 + k), 9);
+    // A later window that knows how many points came before continues the same pattern.
+    const window: Series = { ...s, time: s.time.subarray(7), values: s.values.subarray(7), before: { count: 7, sum: 0 } };
+    const g = st.simulate(e.theta, window, [], 9);
+    for (let k = 0; k < 9; k++) expect(g[k]).toBeCloseTo(f[k], 9);
+  });
+
+  it('with damping and drift relaxes the change to c/(1 − φ)', () => {
+    const st = new DampedStructure({ family: 'damped', damped: true, drift: true, transform: 'none' });
+    const s = series([0, 10, 20]);
+    const f = st.simulate(Float64Array.of(0.5, 1), s, [], 60);
+    expect(f[0]).toBeCloseTo(20 + 0.5 * 10 + 1, 12);
+    expect(f[59] - f[58]).toBeCloseTo(1 / (1 - 0.5), 9);
+    expect(st.derived(Float64Array.of(0.5, 1), s).find((d) => d.name === 'long-run change')?.value).toBeCloseTo(2, 12);
+  });
+
+  it('keeps the keys of structures without drift or harmonics, and refuses harmonics it cannot form', () => {
+    expect(new DampedStructure({ family: 'damped', damped: true, transform: 'log' }).key).toBe('damped|phi|log');
+    const full = new DampedStructure({ family: 'damped', damped: true, drift: true, harmonics: 1, season: 12, transform: 'log' });
+    expect(full.key).toBe('damped|phi|drift|K1s12|log');
+    expect(structureFromSpec(full.spec).key).toBe(full.key);
+    expect(() => new DampedStructure({ family: 'damped', damped: false, harmonics: 1, transform: 'none' })).toThrow(/season/);
+    expect(() => new DampedStructure({ family: 'damped', damped: false, harmonics: 3, season: 4, transform: 'none' })).toThrow(/harmonics/);
+    expect(() => new DampedStructure({ family: 'damped', damped: false, drift: 'yes', transform: 'none' })).toThrow(UsageError);
   });
 });
