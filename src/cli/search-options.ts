@@ -12,7 +12,7 @@ import { SEARCH_DEFAULTS, type SearchOptions } from '../select/search.js';
 export function addSearchOptions(command: Command): Command {
   const d = SEARCH_DEFAULTS;
   return command
-    .option('--max-ar <n>', `largest number of AR lags (default: min(${d.maxAr}, n/10), at least 1, for a series of n points)`)
+    .option('--max-ar <n>', `largest number of AR lags (default: min(${d.maxAr}, n/10), at least 1, for a series of n points; 0 also drops damping from the change family)`)
     .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
     .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
     .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
@@ -20,7 +20,7 @@ export function addSearchOptions(command: Command): Command {
     .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
     .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
     .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')
-    .option('--trend <how>', 'linear trend term: on, off or auto (default auto: with and without)')
+    .option('--trend <how>', 'linear trend term (in the change family: drift): on, off or auto (default auto: with and without)')
     .option('--seasonal-lag <how>', 'seasonal lag y[t-s]: on, off or auto (default off)')
     .option('--differencing <how>', 'none, first, seasonal or auto (default none)');
 }

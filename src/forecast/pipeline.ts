@@ -6,13 +6,14 @@
  * Defaults: horizon = two seasons (8 periods without a season); holdout = the smaller of two
  * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
  * 80 and 95 %; forgetting λ = 1; future inputs repeat their last season (seasonal series) or
- * are held at their last values, unless given; the point forecast combines the top candidates
- * by Akaike weights (combine.ts; `combine: false` keeps the asserted structure's own path).
+ * are held at their last values, unless given; the point forecast combines the leading
+ * candidates, by Akaike weights within each family and with equal weights across families
+ * (combine.ts; `combine: false` keeps the asserted structure's own path).
  *
  * Combination. The asserted structure stays the single winner (its equation, refit, online
- * learner and holdout evaluation are unchanged); only the final point forecast is the
- * Akaike-weighted mean of the leading candidates' forecasts, each refitted on all data, and the
- * winner's interval bands are moved by the same amount at each step (their widths kept).
+ * learner and holdout evaluation are unchanged); only the final point forecast is the combined
+ * mean of the leading candidates' forecasts, each refitted on all data, and the winner's
+ * interval bands are moved by the same amount at each step (their widths kept).
  */
 import type { Series } from '../data/series.js';
 import { sliceSeries } from '../data/series.js';
@@ -38,7 +39,7 @@ export interface ForecastOptions {
   /** Future inputs for the final forecast (from a file); overrides `inputPolicy`. */
   future?: (history: Series, h: number, times: number[]) => FutureInputs;
   intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean };
-  /** Point forecast combined over the top candidates by Akaike weights (default on); false = the winner's path. */
+  /** Point forecast combined over the leading candidates (combine.ts; default on); false = the winner's path. */
   combine?: CombineOptions | false;
 }
 
@@ -200,7 +201,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
 /**
  * The forecast certa delivers from the end of `history`: the asserted structure's simulation with
  * its interval bands (intervals.ts) and, unless combining is off, the point replaced by the
- * Akaike-weighted combination of the leading candidates (combine.ts) with the bands moved by the
+ * combination of the leading candidates (combine.ts) with the bands moved by the
  * same amount at each step (their widths kept). `alone` is the asserted structure's own forecast
  * when it differs from the delivered one. The same function serves the holdout's fixed origin and
  * the final forecast, so the evaluation scores exactly what is delivered.
