@@ -2,10 +2,11 @@
  * The change family: structures for the period-to-period change of the series rather than its
  * level. With z_t = g(y_t) the scoring-scale target (transforms.ts) and Δz_t = z_t − z_{t−1},
  *
- *   Δz_t = φ·Δz_{t−1} + c + Σ_{k=1}^{K} (α_k sin(2πkt/s) + β_k cos(2πkt/s)) + e_t,
+ *   Δz_t = Σ_{i=1}^{p} φ_i·Δz_{t−i} + c + Σ_{k=1}^{K} (α_k sin(2πkt/s) + β_k cos(2πkt/s)) + e_t,
  *
  * each part optional:
- * - φ (damping): the last change carries on, shrinking by φ each period. Without drift or
+ * - φ (damping): the last change carries on, shrinking by φ each period (with p lags,
+ *   Σ_{i=1}^{p} φ_i Δz_{t−i}: ARIMA(p,1,0)). With one lag and without drift or
  *   harmonics the k-step forecast is z_n + Δz_n·(φ + φ² + … + φ^k), a local trend damped
  *   towards a flat line that levels off at z_n + Δz_n·φ/(1 − φ): the damped trend of Gardner &
  *   McKenzie ("Forecasting trends in time series", Management Science 31(10), 1985, 1237–1246)
@@ -14,7 +15,7 @@
  * - c (drift): a constant change per period. With φ = 0 the structure is the random walk with
  *   drift z_t = z_{t−1} + c + e_t, whose forecast is z_n + k·c with c the mean change over the
  *   sample (Box et al. 2015, §4.1, ARIMA(0,1,0) with constant; Hyndman & Athanasopoulos 2021,
- *   §5.2 "drift method"). With φ the change relaxes to the steady drift c/(1 − φ).
+ *   §5.2 "drift method"). With damping the change relaxes to the steady drift c/(1 − Σφ_i).
  * - harmonics: a periodic mean of the change (terms.ts), so a seasonal series' change carries
  *   its seasonal pattern; the level then repeats the pattern on top of the carried trend.
  * With none of them the structure is the random walk z_t = z_{t−1} + e_t, which has no
@@ -24,7 +25,7 @@
  * forecast returns to), these structures carry the series on from where it ends; the drift is
  * the only deterministic part of the trend and it is estimated from the changes themselves.
  *
- * Term names: `Δy[t-1]` or `Δln y[t-1]`, `const`, `sin(2π·1·t/4)` … . Inputs are not used.
+ * Term names: `Δy[t-1]`, `Δln y[t-2]`, `const`, `sin(2π·1·t/4)` … . Inputs are not used.
  * Time t counts from the first observation ever seen (terms.ts), so harmonics continue across
  * stored windows.
  */
@@ -36,12 +37,15 @@ import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
 import { deterministicFiller, deterministicNames, maxHarmonics, type DeterministicTerms } from './terms.js';
 import { linearEquation } from './equation.js';
+import { isStableRecursion, spectralRadius } from './roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 
 export interface DampedSpec extends StructureSpec {
   family: 'damped';
-  /** Estimate φ (true), or fix φ = 0 (false). */
+  /** Carry the last changes on: estimate AR coefficients of the change (true), or none (false). */
   damped: boolean;
+  /** Number p of AR lags of the change when damped (absent = 1). */
+  lags?: number;
   /** A constant change per period (absent = false). */
   drift?: boolean;
   /** Harmonic pairs K of the change (absent = 0); needs `season`. */
@@ -63,10 +67,14 @@ export function validateDampedSpec(spec: StructureSpec): DampedSpec {
   if (s.family !== 'damped') bad('family', '"damped"');
   if (typeof s.damped !== 'boolean') bad('damped', 'true or false');
   if (s.drift !== undefined && typeof s.drift !== 'boolean') bad('drift', 'true or false');
+  const lags = s.lags ?? 1;
+  if (!Number.isInteger(lags) || lags < 1 || lags > 24) bad('lags', 'a whole number from 1 to 24');
+  if (s.lags !== undefined && s.damped !== true) bad('lags', 'absent unless damped is true');
   if (s.transform !== 'none' && s.transform !== 'log') bad('transform', 'none or log');
   const K = s.harmonics ?? 0;
   if (!Number.isInteger(K) || K < 0) bad('harmonics', 'a whole number ≥ 0');
   const out: DampedSpec = { family: 'damped', damped: s.damped as boolean, transform: s.transform as Transform };
+  if (s.damped === true && lags > 1) out.lags = lags;
   if (s.drift === true) out.drift = true;
   if (K > 0) {
     const season = s.season;
@@ -87,9 +95,8 @@ export class DampedStructure implements Structure {
   readonly history: number;
   readonly transform: Transform;
   private readonly deterministic: DeterministicTerms;
-  /** Index of φ in θ (−1 when not estimated) and of the first deterministic coefficient. */
-  private readonly phiAt: number;
-  private readonly detAt: number;
+  /** AR lags p of the change (0 = none); their coefficients come first in θ, then the deterministic ones. */
+  readonly lags: number;
 
   constructor(specIn: StructureSpec) {
     const spec = validateDampedSpec(specIn);
@@ -97,17 +104,17 @@ export class DampedStructure implements Structure {
     this.transform = spec.transform;
     const K = spec.harmonics ?? 0;
     this.deterministic = { intercept: spec.drift === true, trend: false, harmonics: K, season: spec.season ?? null };
-    this.phiAt = spec.damped ? 0 : -1;
-    this.detAt = spec.damped ? 1 : 0;
-    this.terms = [...(spec.damped ? [`Δ${transformedName(spec.transform, 'y')}[t-1]`] : []), ...deterministicNames(this.deterministic)];
-    this.history = spec.damped ? 2 : 1;
-    const parts = ['damped', spec.damped ? 'phi' : 'rw'];
+    this.lags = spec.damped ? (spec.lags ?? 1) : 0;
+    const dz = `Δ${transformedName(spec.transform, 'y')}`;
+    this.terms = [...Array.from({ length: this.lags }, (_, i) => `${dz}[t-${i + 1}]`), ...deterministicNames(this.deterministic)];
+    this.history = this.lags + 1;
+    const parts = ['damped', spec.damped ? (this.lags > 1 ? `phi${this.lags}` : 'phi') : 'rw'];
     if (spec.drift) parts.push('drift');
     if (K > 0) parts.push(`K${K}s${spec.season}`);
     if (spec.transform === 'log') parts.push('log');
     this.key = parts.join('|');
     this.label =
-      (spec.damped ? 'damped trend' : 'random walk') +
+      (spec.damped ? `damped trend${this.lags > 1 ? `, change lags 1-${this.lags}` : ''}` : 'random walk') +
       (spec.drift ? ' with drift' : '') +
       (K > 0 ? `, ${K} seasonal harmonic${K > 1 ? 's' : ''}` : '') +
       (spec.transform === 'log' ? ', log' : '');
@@ -138,8 +145,8 @@ export class DampedStructure implements Structure {
       const t = start + r;
       index[r] = t;
       y[r] = z[t] - z[t - 1];
-      if (this.phiAt >= 0) phi.data[r * p + this.phiAt] = z[t - 1] - z[t - 2];
-      fill(origin + t, phi.data, r * p + this.detAt);
+      for (let i = 1; i <= this.lags; i++) phi.data[r * p + i - 1] = z[t - i] - z[t - i - 1];
+      fill(origin + t, phi.data, r * p + this.lags);
     }
     return { index, y, phi };
   }
@@ -171,32 +178,34 @@ export class DampedStructure implements Structure {
     };
   }
 
-  private phi(theta: Float64Array): number {
-    return this.phiAt >= 0 ? theta[this.phiAt] : 0;
+  /** The AR coefficients of the change, by lag (index i = lag i + 1). */
+  arPolynomial(theta: Float64Array): Float64Array {
+    return theta.slice(0, this.lags);
   }
 
   /** The deterministic part of the change at time t (drift plus harmonics), from θ. */
   private deterministicChange(theta: Float64Array): (t: number) => number {
-    const m = this.terms.length - this.detAt;
+    const m = this.terms.length - this.lags;
     if (m === 0) return () => 0;
     const fill = deterministicFiller(this.deterministic);
     const row = new Float64Array(m);
     return (t) => {
       fill(t, row, 0);
       let s = 0;
-      for (let j = 0; j < m; j++) s += theta[this.detAt + j] * row[j];
+      for (let j = 0; j < m; j++) s += theta[this.lags + j] * row[j];
       return s;
     };
   }
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
     const z = this.scale(series, series.values);
-    const phi = this.phi(theta);
     const det = this.deterministicChange(theta);
     const origin = series.before?.count ?? 0;
     const out = new Float64Array(Math.max(0, to - from)).fill(NaN);
     for (let t = Math.max(from, this.history); t < to; t++) {
-      out[t - from] = z[t - 1] + (this.phiAt >= 0 ? phi * (z[t - 1] - z[t - 2]) : 0) + det(origin + t);
+      let change = det(origin + t);
+      for (let i = 1; i <= this.lags; i++) change += theta[i - 1] * (z[t - i] - z[t - i - 1]);
+      out[t - from] = z[t - 1] + change;
     }
     return out;
   }
@@ -210,14 +219,18 @@ export class DampedStructure implements Structure {
       });
     }
     const z = this.scale(series, series.values);
-    const phi = this.phi(theta);
     const det = this.deterministicChange(theta);
     const origin = series.before?.count ?? 0;
+    const p = this.lags;
+    // recent[i] = the change i + 1 periods back, newest first.
+    const recent = Float64Array.from({ length: p }, (_, i) => z[n - 1 - i] - z[n - 2 - i]);
     let level = z[n - 1];
-    let change = this.phiAt >= 0 ? z[n - 1] - z[n - 2] : 0;
     const out = new Float64Array(h);
     for (let k = 0; k < h; k++) {
-      change = phi * change + det(origin + n + k) + (shocks ? shocks[k] : 0);
+      let change = det(origin + n + k) + (shocks ? shocks[k] : 0);
+      for (let i = 0; i < p; i++) change += theta[i] * recent[i];
+      for (let i = p - 1; i > 0; i--) recent[i] = recent[i - 1];
+      if (p > 0) recent[0] = change;
       level += change;
       out[k] = inverse(this.transform, level);
     }
@@ -229,27 +242,34 @@ export class DampedStructure implements Structure {
   }
 
   /**
-   * Derived quantities: with φ, the `damping factor`, `stable` (|φ| < 1) and for 0 < φ < 1 the
-   * trend's `half-life` ln 0.5 / ln φ (periods for the carried-on change to halve); with drift,
-   * the `long-run change` c/(1 − φ) per period (on the log scale, as a growth rate e^{c/(1−φ)} − 1).
+   * Derived quantities: with one lag, the `damping factor` φ and for 0 < φ < 1 the trend's
+   * `half-life` ln 0.5 / ln φ (periods for the carried-on change to halve); with more lags, the
+   * `spectral radius` of the change's recursion; `stable` (the carried-on change dies out: every
+   * characteristic root inside the unit circle); with drift, the `long-run change` c/(1 − Σφ)
+   * per period (on the log scale, as a growth rate e^{c/(1−Σφ)} − 1).
    */
   derived(theta: Float64Array, series: Series): Derived[] {
     void series;
-    const phi = this.phi(theta);
+    const a = this.arPolynomial(theta);
     const out: Derived[] = [];
-    if (this.phiAt >= 0 || !this.spec.drift) {
-      out.push(
-        { name: 'damping factor', value: phi, note: this.spec.damped ? 'share of the last change carried into the next period' : 'random walk: no change carried on' },
-        { name: 'stable', value: Math.abs(phi) < 1, note: '|φ| < 1: the carried-on change dies out' },
-      );
+    const stable = isStableRecursion(a);
+    if (this.lags <= 1 && !(this.lags === 0 && this.spec.drift)) {
+      const phi = this.lags === 1 ? a[0] : 0;
+      out.push({ name: 'damping factor', value: phi, note: this.spec.damped ? 'share of the last change carried into the next period' : 'random walk: no change carried on' });
+      out.push({ name: 'stable', value: stable, note: '|φ| < 1: the carried-on change dies out' });
       if (phi > 0 && phi < 1) out.push({ name: 'half-life', value: Math.log(0.5) / Math.log(phi), unit: 'periods', note: 'the carried-on change halves' });
+    } else if (this.lags > 1) {
+      out.push({ name: 'spectral radius', value: spectralRadius(a), note: 'largest modulus of the characteristic roots of the change recursion' });
+      out.push({ name: 'stable', value: stable, note: 'all roots inside the unit circle: the carried-on change dies out' });
     }
-    if (this.spec.drift && Math.abs(phi) < 1) {
-      const c = theta[this.detAt] / (1 - phi);
+    if (this.spec.drift && stable) {
+      let sum = 0;
+      for (const v of a) sum += v;
+      const c = theta[this.lags] / (1 - sum);
       out.push(
         this.transform === 'log'
-          ? { name: 'long-run growth', value: Math.exp(c) - 1, unit: 'per period', note: 'e^{c/(1−φ)} − 1: the steady relative change' }
-          : { name: 'long-run change', value: c, unit: 'per period', note: 'c/(1 − φ): the steady change' },
+          ? { name: 'long-run growth', value: Math.exp(c) - 1, unit: 'per period', note: 'e^{c/(1−Σφ)} − 1: the steady relative change' }
+          : { name: 'long-run change', value: c, unit: 'per period', note: 'c/(1 − Σφ): the steady change' },
       );
     }
     return out;
@@ -259,8 +279,8 @@ export class DampedStructure implements Structure {
 /**
  * The change-family candidates, in a fixed order: for each scoring transform, each number of
  * harmonic pairs the bounds allow, each drift alternative (the bounds' trend alternatives: the
- * drift is this family's trend), the random walk and then, when the bounds allow at least one AR
- * lag (maxAr ≥ 1), the damped form.
+ * drift is this family's trend), the random walk and then the damped forms with 1 … maxAr AR
+ * lags of the change.
  */
 export function dampedCandidates(series: Series, bounds: CandidateBounds): Structure[] {
   const positive = isStrictlyPositive(series.values);
@@ -272,7 +292,7 @@ export function dampedCandidates(series: Series, bounds: CandidateBounds): Struc
       for (const drift of bounds.trend) {
         const base = { family: 'damped', transform, ...(drift ? { drift: true } : {}), ...(K > 0 ? { harmonics: K, season: bounds.season as number } : {}) };
         out.push(new DampedStructure({ ...base, damped: false }));
-        if (bounds.maxAr >= 1) out.push(new DampedStructure({ ...base, damped: true }));
+        for (let p = 1; p <= bounds.maxAr; p++) out.push(new DampedStructure({ ...base, damped: true, ...(p > 1 ? { lags: p } : {}) }));
       }
     }
   }
@@ -283,6 +303,6 @@ export const dampedFamily: FamilyDefinition = {
   name: 'damped',
   candidates: dampedCandidates,
   fromSpec: (spec) => new DampedStructure(spec),
-  dynamicMask: (structure) => structure.terms.map((_, j) => j === 0 && (structure as DampedStructure).spec.damped),
-  stable: (structure, theta) => !(structure as DampedStructure).spec.damped || Math.abs(theta[0]) < 1,
+  dynamicMask: (structure) => structure.terms.map((_, j) => j < (structure as DampedStructure).lags),
+  stable: (structure, theta) => isStableRecursion((structure as DampedStructure).arPolynomial(theta)),
 };

@@ -74,7 +74,7 @@ describe('DampedStructure', () => {
 describe('search with the damped family', () => {
   it('ranks the damped trend first on a long damped-trend series among the change structures without drift', () => {
     const s = series(dampedPath(0.7, 200, 11, 0.3));
-    const r = search(s, { families: ['damped'], transform: 'none', trend: 'off' });
+    const r = search(s, { families: ['damped'], transform: 'none', trend: 'off', maxAr: 1 });
     expect(r.winner.result.key).toBe('damped|phi');
     expect(r.ranking.map((c) => c.key).sort()).toEqual(['damped|phi', 'damped|rw']);
   });
@@ -88,7 +88,7 @@ describe('search with the damped family', () => {
   it('on a seasonal series offers each harmonic count with and without drift and damping', () => {
     const values = Array.from({ length: 40 }, (_, t) => 50 + t + [3, -1, -4, 2][t % 4]);
     const s: Series = { ...series(values), frequency: 'quarterly', season: 4 };
-    const r = search(s, { families: ['damped'], transform: 'none' });
+    const r = search(s, { families: ['damped'], transform: 'none', maxAr: 1 });
     expect(r.ranking.length).toBe(3 * 2 * 2);
     expect(r.ranking.map((c) => c.key)).toContain('damped|phi|drift|K2s4');
   });
@@ -148,5 +148,55 @@ describe('the change family with drift and harmonics', () => {
     expect(() => new DampedStructure({ family: 'damped', damped: false, harmonics: 1, transform: 'none' })).toThrow(/season/);
     expect(() => new DampedStructure({ family: 'damped', damped: false, harmonics: 3, season: 4, transform: 'none' })).toThrow(/harmonics/);
     expect(() => new DampedStructure({ family: 'damped', damped: false, drift: 'yes', transform: 'none' })).toThrow(UsageError);
+  });
+});
+
+describe('the change family with several lags of the change', () => {
+  const two = new DampedStructure({ family: 'damped', damped: true, lags: 2, transform: 'none' });
+
+  // Simulated ARIMA(2,1,0): Δz_t = 0.5·Δz_{t−1} + 0.3·Δz_{t−2} + e_t, coefficients known.
+  it('recovers the two AR coefficients of a simulated change within three standard errors', () => {
+    const rng = createRng(17);
+    const z = new Float64Array(600);
+    let d1 = 0;
+    let d2 = 0;
+    for (let t = 1; t < z.length; t++) {
+      const d = 0.5 * d1 + 0.3 * d2 + rng.normal();
+      z[t] = z[t - 1] + d;
+      d2 = d1;
+      d1 = d;
+    }
+    const e = two.estimate(series(z), 3, z.length);
+    expect(Math.abs(e.theta[0] - 0.5)).toBeLessThan(3 * e.se[0]);
+    expect(Math.abs(e.theta[1] - 0.3)).toBeLessThan(3 * e.se[1]);
+  });
+
+  it('simulates the recursion on the last two changes and names its terms by lag', () => {
+    const s = series([0, 1, 3]);
+    // Δ = 2, then 1: next changes 0.5·2 + 0.25·1 = 1.25, then 0.5·1.25 + 0.25·2 = 1.125.
+    const f = two.simulate(Float64Array.of(0.5, 0.25), s, [], 2);
+    expect(f[0]).toBeCloseTo(4.25, 12);
+    expect(f[1]).toBeCloseTo(5.375, 12);
+    expect(two.terms).toEqual(['Δy[t-1]', 'Δy[t-2]']);
+    expect(two.key).toBe('damped|phi2');
+    expect(structureFromSpec(two.spec).key).toBe('damped|phi2');
+  });
+
+  // Stability from the characteristic roots: x² − 0.5x − 0.3 has roots ≈ 0.85 and −0.35 (inside);
+  // x² − 0.7x − 0.4 has a root ≈ 1.08 (outside).
+  it('is stable exactly when the roots of the change recursion lie inside the unit circle', () => {
+    expect(dampedFamily.stable?.(two, Float64Array.of(0.5, 0.3))).toBe(true);
+    expect(dampedFamily.stable?.(two, Float64Array.of(0.7, 0.4))).toBe(false);
+    expect(two.derived(Float64Array.of(0.5, 0.3), series([0, 1, 2])).find((d) => d.name === 'spectral radius')?.value).toBeCloseTo(
+      (0.5 + Math.sqrt(0.25 + 1.2)) / 2,
+      9,
+    );
+  });
+
+  it('offers 1 … maxAr lags and refuses lags on a random walk', () => {
+    const s = series(dampedPath(0.5, 60, 9));
+    const keys = search(s, { families: ['damped'], transform: 'none', trend: 'off', maxAr: 3 }).ranking.map((c) => c.key);
+    expect(keys.sort()).toEqual(['damped|phi', 'damped|phi2', 'damped|phi3', 'damped|rw']);
+    expect(() => new DampedStructure({ family: 'damped', damped: false, lags: 2, transform: 'none' })).toThrow(UsageError);
   });
 });
