@@ -29,8 +29,9 @@
  * averaging in structures blind to the inputs would dilute the effect the evidence gives them,
  * and a forecast under user-given future inputs would answer them only in part.
  *
- * A member whose simulated path is not finite or explodes is left out and the others in its
- * family renormalised; a family left without members drops out of the mean. Explodes:
+ * A member whose simulated path is not finite, explodes, or falls to zero or below on a series
+ * that has always been positive (`leavesPositive`) is left out and the others in its family
+ * renormalised; a family left without members drops out of the mean. Explodes:
  * |F_{n+k} − y_n| > k·R for some step k, with R the range (max − min) of the history — a path
  * that moves, per step, more than the series has moved in all its history (`isExplosivePath`).
  *
@@ -138,6 +139,7 @@ export function combineForecasts(
       forecast = simulate(m.structure, m.estimate);
       if (!forecast.every(Number.isFinite)) excluded = 'non-finite forecast';
       else if (history && isExplosivePath(history, forecast)) excluded = 'explosive simulated path';
+      else if (history && leavesPositive(history, forecast)) excluded = 'path falls to zero or below on a series that has always been positive';
     } catch (e) {
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
@@ -183,5 +185,19 @@ export function isExplosivePath(history: ArrayLike<number>, forecast: ArrayLike<
   const range = max - min;
   const last = history[n - 1];
   for (let k = 1; k <= forecast.length; k++) if (!(Math.abs(forecast[k - 1] - last) <= k * range)) return true;
+  return false;
+}
+
+/**
+ * True when a forecast path falls to zero or below although every value of the history is
+ * positive: counts, sales and registrations that have never been zero do not turn negative, and a
+ * structure that says so has extrapolated past what it learnt (a level or diffusion curve run
+ * beyond its data, usually). Series with a zero or negative value in their history are never
+ * refused by this check.
+ * @example leavesPositive([3, 2, 1], [0.5, -0.2]) === true; leavesPositive([3, 0, 1], [-1]) === false
+ */
+export function leavesPositive(history: ArrayLike<number>, forecast: ArrayLike<number>): boolean {
+  for (let t = 0; t < history.length; t++) if (!(history[t] > 0)) return false;
+  for (let k = 0; k < forecast.length; k++) if (!(forecast[k] > 0)) return true;
   return false;
 }

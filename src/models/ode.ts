@@ -3,7 +3,8 @@
  * side is linear in θ over a library of terms:
  *   - powers of the state x^p for chosen p ∈ {0, 1, 2, 3} (p = 0 is the constant term `1`);
  *   - inputs u_j entering linearly (term named after the input);
- *   - seasonal harmonic pairs sin(2π·k·τ/s), cos(2π·k·τ/s) (terms.ts conventions).
+ *   - seasonal harmonic pairs sin(2π·k·τ/s), cos(2π·k·τ/s) (terms.ts conventions, except the
+ *     sine is kept at k = s/2: `odeHarmonics`).
  *
  * The state x is either the series level (x_t = y_t, term names `y`, `y^2`, ...) or its
  * cumulative sum (x_t = X_0 + Σ_{s≤t} y_s, names `X`, `X^2`, ...), so per-period sales become the
@@ -25,7 +26,10 @@
  * Estimation (integral form, trapezoid rule). Integrating the ODE over one sampling interval
  * and approximating the integral by the trapezoid rule gives one regression row per t ≥ 1:
  *   x_t − x_{t−1} = Σ_k θ_k · (dt/2)·(φ_k(τ_{t−1}, x_{t−1}, u_{t−1}) + φ_k(τ_t, x_t, u_t)),
- * so `Regression.y` holds the increments and Φ the trapezoid-integrated library terms. The
+ * so `Regression.y` holds the increments and Φ the trapezoid-integrated library terms; the
+ * seasonal harmonics, known functions of time, enter by their exact integrals over the interval
+ * instead (which is what lets the half-season term of an even season be fitted at all:
+ * `odeHarmonics`). The
  * integral form avoids differentiating noisy data (Dattner & Klaassen 2015, Electronic Journal
  * of Statistics 9:1939–1973 — volume and pages from memory — integral estimators for ODEs
  * linear in parameters). It is solved by
@@ -52,7 +56,7 @@ import { equilibria } from './ode-roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 import { rk4Polynomial } from './rk4.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
-import { deterministicNames, maxHarmonics } from './terms.js';
+import { maxHarmonics } from './terms.js';
 import { isStrictlyPositive } from './transforms.js';
 
 export type OdeState = 'level' | 'cumulative';
@@ -180,40 +184,62 @@ export function odeStructure(options: OdeOptions): Structure {
 }
 
 /**
- * Seasonal harmonics at a continuous time τ (base periods): sin(2πkτ/s), cos(2πkτ/s) for
- * k = 1…K in the column order and naming of terms.ts (the sine of k = s/2 left out, since it
- * vanishes at every sample). RK4 evaluates them between samples, so they are computed from τ
- * reduced modulo s rather than tabulated at whole periods. The values depend only on the reduced
- * τ, which repeats from season to season, so each filler (one per K and s, shared by every
- * structure) remembers the values it computed for up to HARMONIC_MEMORY reduced times and copies
- * them on the next request: the same numbers, without the sines and cosines.
+ * The seasonal harmonics of the ODE family: sin(2πkτ/s), cos(2πkτ/s) for k = 1…K at a
+ * continuous time τ (base periods), in the column order of terms.ts, except at k = s/2 (even s),
+ * where the ODE keeps the sine and leaves out the cosine. In discrete time (terms.ts) the sine
+ * of k = s/2 vanishes at every sample and the cosine carries the alternation; in continuous
+ * time the state integrates the forcing over each interval, and the integral of cos(πτ) over a
+ * whole period interval is zero while that of sin(πτ) alternates ±2/π, so the sine is the
+ * term that moves the state. Names follow the same rule (`harmonicTermNames`).
  */
-function harmonicFiller(K: number, season: number | null): (tau: number, out: Float64Array, offset: number) => void {
-  const key = `${K}:${season}`;
+interface OdeHarmonic {
+  omega: number;
+  isSin: boolean;
+}
+
+function odeHarmonics(K: number, season: number | null): OdeHarmonic[] {
+  const out: OdeHarmonic[] = [];
+  if (season === null) return out;
+  for (let k = 1; k <= K; k++) {
+    const omega = (2 * Math.PI * k) / season;
+    out.push({ omega, isSin: true });
+    if (2 * k !== season) out.push({ omega, isSin: false });
+  }
+  return out;
+}
+
+/** Term names of the ODE harmonics (see `odeHarmonics`), written as terms.ts writes them. */
+export function harmonicTermNames(K: number, season: number | null): string[] {
+  return odeHarmonics(K, season).map((h) => `${h.isSin ? 'sin' : 'cos'}(2π·${Math.round((h.omega * (season as number)) / (2 * Math.PI))}·t/${season})`);
+}
+
+/**
+ * A filler of the harmonics at τ, or with `integral` of their antiderivatives
+ * (−cos(ωτ)/ω for a sine, sin(ωτ)/ω for a cosine), whose differences are the exact integrals
+ * over an interval. RK4 evaluates the harmonics between samples, so they are computed from τ
+ * reduced modulo s rather than tabulated at whole periods (both kinds are periodic with period
+ * s). The values depend only on the reduced τ, which repeats from season to season, so each
+ * filler (one per K, s and kind, shared by every structure) remembers the values it computed for
+ * up to HARMONIC_MEMORY reduced times and copies them on the next request: the same numbers,
+ * without the sines and cosines.
+ */
+function harmonicFiller(K: number, season: number | null, integral = false): (tau: number, out: Float64Array, offset: number) => void {
+  const key = `${K}:${season}:${integral}`;
   const known = harmonicFillers.get(key);
   if (known !== undefined) return known;
-  const omega: number[] = [];
-  const isSin: boolean[] = [];
-  if (season !== null) {
-    for (let k = 1; k <= K; k++) {
-      const w = (2 * Math.PI * k) / season;
-      if (2 * k !== season) {
-        omega.push(w);
-        isSin.push(true);
-      }
-      omega.push(w);
-      isSin.push(false);
-    }
-  }
+  const cols = odeHarmonics(K, season);
   const s = season ?? 1;
-  const count = omega.length;
+  const count = cols.length;
   const memory = new Map<number, Float64Array>();
   const filler = (tau: number, out: Float64Array, offset: number): void => {
     const tm = ((tau % s) + s) % s;
     let values = memory.get(tm);
     if (values === undefined) {
       values = new Float64Array(count);
-      for (let c = 0; c < count; c++) values[c] = isSin[c] ? Math.sin(omega[c] * tm) : Math.cos(omega[c] * tm);
+      for (let c = 0; c < count; c++) {
+        const { omega, isSin } = cols[c];
+        values[c] = integral ? (isSin ? -Math.cos(omega * tm) / omega : Math.sin(omega * tm) / omega) : isSin ? Math.sin(omega * tm) : Math.cos(omega * tm);
+      }
       if (memory.size < HARMONIC_MEMORY) memory.set(tm, values);
     }
     for (let c = 0; c < count; c++) out[offset + c] = values[c];
@@ -399,7 +425,7 @@ class OdeStructure implements Structure {
     this.shared = shared;
     this.transform = spec.transform;
     const symbol = stateSymbol(spec.state);
-    this.harmonicNames = deterministicNames({ intercept: false, trend: false, harmonics: spec.harmonics, season: spec.season });
+    this.harmonicNames = harmonicTermNames(spec.harmonics, spec.season);
     this.terms = [...spec.powers.map((p) => powerName(symbol, p)), ...spec.inputs, ...this.harmonicNames];
     const parts = [`ode:${spec.state}:${shapeTag(spec.powers)}`];
     if (spec.inputs.length > 0) parts.push(`in(${spec.inputs.join(',')})`);
@@ -578,9 +604,11 @@ class OdeStructure implements Structure {
     const np = powers.length;
     const ni = cols.length;
     const nh = this.harmonicNames.length;
-    const harm = harmonicFiller(this.spec.harmonics, this.spec.season);
-    // Each entry is (dt/2)·φ(start) + (dt/2)·φ(end). The harmonics at an interval's end are
-    // those at the next interval's start, so they are formed once per observation.
+    const harm = harmonicFiller(this.spec.harmonics, this.spec.season, true);
+    // Each state or input entry is (dt/2)·φ(start) + (dt/2)·φ(end); each harmonic entry is its
+    // exact integral over the interval, H(end) − H(start) with H the antiderivative. The values
+    // at an interval's end are those at the next interval's start, so they are formed once per
+    // observation.
     let ha = new Float64Array(nh);
     let hb = new Float64Array(nh);
     if (nh > 0 && rows > 0) harm(this.tau(lo - 1, dt, origin), ha, 0);
@@ -597,7 +625,7 @@ class OdeStructure implements Structure {
       for (let k = 0; k < ni; k++, j++) d[j] = w * cols[k][t - 1] + w * cols[k][t];
       if (nh > 0) {
         harm(this.tau(t, dt, origin), hb, 0);
-        for (let k = 0; k < nh; k++, j++) d[j] = w * ha[k] + w * hb[k];
+        for (let k = 0; k < nh; k++, j++) d[j] = hb[k] - ha[k];
         const next = ha;
         ha = hb;
         hb = next;

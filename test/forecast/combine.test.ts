@@ -3,7 +3,7 @@ import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { search } from '../../src/select/search.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { combinationMembers, combineForecasts, combineRanking, isExplosivePath, usesInputs } from '../../src/forecast/combine.js';
+import { combinationMembers, combineForecasts, combineRanking, isExplosivePath, leavesPositive, usesInputs } from '../../src/forecast/combine.js';
 import { akaikeWeights } from '../../src/select/criteria.js';
 
 function series(values: number[]): Series {
@@ -25,6 +25,27 @@ describe('isExplosivePath', () => {
     expect(isExplosivePath([1, 2, 3], [4, 5])).toBe(false);
     expect(isExplosivePath([1, 2, 3], [4, 1e6])).toBe(true);
     expect(isExplosivePath([1, 2, 3], [Infinity])).toBe(true);
+  });
+});
+
+describe('leavesPositive', () => {
+  it('refuses a path that reaches zero or below only when the whole history is positive', () => {
+    expect(leavesPositive([3, 2, 1], [0.5, 0.2])).toBe(false);
+    expect(leavesPositive([3, 2, 1], [0.5, -0.2])).toBe(true);
+    expect(leavesPositive([3, 2, 1], [0])).toBe(true);
+    expect(leavesPositive([3, 0, 1], [-1])).toBe(false);
+    expect(leavesPositive([-3, -2], [-5])).toBe(false);
+  });
+
+  it('leaves such a member out of the combination', () => {
+    const found = search(noisy, { families: ['arx'] });
+    const members = combinationMembers(found.ranking, { maxMembers: 3 });
+    const bad = members[1].result.key;
+    const history = [10, 1, 10, 1, 5];
+    const c = combineForecasts(members, 2, (s) => (s.key === bad ? Float64Array.of(4, -1) : Float64Array.of(6, 6)), history);
+    expect(c.members[1].excluded).toMatch(/zero or below/);
+    expect(c.members[1].share).toBe(0);
+    expect(Array.from(c.point)).toEqual([6, 6]);
   });
 });
 

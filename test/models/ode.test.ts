@@ -4,7 +4,7 @@ import { ModelError, UsageError } from '../../src/data/errors.js';
 import { odeCandidates, odeDynamicMask, odeFromSpec, odeStable, odeStructure, samplingInterval } from '../../src/models/ode.js';
 import { structureFromSpec, type CandidateBounds } from '../../src/models/registry.js';
 import type { Derived, Structure } from '../../src/models/structure.js';
-import { deterministicFiller, deterministicNames } from '../../src/models/terms.js';
+import { deterministicNames } from '../../src/models/terms.js';
 
 /** A monthly series starting 2000-01 (optionally with inputs). */
 function monthly(values: ArrayLike<number>, inputs: Record<string, ArrayLike<number>> = {}): Series {
@@ -102,19 +102,45 @@ describe('regression(series, from, to): trapezoid integral rows', () => {
 });
 
 describe('regression: harmonic columns', () => {
-  it('at whole periods equal the trapezoid of the shared seasonal terms (terms.ts) of the ARX family', () => {
+  /** Composite Simpson rule with 2000 panels: an independent numerical integral. */
+  const simpson = (f: (x: number) => number, a: number, b: number): number => {
+    const m = 2000;
+    const h = (b - a) / m;
+    let sum = f(a) + f(b);
+    for (let i = 1; i < m; i++) sum += (i % 2 === 1 ? 4 : 2) * f(a + i * h);
+    return (sum * h) / 3;
+  };
+
+  it('are the exact integrals of the harmonics over each sampling interval (checked by Simpson quadrature)', () => {
     const s = odeStructure({ powers: [1], harmonics: 6, season: 12 });
     const r = s.regression(monthly(Array.from({ length: 20 }, (_, t) => t + 1)), 1, 20);
-    const fill = deterministicFiller({ intercept: false, trend: false, harmonics: 6, season: 12 });
-    const a = new Float64Array(11);
-    const b = new Float64Array(11);
-    expect(s.terms.slice(1)).toEqual(deterministicNames({ intercept: false, trend: false, harmonics: 6, season: 12 }));
+    // Discrete-time names (terms.ts) for k < s/2; at k = s/2 the ODE keeps the sine (see ode.ts).
+    const names = deterministicNames({ intercept: false, trend: false, harmonics: 5, season: 12 });
+    expect(s.terms.slice(1)).toEqual([...names, 'sin(2π·6·t/12)']);
+    const fns = s.terms.slice(1).map((name) => {
+      const [, kind, k] = /^(sin|cos)\(2π·(\d+)·t\/12\)$/.exec(name) as RegExpExecArray;
+      const w = (2 * Math.PI * Number(k)) / 12;
+      return (x: number) => (kind === 'sin' ? Math.sin(w * x) : Math.cos(w * x));
+    });
     for (let row = 0; row < r.phi.rows; row++) {
       const t = r.index[row];
-      fill(t - 1, a, 0);
-      fill(t, b, 0);
-      for (let c = 0; c < 11; c++) expect(r.phi.data[row * 12 + 1 + c]).toBeCloseTo((a[c] + b[c]) / 2, 12);
+      fns.forEach((f, c) => expect(r.phi.data[row * 12 + 1 + c]).toBeCloseTo(simpson(f, t - 1, t), 10));
     }
+  });
+
+  // Analytic identity: ∫_{t−1}^{t} sin(πτ) dτ = 2·(−1)^{t−1}/π, while ∫ cos(πτ) dτ = 0 at every
+  // whole t, so only the sine can carry a quarterly series' alternating half-year pattern.
+  it('identify the half-season term of a quarterly series, which alternates ±2/π', () => {
+    const values = Array.from({ length: 12 }, (_, t) => 10 + (t % 2) + 0.1 * t);
+    const quarterly: Series = { ...monthly(values), frequency: 'quarterly', season: 4, time: Float64Array.from(values, (_, i) => Date.UTC(2000, 3 * i, 1)) };
+    const s = odeStructure({ powers: [0, 1], harmonics: 2, season: 4, selection: 'dense' });
+    expect(s.terms.slice(2)).toEqual(['sin(2π·1·t/4)', 'cos(2π·1·t/4)', 'sin(2π·2·t/4)']);
+    const r = s.regression(quarterly, 1, 12);
+    for (let row = 0; row < r.phi.rows; row++) {
+      const t = r.index[row];
+      expect(r.phi.data[row * 5 + 4]).toBeCloseTo((2 * (-1) ** (t - 1)) / Math.PI, 12);
+    }
+    expect(() => s.estimate(quarterly, 1, 12)).not.toThrow();
   });
 });
 
@@ -174,7 +200,7 @@ describe('estimate: recovery of known equations', () => {
     expect(value(d, 'time constant in years')).toBeCloseTo(value(d, 'time constant') / 12, 12);
   });
 
-  it('seasonally forced relaxation: the harmonic amplitude is recovered within 5 % (trapezoid bias ≈ (ω·dt)²/12 for ω = 2π/12)', () => {
+  it('seasonally forced relaxation: the harmonic amplitude is recovered within 5 % (the state enters by the trapezoid rule, the harmonics exactly)', () => {
     // y' = a + b·y + A·sin ωt + B·cos ωt has the periodic solution a_p + P sin ωt + Q cos ωt with
     // a_p = −a/b, Q = −(b·B + A·ω)/(ω² + b²), P = (b·Q + B)/ω; plus (y0 − a_p − Q)·e^{bt}.
     const a = 5;
