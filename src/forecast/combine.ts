@@ -2,36 +2,45 @@
  * Forecast combination: instead of trusting the single best structure, the point forecast is a
  * weighted mean of candidates' forecasts, weighted at two levels.
  *
- * Within a family, by Akaike weights (Burnham & Anderson, "Model Selection and Multimodel
+ * Groups. A group is one family with its equation on one scale (`groupOf`: `arx`, `arx|log`,
+ * `damped`, `damped|log`, `ode`).
+ *
+ * Within a group, by Akaike weights (Burnham & Anderson, "Model Selection and Multimodel
  * Inference", 2nd ed., 2002, §2.9 weights, §4.2.1 eq. 4.1 model-averaged predictions):
  *
- *   F^{(f)}_{n+k} = Σ_{i∈f} w_i F^{(i)}_{n+k},   w_i = exp(−Δ_i/2) / Σ_{j∈f} exp(−Δ_j/2),
+ *   F^{(g)}_{n+k} = Σ_{i∈g} w_i F^{(i)}_{n+k},   w_i = exp(−Δ_i/2) / Σ_{j∈g} exp(−Δ_j/2),
  *
- * with Δ_i the candidate's distance to its family's best criterion value on the search's common
- * sample. Across families, with equal weights: F̄_{n+k} = (1/G) Σ_f F^{(f)}_{n+k} over the G
- * families that delivered a forecast.
+ * with Δ_i the candidate's distance to its group's best criterion value on the search's common
+ * sample. Across groups, with equal weights: F̄_{n+k} = (1/G) Σ_g F^{(g)}_{n+k} over the G
+ * groups that delivered a forecast and that the evidence has not ruled out: a group whose best
+ * candidate is more than `maxDelta` (default 10) behind the overall best is left out. Beyond
+ * Δ = 10 a model has "essentially no support" (Burnham & Anderson 2002, §2.6 — a rule of thumb
+ * in common practice): equal weights are for descriptions the data cannot tell apart, not for
+ * one they reject.
  *
  * Why two levels. The criterion compares one-step predictions on the estimation sample; among
- * structures of one family (nested lags, terms switched on and off) that is the evidence the
- * criterion was made for. Between families that describe the series differently — a level that
+ * structures of one family on one scale (nested lags, terms switched on and off) that is the
+ * evidence the criterion was made for. Between structurally different descriptions that fit
+ * about as well it is a weak guide to which extrapolates better over a horizon: a level that
  * returns to a fitted line or curve (ARX, ODE) against a change carried on from the last value
- * (damped.ts) — a better one-step fit is a weak guide to which extrapolates better over a
- * horizon, and which of them does depends on the series; equal weights over structurally
- * different forecasts are the robust choice there (Clemen, "Combining forecasts: A review and
- * annotated bibliography", IJF 5, 1989; Stock & Watson, "Combination forecasts of output growth
- * in a seven-country data set", J. Forecasting 23, 2004: simple averages are hard to beat;
- * Makridakis & Hibon 2000: combinations outperform the methods combined). `across: 'evidence'`
- * gives instead one Akaike weighting over all candidates of all families.
+ * (damped.ts); additive changes against compounding ones (the log scale, where a trend is a
+ * constant growth rate). Which of them extrapolates better depends on the series, and equal
+ * weights over structurally different forecasts are the robust choice there (Clemen,
+ * "Combining forecasts: A review and annotated bibliography", IJF 5, 1989; Stock & Watson,
+ * "Combination forecasts of output growth in a seven-country data set", J. Forecasting 23,
+ * 2004: simple averages are hard to beat; Makridakis & Hibon 2000: combinations outperform the
+ * methods combined). `across: 'evidence'` gives instead one Akaike weighting over all
+ * candidates of all groups.
  *
- * Members: in each family, its fitted candidates in ranking order while their cumulative
- * (within-family) weight is below `mass` (default 0.99), at most `maxMembers` (default 30) per
- * family. When the search's winner uses inputs, only candidates that use inputs are members:
+ * Members: in each group, its fitted candidates in ranking order while their cumulative
+ * (within-group) weight is below `mass` (default 0.99), at most `maxMembers` (default 30) per
+ * group. When the search's winner uses inputs, only candidates that use inputs are members:
  * averaging in structures blind to the inputs would dilute the effect the evidence gives them,
  * and a forecast under user-given future inputs would answer them only in part.
  *
  * A member whose simulated path is not finite, explodes, or falls to zero or below on a series
- * that has always been positive (`leavesPositive`) is left out and the others in its family
- * renormalised; a family left without members drops out of the mean. Explodes:
+ * that has always been positive (`leavesPositive`) is left out and the others in its group
+ * renormalised; a group left without members drops out of the mean. Explodes:
  * |F_{n+k} − y_n| > k·R for some step k, with R the range (max − min) of the history — a path
  * that moves, per step, more than the series has moved in all its history (`isExplosivePath`).
  *
@@ -43,19 +52,21 @@ import type { Estimate, Structure } from '../models/structure.js';
 import { akaikeWeights } from '../select/criteria.js';
 
 export interface CombineOptions {
-  /** Cumulative Akaike weight the members of a family cover (default 0.99). */
+  /** Cumulative Akaike weight the members of a group cover (default 0.99). */
   mass?: number;
-  /** Most members per family (default 30). */
+  /** Most members per group (default 30). */
   maxMembers?: number;
-  /** Weights across families: equal (default), or one Akaike weighting over all candidates ('evidence'). */
+  /** Weights across groups (family and scale): equal (default), or one Akaike weighting over all candidates ('evidence'). */
   across?: 'equal' | 'evidence';
+  /** A group whose best candidate is more than this far (Δ criterion) behind the overall best is left out (default 10). */
+  maxDelta?: number;
 }
 
-export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'equal' } as const;
+export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'equal', maxDelta: 10 } as const;
 
 export interface CombinationMember {
   key: string;
-  /** The group the member is weighted in: its family, or 'all' when weighting by evidence across families. */
+  /** The group the member is weighted in (`groupOf`), or 'all' when weighting by evidence across groups. */
   group: string;
   /** Akaike weight within its group. */
   weight: number;
@@ -82,6 +93,17 @@ export interface Member {
   weight: number;
 }
 
+/**
+ * The group a structure is weighted in when groups are weighted equally: its family and the
+ * scale its equation is written on (`Structure.equationScale`, else its scoring scale), e.g.
+ * `arx` or `arx|log`. An ODE scored on the log scale describes the same dynamics as on the
+ * original scale, so both are one group.
+ */
+export function groupOf(structure: Structure): string {
+  const scale = structure.equationScale ?? structure.transform;
+  return scale === 'none' ? structure.family : `${structure.family}|${scale}`;
+}
+
 /** True when a structure's regressors include an input of the series (its spec lists inputs). */
 export function usesInputs(structure: Structure): boolean {
   const inputs = (structure.spec as { inputs?: unknown }).inputs;
@@ -96,17 +118,20 @@ export function combinationMembers(ranking: readonly CandidateResult[], options:
   const mass = options.mass ?? COMBINE_DEFAULTS.mass;
   const most = options.maxMembers ?? COMBINE_DEFAULTS.maxMembers;
   const across = options.across ?? COMBINE_DEFAULTS.across;
+  const maxDelta = options.maxDelta ?? COMBINE_DEFAULTS.maxDelta;
   let fitted = ranking.filter((r) => r.status === 'fitted' && r.estimate !== undefined);
   if (fitted.length > 0 && usesInputs(fitted[0].structure)) fitted = fitted.filter((r) => usesInputs(r.structure));
   const groups = new Map<string, CandidateResult[]>();
   for (const r of fitted) {
-    const g = across === 'equal' ? r.family : 'all';
+    const g = across === 'equal' ? groupOf(r.structure) : 'all';
     const list = groups.get(g);
     if (list) list.push(r);
     else groups.set(g, [r]);
   }
   const out: Member[] = [];
+  const best = fitted.length > 0 ? fitted[0].score : 0;
   for (const [group, list] of groups) {
+    if (list[0].score - best > maxDelta) continue;
     const weights = akaikeWeights(list.map((r) => r.score));
     let covered = 0;
     for (let i = 0; i < list.length; i++) {

@@ -415,6 +415,8 @@ class OdeStructure implements Structure {
   readonly terms: string[];
   readonly history = 1;
   readonly transform: Transform;
+  /** The regression and the dynamics are on the untransformed state whatever the scoring scale. */
+  readonly equationScale: Transform = 'none';
   private readonly harmonicNames: string[];
 
   /** Work shared with the grid's twin of another transform (odeCandidates), if any. */

@@ -82,6 +82,12 @@ export interface Structure {
   /** Past points one row needs. */
   readonly history: number;
   readonly transform: Transform;
+  /**
+   * The scale the equation itself is written on, when it differs from the scoring scale
+   * `transform` (absent: the same). An ODE always describes the untransformed state; its log
+   * variant only scores the same dynamics on the log scale.
+   */
+  readonly equationScale?: Transform;
 
   /** Regression rows for time indices t in [from, to) (those the structure can form). */
   regression(series: Series, from: number, to: number): Regression;

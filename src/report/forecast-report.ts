@@ -311,7 +311,7 @@ export function pointSource(run: ForecastRun): string {
   const own = used.find((m) => m.key === run.asserted.structure.key);
   const share = `the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
   if (c.groups > 1 && used.every((m) => m.group !== 'all')) {
-    return `point = mean over ${c.groups} model families of their Akaike-weighted candidates' forecasts (${used.length} candidates), ${share}`;
+    return `point = equal-weight mean over ${c.groups} groups (family and scale), each the Akaike-weighted mean of its candidates (${used.length} in all), ${share}`;
   }
   return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, ${share}`;
 }

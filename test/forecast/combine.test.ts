@@ -3,7 +3,7 @@ import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { search } from '../../src/select/search.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { combinationMembers, combineForecasts, combineRanking, isExplosivePath, leavesPositive, usesInputs } from '../../src/forecast/combine.js';
+import { combinationMembers, combineForecasts, combineRanking, groupOf, isExplosivePath, leavesPositive, usesInputs } from '../../src/forecast/combine.js';
 import { akaikeWeights } from '../../src/select/criteria.js';
 
 function series(values: number[]): Series {
@@ -38,20 +38,20 @@ describe('leavesPositive', () => {
   });
 
   it('leaves such a member out of the combination', () => {
-    const found = search(noisy, { families: ['arx'] });
+    const found = search(noisy, { families: ['arx'], transform: 'none' });
     const members = combinationMembers(found.ranking, { maxMembers: 3 });
     const bad = members[1].result.key;
     const history = [10, 1, 10, 1, 5];
     const c = combineForecasts(members, 2, (s) => (s.key === bad ? Float64Array.of(4, -1) : Float64Array.of(6, 6)), history);
     expect(c.members[1].excluded).toMatch(/zero or below/);
     expect(c.members[1].share).toBe(0);
-    expect(Array.from(c.point)).toEqual([6, 6]);
+    for (const v of c.point) expect(v).toBeCloseTo(6, 12);
   });
 });
 
 describe('combinationMembers', () => {
   it('takes candidates best first until their Akaike weights cover the mass', () => {
-    const found = search(noisy, { families: ['arx'] });
+    const found = search(noisy, { families: ['arx'], transform: 'none' });
     const members = combinationMembers(found.ranking, { mass: 0.9 });
     expect(members[0].result.key).toBe(found.winner.result.key);
     let before = 0;
@@ -61,7 +61,7 @@ describe('combinationMembers', () => {
   });
 
   it('with mass 0 keeps the winner alone, so the combination is the winner’s forecast', () => {
-    const found = search(noisy, { families: ['arx'] });
+    const found = search(noisy, { families: ['arx'], transform: 'none' });
     const c = combineRanking(found.ranking, noisy, 5, { mass: 0 });
     const own = found.winner.structure.simulate(found.winner.estimate.theta, noisy, [], 5);
     expect(c.members.length).toBe(1);
@@ -70,7 +70,7 @@ describe('combinationMembers', () => {
 });
 
 describe('combineForecasts', () => {
-  const found = search(noisy, { families: ['arx'] });
+  const found = search(noisy, { families: ['arx'], transform: 'none' });
   const members = combinationMembers(found.ranking, { maxMembers: 3 });
 
   it('is the weight-normalised mean of the members’ forecasts', () => {
@@ -98,36 +98,58 @@ describe('combineForecasts', () => {
   });
 });
 
-describe('two-level weights: Akaike weights within a family, equal weights across families', () => {
+describe('two-level weights: Akaike weights within a group, equal weights across groups', () => {
   const found = search(noisy, { families: ['arx', 'damped'] });
+  const groups = ['arx', 'arx|log', 'damped', 'damped|log'];
 
-  it('weights each family’s candidates by Akaike weights over that family alone', () => {
-    const members = combinationMembers(found.ranking, { mass: 1, maxMembers: 1000 });
-    for (const family of ['arx', 'damped']) {
-      const mine = members.filter((m) => m.group === family);
-      const all = found.ranking.filter((r) => r.status === 'fitted' && r.family === family);
-      // Members are the family's ranking from its best on (the tail past the covered mass left out).
-      expect(mine.length).toBeGreaterThan(1);
+  it('groups candidates by family and the scale of their equation', () => {
+    const members = combinationMembers(found.ranking, { maxDelta: Infinity });
+    expect([...new Set(members.map((m) => m.group))].sort()).toEqual(groups);
+    for (const m of members) expect(m.group).toBe(groupOf(m.structure));
+    // An ODE scored on the log scale has the same dynamics as on the original scale: one group.
+    const odes = combinationMembers(search(noisy, { families: ['ode'] }).ranking, { mass: 1, maxMembers: 1000 });
+    expect(odes.some((m) => m.structure.transform === 'log')).toBe(true);
+    expect(new Set(odes.map((m) => m.group))).toEqual(new Set(['ode']));
+  });
+
+  it('weights each group’s candidates by Akaike weights over that group alone', () => {
+    const members = combinationMembers(found.ranking, { mass: 1, maxMembers: 1000, maxDelta: Infinity });
+    for (const group of groups) {
+      const mine = members.filter((m) => m.group === group);
+      const all = found.ranking.filter((r) => r.status === 'fitted' && groupOf(r.structure) === group);
+      // Members are the group's ranking from its best on (the tail past the covered mass left out).
+      expect(mine.length).toBeGreaterThan(0);
       expect(mine.map((m) => m.result.key)).toEqual(all.slice(0, mine.length).map((r) => r.key));
       const want = akaikeWeights(all.map((r) => r.score));
       mine.forEach((m, i) => expect(m.weight).toBeCloseTo(want[i], 12));
     }
   });
 
-  it('gives each family half of the combination, so the point is the mean of the two family forecasts', () => {
-    const c = combineRanking(found.ranking, noisy, 3);
-    expect(c.groups).toBe(2);
-    const familyPoint = (family: string) => {
-      const own = combineRanking(found.ranking.filter((r) => r.family === family), noisy, 3);
+  it('gives each group an equal share, so the point is the mean of the group forecasts', () => {
+    const c = combineRanking(found.ranking, noisy, 3, { maxDelta: Infinity });
+    expect(c.groups).toBe(groups.length);
+    const points = groups.map((group) => {
+      const own = combineRanking(found.ranking.filter((r) => groupOf(r.structure) === group), noisy, 3);
       expect(own.groups).toBe(1);
       return own.point;
-    };
-    const arx = familyPoint('arx');
-    const damped = familyPoint('damped');
-    for (let k = 0; k < 3; k++) expect(c.point[k]).toBeCloseTo((arx[k] + damped[k]) / 2, 10);
-    for (const family of ['arx', 'damped']) {
-      expect(c.members.filter((m) => m.group === family).reduce((a, m) => a + m.share, 0)).toBeCloseTo(0.5, 12);
+    });
+    for (let k = 0; k < 3; k++) expect(c.point[k]).toBeCloseTo(points.reduce((a, p) => a + p[k], 0) / groups.length, 10);
+    for (const group of groups) {
+      expect(c.members.filter((m) => m.group === group).reduce((a, m) => a + m.share, 0)).toBeCloseTo(1 / groups.length, 12);
     }
+  });
+
+  it('leaves out the groups whose best candidate is more than maxDelta behind the overall best', () => {
+    const groupBest = new Map<string, number>();
+    for (const r of found.ranking) if (r.status === 'fitted' && !groupBest.has(groupOf(r.structure))) groupBest.set(groupOf(r.structure), r.delta);
+    for (const maxDelta of [0, 10, Infinity]) {
+      const kept = new Set(combinationMembers(found.ranking, { maxDelta }).map((m) => m.group));
+      const want = [...groupBest].filter(([, d]) => d <= maxDelta).map(([g]) => g);
+      expect([...kept].sort()).toEqual(want.sort());
+    }
+    expect(new Set(combinationMembers(found.ranking, { maxDelta: 0 }).map((m) => m.group))).toEqual(new Set([groupOf(found.winner.structure)]));
+    // The default keeps the groups within 10 and this series rules at least one out.
+    expect(new Set(combinationMembers(found.ranking).map((m) => m.group)).size).toBeLessThan(groupBest.size);
   });
 
   it('with across: evidence uses one Akaike weighting over all candidates', () => {
@@ -136,11 +158,11 @@ describe('two-level weights: Akaike weights within a family, equal weights acros
     members.forEach((m) => expect(m.weight).toBeCloseTo(m.result.weight, 12));
   });
 
-  it('drops a family whose every member is left out, and the other takes the whole weight', () => {
-    const members = combinationMembers(found.ranking);
+  it('drops a group whose every member is left out, and the others share its weight', () => {
+    const members = combinationMembers(found.ranking, { maxDelta: Infinity });
     const c = combineForecasts(members, 2, (s, e) => (s.family === 'damped' ? Float64Array.of(NaN, NaN) : s.simulate(e.theta, noisy, [], 2)), noisy.values);
-    expect(c.groups).toBe(1);
-    expect(c.members.filter((m) => m.group === 'arx').reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 12);
+    expect(c.groups).toBe(2);
+    expect(c.members.filter((m) => m.group === 'arx').reduce((a, m) => a + m.share, 0)).toBeCloseTo(0.5, 12);
   });
 
   it('when the winner uses inputs, combines only candidates that use inputs', () => {
@@ -153,7 +175,7 @@ describe('two-level weights: Akaike weights within a family, equal weights acros
     const members = combinationMembers(withInputs.ranking);
     expect(members.length).toBeGreaterThan(0);
     expect(members.every((m) => usesInputs(m.structure))).toBe(true);
-    expect(members.some((m) => m.group === 'damped')).toBe(false);
+    expect(members.some((m) => m.structure.family === 'damped')).toBe(false);
   });
 });
 
