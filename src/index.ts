@@ -20,6 +20,7 @@ export { structureFromSpec, FAMILIES } from './models/registry.js';
 export { search, type SearchOptions, type SearchResult } from './select/search.js';
 
 export { forecastSeries, type ForecastOptions, type ForecastRun } from './forecast/pipeline.js';
+export { combineRanking, groupOf, COMBINE_DEFAULTS, type CombineOptions, type Combination } from './forecast/combine.js';
 export { forecastWithIntervals } from './forecast/intervals.js';
 export { Learner } from './forecast/online.js';
 export { createDriftState, stepDrift, type DriftAlarm, type DriftState } from './forecast/drift.js';
