@@ -114,8 +114,9 @@ export class DampedStructure implements Structure {
     if (spec.transform === 'log') parts.push('log');
     this.key = parts.join('|');
     this.label =
-      (spec.damped ? `damped trend${this.lags > 1 ? `, change lags 1-${this.lags}` : ''}` : 'random walk') +
+      (spec.damped ? 'damped trend' : 'random walk') +
       (spec.drift ? ' with drift' : '') +
+      (this.lags > 1 ? `, change lags 1-${this.lags}` : '') +
       (K > 0 ? `, ${K} seasonal harmonic${K > 1 ? 's' : ''}` : '') +
       (spec.transform === 'log' ? ', log' : '');
   }
