@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
@@ -197,5 +198,29 @@ describe('forecastSeries with combination', () => {
       );
     }
     expect(mixed.asserted.structure.key).toBe(own.asserted.structure.key);
+  });
+});
+
+describe('combination invariants (property)', () => {
+  const found = search(noisy, { families: ['arx', 'damped'] });
+  const members = combinationMembers(found.ranking, { maxDelta: Infinity });
+
+  // A weighted mean with non-negative shares summing to one lies between the smallest and the
+  // largest member forecast at every step, whatever the members' paths.
+  it('shares sum to one and the point lies within the members’ range at every step', () => {
+    fc.assert(
+      fc.property(fc.array(fc.double({ min: 1, max: 1e4, noNaN: true }), { minLength: members.length * 2, maxLength: members.length * 2 }), (values) => {
+        const paths = new Map(members.map((m, i) => [m.result.key, Float64Array.of(values[2 * i], values[2 * i + 1])]));
+        const c = combineForecasts(members, 2, (s) => paths.get(s.key) as Float64Array);
+        const used = c.members.filter((m) => !m.excluded);
+        expect(used.reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 9);
+        for (let k = 0; k < 2; k++) {
+          const xs = used.map((m) => m.forecast[k]);
+          expect(c.point[k]).toBeGreaterThanOrEqual(Math.min(...xs) * (1 - 1e-12));
+          expect(c.point[k]).toBeLessThanOrEqual(Math.max(...xs) * (1 + 1e-12));
+        }
+      }),
+      { numRuns: 200, seed: 11 },
+    );
   });
 });
