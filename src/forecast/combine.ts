@@ -48,7 +48,8 @@
  */
 import type { Series } from '../data/series.js';
 import type { CandidateResult } from '../select/search.js';
-import type { Estimate, Structure } from '../models/structure.js';
+import type { Estimate, Structure, StructureSpec } from '../models/structure.js';
+import type { ForecastPaths } from './intervals.js';
 import { akaikeWeights } from '../select/criteria.js';
 
 export interface CombineOptions {
@@ -66,6 +67,9 @@ export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'equal', m
 
 export interface CombinationMember {
   key: string;
+  /** The member's structure spec and the coefficients its forecast used (what a model file keeps). */
+  spec: StructureSpec;
+  theta: Float64Array;
   /** The group the member is weighted in (`groupOf`), or 'all' when weighting by evidence across groups. */
   group: string;
   /** Akaike weight within its group. */
@@ -85,12 +89,14 @@ export interface Combination {
 }
 
 export interface Member {
-  result: CandidateResult;
+  key: string;
   structure: Structure;
   estimate: Estimate;
   /** The group it is weighted in and its Akaike weight there. */
   group: string;
   weight: number;
+  /** Why the member cannot forecast (e.g. its refit failed); it is then left out. */
+  failure?: string;
 }
 
 /**
@@ -137,7 +143,7 @@ export function combinationMembers(ranking: readonly CandidateResult[], options:
     for (let i = 0; i < list.length; i++) {
       if (i >= most || (i > 0 && covered >= mass)) break;
       const r = list[i];
-      out.push({ result: r, structure: r.structure, estimate: r.estimate as Estimate, group, weight: weights[i] });
+      out.push({ key: r.key, structure: r.structure, estimate: r.estimate as Estimate, group, weight: weights[i] });
       covered += weights[i];
     }
   }
@@ -161,6 +167,7 @@ export function combineForecasts(
     let forecast: Float64Array;
     let excluded: string | undefined;
     try {
+      if (m.failure !== undefined) throw new Error(m.failure);
       forecast = simulate(m.structure, m.estimate);
       if (!forecast.every(Number.isFinite)) excluded = 'non-finite forecast';
       else if (history && isExplosivePath(history, forecast)) excluded = 'explosive simulated path';
@@ -169,7 +176,7 @@ export function combineForecasts(
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
     }
-    used.push({ key: m.result.key, group: m.group, weight: m.weight, share: 0, forecast, ...(excluded ? { excluded } : {}) });
+    used.push({ key: m.key, spec: m.structure.spec, theta: m.estimate.theta, group: m.group, weight: m.weight, share: 0, forecast, ...(excluded ? { excluded } : {}) });
     if (!excluded && m.weight > 0) totals.set(m.group, (totals.get(m.group) ?? 0) + m.weight);
   }
   const point = new Float64Array(h);
@@ -184,6 +191,27 @@ export function combineForecasts(
     for (let k = 0; k < h; k++) point[k] += m.share * m.forecast[k];
   }
   return { point, members: used, groups };
+}
+
+/**
+ * The paths of `own` (a structure's forecast with its interval bands) moved onto the combined
+ * point: at each step every band is shifted by point − own point, its width kept. The
+ * combination replaces the point only; the uncertainty stays that of the asserted structure.
+ */
+export function recentre(own: ForecastPaths, point: Float64Array): ForecastPaths {
+  const shift = (x: Float64Array) => Float64Array.from(x, (v, j) => v + point[j] - own.point[j]);
+  return { ...own, point: Float64Array.from(point), bands: own.bands.map((b) => ({ level: b.level, lower: shift(b.lower), upper: shift(b.upper) })) };
+}
+
+/**
+ * Whether a combination replaces the asserted structure's own forecast: it does when some
+ * member was used, its point is finite at every step, and it is not the asserted structure
+ * alone.
+ */
+export function replacesOwn(combination: Combination, assertedKey: string): boolean {
+  const used = combination.members.filter((m) => !m.excluded);
+  if (used.length === 0 || !combination.point.every(Number.isFinite)) return false;
+  return !(used.length === 1 && used[0].key === assertedKey);
 }
 
 /** Convenience: the combination of a ranking's members simulated from `history`, inputs held at their last values. */

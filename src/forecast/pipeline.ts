@@ -26,7 +26,7 @@ import { backtest, type Backtest } from '../evaluate/backtest.js';
 import { forecastWithIntervals, type ForecastPaths, type IntervalMethod, type IntervalOptions } from './intervals.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
-import { combinationMembers, combineForecasts, type Combination, type CombineOptions } from './combine.js';
+import { combinationMembers, combineForecasts, recentre, replacesOwn, type Combination, type CombineOptions } from './combine.js';
 
 export interface ForecastOptions {
   search?: SearchOptions;
@@ -220,16 +220,14 @@ function deliveredForecast(
 ): { paths: ForecastPaths; alone: ForecastPaths | null; combination: Combination | null } {
   const own = forecastWithIntervals(structure, estimate, history, future, h, residuals, intervals);
   if (combine === null) return { paths: own, alone: null, combination: null };
-  const members = combinationMembers(found.ranking, combine);
-  const combination = combineForecasts(members, h, (s, e) => s.simulate(refit(s, e).theta, history, future, h), history.values);
-  const used = combination.members.filter((m) => !m.excluded);
-  if (used.length === 0 || !combination.point.every(Number.isFinite)) return { paths: own, alone: null, combination };
-  if (used.length === 1 && used[0].key === structure.key) return { paths: own, alone: null, combination };
-  const shift = (x: Float64Array) => Float64Array.from(x, (v, j) => v + combination.point[j] - own.point[j]);
-  const paths: ForecastPaths = {
-    ...own,
-    point: Float64Array.from(combination.point),
-    bands: own.bands.map((b) => ({ level: b.level, lower: shift(b.lower), upper: shift(b.upper) })),
-  };
-  return { paths, alone: own, combination };
+  const members = combinationMembers(found.ranking, combine).map((m) => {
+    try {
+      return { ...m, estimate: refit(m.structure, m.estimate) };
+    } catch (e) {
+      return { ...m, failure: e instanceof Error ? e.message : String(e) };
+    }
+  });
+  const combination = combineForecasts(members, h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
+  if (!replacesOwn(combination, structure.key)) return { paths: own, alone: null, combination };
+  return { paths: recentre(own, combination.point), alone: own, combination };
 }

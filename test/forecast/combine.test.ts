@@ -41,7 +41,7 @@ describe('leavesPositive', () => {
   it('leaves such a member out of the combination', () => {
     const found = search(noisy, { families: ['arx'], transform: 'none' });
     const members = combinationMembers(found.ranking, { maxMembers: 3 });
-    const bad = members[1].result.key;
+    const bad = members[1].key;
     const history = [10, 1, 10, 1, 5];
     const c = combineForecasts(members, 2, (s) => (s.key === bad ? Float64Array.of(4, -1) : Float64Array.of(6, 6)), history);
     expect(c.members[1].excluded).toMatch(/zero or below/);
@@ -54,7 +54,7 @@ describe('combinationMembers', () => {
   it('takes candidates best first until their Akaike weights cover the mass', () => {
     const found = search(noisy, { families: ['arx'], transform: 'none' });
     const members = combinationMembers(found.ranking, { mass: 0.9 });
-    expect(members[0].result.key).toBe(found.winner.result.key);
+    expect(members[0].key).toBe(found.winner.result.key);
     let before = 0;
     for (let i = 0; i < members.length - 1; i++) before += members[i].weight;
     expect(before).toBeLessThan(0.9);
@@ -85,7 +85,7 @@ describe('combineForecasts', () => {
   });
 
   it('leaves out an exploding member and renormalises the others', () => {
-    const bad = members[0].result.key;
+    const bad = members[0].key;
     const c = combineForecasts(
       members,
       2,
@@ -120,7 +120,7 @@ describe('two-level weights: Akaike weights within a group, equal weights across
       const all = found.ranking.filter((r) => r.status === 'fitted' && groupOf(r.structure) === group);
       // Members are the group's ranking from its best on (the tail past the covered mass left out).
       expect(mine.length).toBeGreaterThan(0);
-      expect(mine.map((m) => m.result.key)).toEqual(all.slice(0, mine.length).map((r) => r.key));
+      expect(mine.map((m) => m.key)).toEqual(all.slice(0, mine.length).map((r) => r.key));
       const want = akaikeWeights(all.map((r) => r.score));
       mine.forEach((m, i) => expect(m.weight).toBeCloseTo(want[i], 12));
     }
@@ -156,7 +156,8 @@ describe('two-level weights: Akaike weights within a group, equal weights across
   it('with across: evidence uses one Akaike weighting over all candidates', () => {
     const members = combinationMembers(found.ranking, { across: 'evidence', mass: 1, maxMembers: 1000 });
     expect(new Set(members.map((m) => m.group))).toEqual(new Set(['all']));
-    members.forEach((m) => expect(m.weight).toBeCloseTo(m.result.weight, 12));
+    const byKey = new Map(found.ranking.map((r) => [r.key, r.weight]));
+    members.forEach((m) => expect(m.weight).toBeCloseTo(byKey.get(m.key) as number, 12));
   });
 
   it('drops a group whose every member is left out, and the others share its weight', () => {
@@ -210,7 +211,7 @@ describe('combination invariants (property)', () => {
   it('shares sum to one and the point lies within the members’ range at every step', () => {
     fc.assert(
       fc.property(fc.array(fc.double({ min: 1, max: 1e4, noNaN: true }), { minLength: members.length * 2, maxLength: members.length * 2 }), (values) => {
-        const paths = new Map(members.map((m, i) => [m.result.key, Float64Array.of(values[2 * i], values[2 * i + 1])]));
+        const paths = new Map(members.map((m, i) => [m.key, Float64Array.of(values[2 * i], values[2 * i + 1])]));
         const c = combineForecasts(members, 2, (s) => paths.get(s.key) as Float64Array);
         const used = c.members.filter((m) => !m.excluded);
         expect(used.reduce((a, m) => a + m.share, 0)).toBeCloseTo(1, 9);
