@@ -13,6 +13,8 @@
  *    (`serializeModel`: validation, canonical JSON, SHA-256 checksum, pretty text) as the CLI
  *    writes it. Each update continues from the previous one's body (a chain of single-row
  *    updates), timed over 2 000 updates after 200 of warm-up, best of 5 rounds.
+ *    The same, for the series as the default `certa forecast` saves it (its asserted structure
+ *    and the members of its combined point forecast), without and with the combined forecast.
  * 2. CLI: wall time of one `node bin/certa.js update model.json rows.csv --no-charts` (a child
  *    process: Node start-up, module loading, lock, read, update, write), median of 9 runs.
  *
@@ -28,6 +30,10 @@ import { update, type UpdateOptions } from '../src/forecast/update.js';
 import { serializeModel, type ModelBody } from '../src/store/model-file.js';
 import { formatTime } from '../src/data/calendar.js';
 import { bodyOn, rowsOf, simulateArx } from '../test/forecast/update-fixtures.js';
+import { sliceSeries } from '../src/data/series.js';
+import { forecastSeries } from '../src/forecast/pipeline.js';
+import { replacesOwn } from '../src/forecast/combine.js';
+import { modelBody, storedCombination } from '../src/store/asserted.js';
 
 const FIT = 240;
 const sim = simulateArx(FIT + 2200 + 20, 42);
@@ -39,10 +45,30 @@ const start: ModelBody = (() => {
 const firstRow = FIT + 100;
 const rows = Array.from({ length: 2200 }, (_, k) => rowsOf(sim.series, firstRow + k, firstRow + k + 1));
 
-function perSecond(options: Omit<UpdateOptions, 'now'>, serialize: boolean, afresh = false): { rate: number; us: number } {
+/**
+ * The same series as `certa forecast` saves it: the default search on the first FIT points, the
+ * asserted structure and the members of the combined point forecast, then 100 single-row
+ * updates.
+ */
+const startCombined: ModelBody = (() => {
+  const head = sliceSeries(sim.series, 0, FIT);
+  const run = forecastSeries(head, { holdout: 0, horizon: 12 });
+  const a = run.asserted;
+  const c = run.forecast.combination;
+  let b = modelBody({ structure: a.structure, learner: a.learner, se: a.estimate.se }, head, {
+    criterion: run.search.criterion,
+    criterionValue: run.search.winner.result.score,
+    now: '2024-01-01T00:00:00.000Z',
+    combination: c && replacesOwn(c, a.structure.key) ? storedCombination(c.members) : undefined,
+  });
+  for (let k = FIT; k < FIT + 100; k++) b = update(b, rowsOf(sim.series, k, k + 1), { now: '2024-01-01T00:00:00.000Z', skipForecast: true }).body;
+  return b;
+})();
+
+function perSecond(options: Omit<UpdateOptions, 'now'>, serialize: boolean, afresh = false, from: ModelBody = start): { rate: number; us: number } {
   let best = Infinity;
   for (let round = 0; round < 5; round++) {
-    let body = start;
+    let body = from;
     for (let k = 0; k < 200; k++) body = update(afresh ? { ...body } : body, rows[k], { now: '2024-01-01T00:00:00.000Z', ...options }).body;
     const t0 = process.hrtime.bigint();
     for (let k = 200; k < 2200; k++) {
@@ -63,6 +89,15 @@ for (const [label, options, serialize, afresh] of [
   ['update + forecast + serializeModel', {}, true],
 ] as [string, Omit<UpdateOptions, 'now'>, boolean, boolean?][]) {
   const m = perSecond(options, serialize, afresh);
+  console.log(`  ${label}`.padEnd(56), m.rate.toFixed(0).padStart(9), m.us.toFixed(1).padStart(12));
+}
+const members = startCombined.combination?.members.length ?? 0;
+console.log(`the same series saved by the default forecast (${startCombined.structure.family} asserted, combination of ${members} members)`);
+for (const [label, options] of [
+  ['update, no forecast', { skipForecast: true }],
+  ['update + combined forecast (12 steps, analytic intervals)', {}],
+] as [string, Omit<UpdateOptions, 'now'>][]) {
+  const m = perSecond(options, false, false, startCombined);
   console.log(`  ${label}`.padEnd(56), m.rate.toFixed(0).padStart(9), m.us.toFixed(1).padStart(12));
 }
 

@@ -13,7 +13,8 @@ import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forec
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
 import { forecastCharts, forecastFiles, forecastSummary, forecastText, summaryJson } from '../report/forecast-report.js';
 import { writeModelFile } from '../store/model-file.js';
-import { modelBody } from '../store/asserted.js';
+import { modelBody, storedCombination } from '../store/asserted.js';
+import { replacesOwn } from '../forecast/combine.js';
 import { addDataOptions, loadSeriesFromCli, parseDataOptions, readDataSource } from './data-options.js';
 import { addSearchOptions, parseSearchOptions } from './search-options.js';
 import { outputFolder, runClock, writeFiles } from './output.js';
@@ -118,6 +119,7 @@ export async function runForecast(series: Series, cli: CliForecastOptions, folde
     now: runClock(),
     windowCapacity: cli.window,
     meta: { key: a.structure.key, label: a.structure.label, equation: a.equation, horizon: run.horizon, levels: run.levels },
+    combination: run.forecast.combination && replacesOwn(run.forecast.combination, a.structure.key) ? storedCombination(run.forecast.combination.members) : undefined,
   });
   await writeModelFile(join(folder, 'model.json'), body, { mkdir: true });
   return { run, summary, text: forecastText(run, summary) };

@@ -50,7 +50,13 @@
  *    future inputs by the same default policy as `certa forecast` (future.ts: repeat the last
  *    season for a seasonal series, else hold the last values) or `options.future`; intervals by
  *    forecastWithIntervals (intervals.ts) with the learner's σ̂², σ̂²P and, for simulation
- *    intervals, the one-step residuals of the current θ over the window.
+ *    intervals, the one-step residuals of the current θ over the window. When the body holds a
+ *    combination (the members of `certa forecast`'s point, model-file.ts), the point is that
+ *    combination continued from the window (combine.ts: the same weights and the same checks for
+ *    paths to leave out), the asserted member with its learnt θ and the others with the
+ *    coefficients they were saved with, and the bands are moved onto it as `certa forecast`
+ *    moves them. A re-search replaces the combination by the new search's members, estimated on
+ *    the window.
  *
  * No new rows (and no accepted revision): the body is returned unchanged (the same object),
  * `added` is 0 and `changed` false; the caller need not write anything.
@@ -69,7 +75,8 @@ import { DataError, UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import type { Structure } from '../models/structure.js';
 import { forward } from '../models/transforms.js';
-import { search, type SearchOptions } from '../select/search.js';
+import { search, type SearchOptions, type SearchResult } from '../select/search.js';
+import { structureFromSpec } from '../models/registry.js';
 import { assertedFromBody, learnerFields, windowSeries, type AssertedState } from '../store/asserted.js';
 import { extendFingerprint, type DataRow } from '../store/fingerprint.js';
 import type { ModelBody, UpdateEntry } from '../store/model-file.js';
@@ -79,6 +86,7 @@ import { defaultInputPolicy, futureByPolicy, type FutureInputs } from './future.
 import { forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
 import { Learner } from './online.js';
 import { defaultHorizon } from './pipeline.js';
+import { combinationMembers, combineForecasts, recentre, replacesOwn, type Combination, type Member } from './combine.js';
 
 export type DriftPolicy = 'warn' | 'adapt' | 'research';
 export const DRIFT_POLICIES: readonly DriftPolicy[] = ['warn', 'adapt', 'research'];
@@ -155,6 +163,8 @@ export interface UpdateForecast {
   inputs: FutureInputs;
   horizon: number;
   levels: number[];
+  /** The combination the point comes from (null: the asserted equation's own path). */
+  combination: Combination | null;
 }
 
 export interface UpdateResult {
@@ -365,6 +375,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
 
   let structureChanged = false;
   let criterion = body.criterion;
+  let combination = body.combination;
   let meta = body.meta;
   if (alarms.length > 0 && policyName === 'research') {
     const found = search(ext, { inputs: names, ...options.search });
@@ -376,6 +387,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
     drift = createDriftState({ k: drift.k, h: drift.h, window: drift.window, varianceRate: drift.varianceRate });
     adaptRemaining = 0;
     criterion = { name: found.criterion, value: found.winner.result.score };
+    combination = searchedCombination(found.ranking);
     notes.push(
       `re-searched ${found.fitted} structures on the stored window (${found.sample.start} to ${found.sample.end}) after the drift alarm; ` +
         (structureChanged ? `asserted ${s.label}` : 'the same structure won; re-estimated on the window'),
@@ -429,6 +441,8 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
     drift,
     meta,
   });
+  if (combination) nextBody.combination = combination;
+  else delete nextBody.combination;
   // The new window is the tail of `ext`; the learner's positions move with it.
   const series = tailSeries(ext, dropped, { count: Number(state.before), sum: Number(state.beforeSum) });
   model.learner.next = series.values.length;
@@ -662,14 +676,48 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
   const method = options.intervals?.method ?? (isLinearStructure(structure) ? 'analytic' : 'bootstrap');
   const residuals = method === 'bootstrap' ? windowResiduals(structure, learner.theta, series) : new Float64Array(0);
   const estimate = { theta: learner.theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };
-  const paths = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method });
+  const own = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method });
+  const combination = body.combination ? combineForecasts(storedMembers(body.combination, model), horizon, (s, e) => s.simulate(e.theta, series, inputs.values, horizon), series.values) : null;
+  const paths = combination && replacesOwn(combination, structure.key) ? recentre(own, combination.point) : own;
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the updated equation diverges over this horizon`);
       break;
     }
   }
-  return { times, paths, inputs, horizon, levels };
+  return { times, paths, inputs, horizon, levels, combination: combination && replacesOwn(combination, structure.key) ? combination : null };
+}
+
+/** Member structures rebuilt from a body's combination, kept while the combination object lives. */
+const memberStructures = new WeakMap<NonNullable<ModelBody['combination']>, Structure[]>();
+
+/**
+ * The members of a stored combination, ready to forecast: structures rebuilt from their specs
+ * (once per stored combination), the saved coefficients, and the asserted structure's member
+ * with the learner's current θ. A member whose coefficients do not fit its structure is left out
+ * with the reason.
+ */
+function storedMembers(stored: NonNullable<ModelBody['combination']>, model: AssertedState): Member[] {
+  let structures = memberStructures.get(stored);
+  if (structures === undefined) {
+    structures = stored.members.map((m) => (m.key === model.structure.key ? model.structure : structureFromSpec(m.structure)));
+    memberStructures.set(stored, structures);
+  }
+  return stored.members.map((m, i) => {
+    const asserted = m.key === model.structure.key;
+    const structure = asserted ? model.structure : structures[i];
+    const theta = asserted ? model.learner.theta : Float64Array.from(m.theta);
+    const estimate = { theta, se: new Float64Array(0), cov: new Float64Array(0), active: structure.terms.map(() => true), sigma2: 0, rank: theta.length, condition: 1, warnings: [] };
+    const failure = theta.length !== structure.terms.length ? `member ${m.key}: ${theta.length} saved coefficients for ${structure.terms.length} terms` : undefined;
+    return { key: m.key, structure, estimate, group: m.group, weight: m.weight, ...(failure ? { failure } : {}) };
+  });
+}
+
+/** The members a re-search hands to the model file: its combination members with their window estimates. */
+function searchedCombination(ranking: SearchResult['ranking']): ModelBody['combination'] {
+  const members = combinationMembers(ranking);
+  if (members.length === 0) return undefined;
+  return { members: members.map((m) => ({ key: m.key, structure: m.structure.spec, theta: Array.from(m.estimate.theta), group: m.group, weight: m.weight })) };
 }
 
 /** One-step residuals z_t − ẑ_t of θ over the window (scoring scale), t ≥ history. */

@@ -6,6 +6,7 @@
 import { formatTime, type Frequency } from '../data/calendar.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
+import type { Combination } from '../forecast/combine.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
 import { candidatesCsv } from './candidates.js';
@@ -134,9 +135,7 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
     forecast: {
       inputs: run.forecast.inputs.source,
       point: pointSource(run),
-      combination: run.forecast.combination
-        ? run.forecast.combination.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, share: m.share, excluded: m.excluded ?? null }))
-        : null,
+      combination: combinationJson(run.forecast.combination),
       rows: Array.from(run.forecast.times, (t, j) => {
         const row: Record<string, unknown> = { time: formatTime(t, f), point: run.forecast.paths.point[j] };
         for (const b of run.forecast.paths.bands) {
@@ -305,15 +304,24 @@ export function forecastTableLines(f: Frequency, times: Float64Array, paths: For
 
 /** What the point forecast is, in words: the asserted equation's path or a combination. */
 export function pointSource(run: ForecastRun): string {
-  const c = run.forecast.combination;
+  return describePoint(run.forecast.combination, run.asserted.structure.key);
+}
+
+/** The same for any combination and asserted structure key (`certa forecast` and `certa update`). */
+export function describePoint(c: Combination | null, assertedKey: string): string {
   const used = c ? c.members.filter((m) => !m.excluded) : [];
-  if (!c || used.length === 0 || (used.length === 1 && used[0].key === run.asserted.structure.key)) return 'point from the asserted equation';
-  const own = used.find((m) => m.key === run.asserted.structure.key);
+  if (!c || used.length === 0 || (used.length === 1 && used[0].key === assertedKey)) return 'point from the asserted equation';
+  const own = used.find((m) => m.key === assertedKey);
   const share = `the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
   if (c.groups > 1 && used.every((m) => m.group !== 'all')) {
     return `point = equal-weight mean over ${c.groups} groups (family and scale), each the Akaike-weighted mean of its candidates (${used.length} in all), ${share}`;
   }
   return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, ${share}`;
+}
+
+/** The members of a combination as summary.json lists them. */
+export function combinationJson(c: Combination | null): Record<string, unknown>[] | null {
+  return c ? c.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, share: m.share, excluded: m.excluded ?? null })) : null;
 }
 
 function pad(cells: string[], widths: number[]): string {

@@ -9,7 +9,7 @@ import type { DriftAlarm } from '../forecast/drift.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { forecastChart } from './charts.js';
-import { fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
+import { combinationJson, describePoint, fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 
 /** `forecast.csv` after an update: window rows as `history`, then `forecast` rows. */
@@ -80,6 +80,8 @@ export function updateSummary(result: UpdateResult, ctx: UpdateContext): Record<
           levels: fc.levels,
           intervalMethod: fc.paths.method,
           inputs: fc.inputs.source,
+          point: describePoint(fc.combination, result.policy.after.key),
+          combination: combinationJson(fc.combination),
           rows: Array.from(fc.times, (t, j) => {
             const row: Record<string, unknown> = { time: formatTime(t, f), point: fc.paths.point[j] };
             for (const b of fc.paths.bands) {
@@ -152,7 +154,7 @@ export function updateText(result: UpdateResult, summary: Record<string, unknown
   }
   if (result.forecast) {
     lines.push('');
-    lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, `point from the asserted equation; ${result.forecast.inputs.source}`));
+    lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, `${describePoint(result.forecast.combination, result.policy.after.key)}; ${result.forecast.inputs.source}`));
   }
   lines.push(...footerLines(summary));
   return `${lines.join('\n')}\n`;

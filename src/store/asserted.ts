@@ -13,6 +13,7 @@ import type { Criterion } from '../select/criteria.js';
 import type { Structure } from '../models/structure.js';
 import { structureFromSpec } from '../models/registry.js';
 import { Learner } from '../forecast/online.js';
+import type { CombinationMember } from '../forecast/combine.js';
 import { createDriftState, type DriftOptions } from '../forecast/drift.js';
 import { fingerprintSeries } from './fingerprint.js';
 import { DEFAULT_WINDOW_CAPACITY, windowFromSeries } from './window.js';
@@ -35,6 +36,8 @@ export interface BodyOptions {
   windowCapacity?: number;
   drift?: DriftOptions;
   meta?: Record<string, unknown>;
+  /** The members of the delivered point forecast (`storedCombination`), when it combines candidates. */
+  combination?: ModelBody['combination'];
 }
 
 /** The body of a model file for a learner that has learnt every row of `series`. */
@@ -70,6 +73,19 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
     log: [],
     drift: createDriftState(options.drift),
     meta: options.meta ?? {},
+    ...(options.combination ? { combination: options.combination } : {}),
+  };
+}
+
+/**
+ * What a model file keeps of a combination: its members that were used (not left out), with
+ * spec, coefficients, group and within-group weight. Undefined when no member was used.
+ */
+export function storedCombination(members: readonly CombinationMember[]): ModelBody['combination'] {
+  const used = members.filter((m) => !m.excluded && m.weight > 0);
+  if (used.length === 0) return undefined;
+  return {
+    members: used.map((m) => ({ key: m.key, structure: m.spec, theta: Array.from(m.theta), group: m.group, weight: m.weight })),
   };
 }
 

@@ -2,7 +2,10 @@
  * The model file (`model.json`): everything needed to forecast with a fitted model and to keep
  * updating it online, in a versioned, checksummed envelope.
  *
- *   { "format": "certa-model", "version": 1, "checksum": "sha256:<hex>", "body": { … } }
+ *   { "format": "certa-model", "version": 2, "checksum": "sha256:<hex>", "body": { … } }
+ *
+ * Version 2 added the optional `combination` (the members of the delivered point forecast);
+ * version 1 files, which never have it, read as they are.
  *
  * `checksum` is the SHA-256 (FIPS 180-4) of `canonicalJson(body)` (sorted keys, shortest
  * round-trip numbers; see canonical-json.ts), so it does not depend on the indentation or member
@@ -30,7 +33,7 @@ import { writeFileAtomic } from './atomic.js';
 import { canonicalJson, prettyJson } from './canonical-json.js';
 
 export const MODEL_FORMAT = 'certa-model';
-export const MODEL_VERSION = 1;
+export const MODEL_VERSION = 2;
 
 const finite = z.number();
 const isoTime = z.iso.datetime({ offset: true });
@@ -50,7 +53,7 @@ export const updateEntrySchema = z.strictObject({
 
 const numberArray = z.array(finite);
 
-/** The body of a version-1 model file. */
+/** The body of a model file (versions 1 and 2). */
 export const modelBodySchema = z
   .strictObject({
     /** What the structure registry needs to rebuild the structure (StructureSpec). */
@@ -101,6 +104,27 @@ export const modelBodySchema = z
     drift: driftStateSchema,
     /** Free-form extra information (any JSON). */
     meta: z.record(z.string(), z.unknown()),
+    /**
+     * The members of the point forecast (combine.ts), when it combines candidates: each with its
+     * structure spec, the coefficients its forecast uses, its group and its Akaike weight there.
+     * The asserted structure's member (same key) forecasts with the learnt θ instead. Absent:
+     * the point is the asserted equation's own.
+     */
+    combination: z
+      .strictObject({
+        members: z
+          .array(
+            z.strictObject({
+              key: z.string().min(1),
+              structure: z.looseObject({ family: z.string().min(1) }),
+              theta: numberArray,
+              group: z.string().min(1),
+              weight: finite.nonnegative(),
+            }),
+          )
+          .min(1),
+      })
+      .optional(),
   })
   .superRefine((body, ctx) => {
     const p = body.terms.length;
@@ -132,7 +156,7 @@ export const modelBodySchema = z
     }
   });
 
-/** The body of a model file (version 1). */
+/** The body of a model file (version 2). */
 export type ModelBody = z.infer<typeof modelBodySchema>;
 export type UpdateEntry = z.infer<typeof updateEntrySchema>;
 
@@ -297,7 +321,7 @@ function validateBody(body: unknown, file: string | undefined): ModelBody {
   const where = formatPath(first.path);
   throw new StoreError('invalid-body', `the model body is not valid at ${where}: ${first.message}`, {
     ...(file !== undefined ? { file } : {}),
-    expected: 'a model body of format version 1',
+    expected: `a model body of format version ${MODEL_VERSION}`,
     hint: file !== undefined ? `restore ${previousPath(file)} or fit the model again` : 'this is a bug in the code that built the model',
   });
 }
