@@ -598,4 +598,5 @@ export const arxFamily: FamilyDefinition = {
   fromSpec: (spec) => new ArxStructure(spec),
   dynamicMask: (structure) => (structure as ArxStructure).dynamicMask(),
   stable: (structure, theta) => (structure as ArxStructure).isStable(theta),
+  unstableReason: 'explosive fitted dynamics (a characteristic root on or outside the unit circle)',
 };

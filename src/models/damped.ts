@@ -306,4 +306,5 @@ export const dampedFamily: FamilyDefinition = {
   fromSpec: (spec) => new DampedStructure(spec),
   dynamicMask: (structure) => structure.terms.map((_, j) => j < (structure as DampedStructure).lags),
   stable: (structure, theta) => isStableRecursion((structure as DampedStructure).arPolynomial(theta)),
+  unstableReason: 'explosive fitted dynamics (a root of the change recursion on or outside the unit circle)',
 };

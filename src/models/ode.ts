@@ -52,8 +52,8 @@ import { lstsq } from '../linalg/lstsq.js';
 import { zeros } from '../linalg/matrix.js';
 import { sparseRegression } from '../linalg/sparse.js';
 import { odeDerived, odeSummary } from './ode-derived.js';
-import { equilibria } from './ode-roots.js';
-import type { CandidateBounds, FamilyDefinition } from './registry.js';
+import { equilibria, polyValue } from './ode-roots.js';
+import type { CandidateBounds, FamilyDefinition, StateAt } from './registry.js';
 import { rk4Polynomial } from './rk4.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { maxHarmonics } from './terms.js';
@@ -768,18 +768,30 @@ export function odeDynamicMask(structure: Structure): boolean[] {
 }
 
 /**
- * The family's explosiveness check: false when the state polynomial (inputs and seasonal terms
- * at zero) has degree ≥ 2 and no stable equilibrium, so every trajectory not resting at an
- * equilibrium reaches ±∞ in finite time (for degree d ≥ 2, ∫dx/f(x) converges at infinity).
+ * The family's explosiveness check on the state polynomial f (inputs and seasonal terms at
+ * zero). For degree d ≥ 2, a trajectory that moves towards ±∞ with no equilibrium in its way
+ * reaches it in finite time (∫dx/f(x) converges at infinity), so the check is false
+ * - when f has no stable equilibrium at all (every trajectory not resting at an equilibrium
+ *   runs away), or
+ * - given `at`, when the state at the end of the estimation sample x = x_{to−1} has no
+ *   equilibrium on the side f(x) pushes it to: the fitted law sends the series itself off to
+ *   infinity (e.g. a quadratic with both equilibria below a growing cumulative state).
  * Linear ODEs are never rejected: exponential growth or decay is what they are for.
  */
-export function odeStable(structure: Structure, theta: Float64Array): boolean {
+export function odeStable(structure: Structure, theta: Float64Array, at?: StateAt): boolean {
   const spec = structure.spec as OdeSpec;
   const poly = [0, 0, 0, 0];
   spec.powers.forEach((p, k) => (poly[p] = theta[k]));
   const degree = poly[3] !== 0 ? 3 : poly[2] !== 0 ? 2 : 1;
   if (degree < 2) return true;
-  return equilibria(poly).some((e) => e.stable);
+  const eq = equilibria(poly);
+  if (!eq.some((e) => e.stable)) return false;
+  if (at === undefined || at.to < 1) return true;
+  const x = (structure as OdeStructure).state(at.series)[at.to - 1];
+  const push = polyValue(poly, x);
+  if (push > 0) return eq.some((e) => e.value > x);
+  if (push < 0) return eq.some((e) => e.value < x);
+  return true;
 }
 
 /**
@@ -859,4 +871,5 @@ export const odeFamily: FamilyDefinition = {
   fromSpec: odeFromSpec,
   dynamicMask: odeDynamicMask,
   stable: odeStable,
+  unstableReason: 'explosive fitted dynamics (the state runs off to infinity in finite time)',
 };

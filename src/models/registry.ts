@@ -9,8 +9,10 @@
  * - `dynamicMask(structure)` (optional): which θ entries are dynamic coefficients (AR lags,
  *   state feedback). The residual whiteness check subtracts the number of active dynamic
  *   coefficients from its degrees of freedom; a family without it counts none;
- * - `stable(structure, θ)` (optional): false when the fitted dynamics are explosive; the search
- *   then lists the candidate as failed. A family without it is never rejected on this ground.
+ * - `stable(structure, θ, at)` (optional): false when the fitted dynamics are explosive (`at`,
+ *   when given, is the series and the end of the estimation sample, for a check that depends
+ *   on where the state is); the search then lists the candidate as failed, with the family's
+ *   `unstableReason`. A family without it is never rejected on this ground.
  *
  * Families are listed once in `FAMILIES` below (one line each, a fixed order), so the registry
  * holds no hidden mutable state. The search never branches on family names.
@@ -57,7 +59,9 @@ export interface FamilyDefinition {
   candidates(series: Series, bounds: CandidateBounds): Structure[];
   fromSpec(spec: StructureSpec): Structure;
   dynamicMask?(structure: Structure): boolean[];
-  stable?(structure: Structure, theta: Float64Array): boolean;
+  stable?(structure: Structure, theta: Float64Array, at?: StateAt): boolean;
+  /** Why `stable` refused a candidate, in words (default: a generic phrase). */
+  readonly unstableReason?: string;
 }
 
 /** Built-in families, in the order their candidates enter a search. Add one line per family. */
@@ -98,8 +102,19 @@ export function dynamicMask(structure: Structure, families: readonly FamilyDefin
   return f?.dynamicMask ? f.dynamicMask(structure) : structure.terms.map(() => false);
 }
 
-/** False when the structure's family reports explosive fitted dynamics for θ. */
-export function isStable(structure: Structure, theta: Float64Array, families: readonly FamilyDefinition[] = FAMILIES): boolean {
+/** Where a stability check looks from: the series and the end (exclusive) of the estimation sample. */
+export interface StateAt {
+  series: Series;
+  to: number;
+}
+
+/** False when the structure's family reports explosive fitted dynamics for θ (from `at`, when given). */
+export function isStable(structure: Structure, theta: Float64Array, families: readonly FamilyDefinition[] = FAMILIES, at?: StateAt): boolean {
   const f = families.find((x) => x.name === structure.family);
-  return f?.stable ? f.stable(structure, theta) : true;
+  return f?.stable ? f.stable(structure, theta, at) : true;
+}
+
+/** The reason a family gives for an explosive fit. */
+export function unstableReason(structure: Structure, families: readonly FamilyDefinition[] = FAMILIES): string {
+  return families.find((x) => x.name === structure.family)?.unstableReason ?? 'explosive fitted dynamics';
 }

@@ -35,6 +35,7 @@ import {
   familyNames,
   getFamily,
   isStable,
+  unstableReason,
   type CandidateBounds,
   type Differencing,
   type FamilyDefinition,
@@ -410,8 +411,8 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       }
       throw e;
     }
-    if (!isStable(s, est.theta, registry)) {
-      results.push(failed(s, 'explosive fitted dynamics (a characteristic root on or outside the unit circle)', from, to));
+    if (!isStable(s, est.theta, registry, { series, to })) {
+      results.push(failed(s, unstableReason(s, registry), from, to));
       continue;
     }
     // The fit's own one-step predictions when the structure gives them (Estimate.oneStep).

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Series } from '../../src/data/series.js';
 import { ModelError, UsageError } from '../../src/data/errors.js';
-import { odeCandidates, odeDynamicMask, odeFromSpec, odeStable, odeStructure, samplingInterval } from '../../src/models/ode.js';
+import { odeCandidates, odeDynamicMask, odeFamily, odeFromSpec, odeStable, odeStructure, samplingInterval } from '../../src/models/ode.js';
 import { structureFromSpec, type CandidateBounds } from '../../src/models/registry.js';
 import type { Derived, Structure } from '../../src/models/structure.js';
 import { deterministicNames } from '../../src/models/terms.js';
@@ -341,6 +341,25 @@ describe('describe and derived', () => {
     expect(odeStable(odeStructure({ powers: [1, 2] }), Float64Array.of(0.03, -1e-10))).toBe(true);
     expect(odeStable(odeStructure({ powers: [1] }), Float64Array.of(0.03))).toBe(true);
     expect(odeDynamicMask(odeStructure({ powers: [0, 1, 2], inputs: ['u'] }))).toEqual([false, true, true, false]);
+  });
+
+  // Analytic: dy/dt = y² − 1 has equilibria −1 (f' = −2, stable) and +1 (f' = 2, unstable). From
+  // y = 0 the state falls to −1; from y = 2 it rises with no equilibrium above and reaches +∞ at
+  // t = ½·ln 3 (separation of variables), so a fit ending there is explosive.
+  it('stability hook from the last state: runs away only when no equilibrium lies the way the state moves', () => {
+    const s = odeStructure({ powers: [0, 2], selection: 'dense' });
+    const theta = Float64Array.of(-1, 1);
+    const at = (last: number) => ({ series: indexed([0.5, 0.3, last]), to: 3 });
+    expect(odeStable(s, theta)).toBe(true);
+    expect(odeStable(s, theta, at(0))).toBe(true);
+    expect(odeStable(s, theta, at(-3))).toBe(true);
+    expect(odeStable(s, theta, at(2))).toBe(false);
+    // A growing cumulative state above both equilibria of a quadratic with positive X² term.
+    const bass = odeStructure({ state: 'cumulative', powers: [0, 1, 2], dt: 1 });
+    const grow = Float64Array.of(46.6, 0.0984, 1.19e-6);
+    expect(odeStable(bass, grow)).toBe(true);
+    expect(odeStable(bass, grow, { series: indexed([100, 200, 300]), to: 3 })).toBe(false);
+    expect(odeFamily.unstableReason).toMatch(/finite time/);
   });
 });
 
