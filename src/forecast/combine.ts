@@ -163,6 +163,7 @@ export function combineForecasts(
 ): Combination {
   const used: CombinationMember[] = [];
   const totals = new Map<string, number>();
+  const summary = history ? summarise(history) : null;
   for (const m of members) {
     let forecast: Float64Array;
     let excluded: string | undefined;
@@ -170,8 +171,8 @@ export function combineForecasts(
       if (m.failure !== undefined) throw new Error(m.failure);
       forecast = simulate(m.structure, m.estimate);
       if (!forecast.every(Number.isFinite)) excluded = 'non-finite forecast';
-      else if (history && isExplosivePath(history, forecast)) excluded = 'explosive simulated path';
-      else if (history && leavesPositive(history, forecast)) excluded = 'path falls to zero or below on a series that has always been positive';
+      else if (summary && explodes(summary, forecast)) excluded = 'explosive simulated path';
+      else if (summary && turnsNonPositive(summary, forecast)) excluded = 'path falls to zero or below on a series that has always been positive';
     } catch (e) {
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
@@ -194,16 +195,6 @@ export function combineForecasts(
 }
 
 /**
- * The paths of `own` (a structure's forecast with its interval bands) moved onto the combined
- * point: at each step every band is shifted by point − own point, its width kept. The
- * combination replaces the point only; the uncertainty stays that of the asserted structure.
- */
-export function recentre(own: ForecastPaths, point: Float64Array): ForecastPaths {
-  const shift = (x: Float64Array) => Float64Array.from(x, (v, j) => v + point[j] - own.point[j]);
-  return { ...own, point: Float64Array.from(point), bands: own.bands.map((b) => ({ level: b.level, lower: shift(b.lower), upper: shift(b.upper) })) };
-}
-
-/**
  * Whether a combination replaces the asserted structure's own forecast: it does when some
  * member was used, its point is finite at every step, and it is not the asserted structure
  * alone.
@@ -212,6 +203,19 @@ export function replacesOwn(combination: Combination, assertedKey: string): bool
   const used = combination.members.filter((m) => !m.excluded);
   if (used.length === 0 || !combination.point.every(Number.isFinite)) return false;
   return !(used.length === 1 && used[0].key === assertedKey);
+}
+
+/**
+ * The delivered paths when `combination` replaces the asserted structure's own forecast `own`
+ * (`replacesOwn`), else null: `own` moved onto the combined point, every band shifted at each
+ * step by point − own point with its width kept. The combination replaces the point only; the
+ * uncertainty stays that of the asserted structure.
+ */
+export function combinedPaths(own: ForecastPaths, combination: Combination, assertedKey: string): ForecastPaths | null {
+  if (!replacesOwn(combination, assertedKey)) return null;
+  const point = combination.point;
+  const shift = (x: Float64Array) => Float64Array.from(x, (v, j) => v + point[j] - own.point[j]);
+  return { ...own, point: Float64Array.from(point), bands: own.bands.map((b) => ({ level: b.level, lower: shift(b.lower), upper: shift(b.upper) })) };
 }
 
 /** Convenience: the combination of a ranking's members simulated from `history`, inputs held at their last values. */
@@ -227,18 +231,7 @@ export function combineRanking(ranking: readonly CandidateResult[], history: Ser
  * @example isExplosivePath([1, 2, 3], [4, 5]) === false; isExplosivePath([1, 2, 3], [4, 1e6]) === true
  */
 export function isExplosivePath(history: ArrayLike<number>, forecast: ArrayLike<number>): boolean {
-  const n = history.length;
-  if (n === 0) return false;
-  let min = Infinity;
-  let max = -Infinity;
-  for (let t = 0; t < n; t++) {
-    if (history[t] < min) min = history[t];
-    if (history[t] > max) max = history[t];
-  }
-  const range = max - min;
-  const last = history[n - 1];
-  for (let k = 1; k <= forecast.length; k++) if (!(Math.abs(forecast[k - 1] - last) <= k * range)) return true;
-  return false;
+  return explodes(summarise(history), forecast);
 }
 
 /**
@@ -250,7 +243,41 @@ export function isExplosivePath(history: ArrayLike<number>, forecast: ArrayLike<
  * @example leavesPositive([3, 2, 1], [0.5, -0.2]) === true; leavesPositive([3, 0, 1], [-1]) === false
  */
 export function leavesPositive(history: ArrayLike<number>, forecast: ArrayLike<number>): boolean {
-  for (let t = 0; t < history.length; t++) if (!(history[t] > 0)) return false;
+  return turnsNonPositive(summarise(history), forecast);
+}
+
+/** What the path checks need of a history, computed once for all the members continuing it. */
+interface HistorySummary {
+  length: number;
+  last: number;
+  /** max − min. */
+  range: number;
+  /** Every value > 0. */
+  positive: boolean;
+}
+
+function summarise(history: ArrayLike<number>): HistorySummary {
+  const n = history.length;
+  let min = Infinity;
+  let max = -Infinity;
+  let positive = true;
+  for (let t = 0; t < n; t++) {
+    const v = history[t];
+    if (v < min) min = v;
+    if (v > max) max = v;
+    if (!(v > 0)) positive = false;
+  }
+  return { length: n, last: n > 0 ? history[n - 1] : NaN, range: max - min, positive };
+}
+
+function explodes(h: HistorySummary, forecast: ArrayLike<number>): boolean {
+  if (h.length === 0) return false;
+  for (let k = 1; k <= forecast.length; k++) if (!(Math.abs(forecast[k - 1] - h.last) <= k * h.range)) return true;
+  return false;
+}
+
+function turnsNonPositive(h: HistorySummary, forecast: ArrayLike<number>): boolean {
+  if (!h.positive) return false;
   for (let k = 0; k < forecast.length; k++) if (!(forecast[k] > 0)) return true;
   return false;
 }

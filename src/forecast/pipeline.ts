@@ -7,8 +7,9 @@
  * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
  * 80 and 95 %; forgetting λ = 1; future inputs repeat their last season (seasonal series) or
  * are held at their last values, unless given; the point forecast combines the leading
- * candidates, by Akaike weights within each family and with equal weights across families
- * (combine.ts; `combine: false` keeps the asserted structure's own path).
+ * candidates, by Akaike weights within each group (a family on one scale) and with equal weights
+ * across the groups the evidence has not ruled out (combine.ts; `combine: false` keeps the
+ * asserted structure's own path).
  *
  * Combination. The asserted structure stays the single winner (its equation, refit, online
  * learner and holdout evaluation are unchanged); only the final point forecast is the combined
@@ -26,7 +27,7 @@ import { backtest, type Backtest } from '../evaluate/backtest.js';
 import { forecastWithIntervals, type ForecastPaths, type IntervalMethod, type IntervalOptions } from './intervals.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
-import { combinationMembers, combineForecasts, recentre, replacesOwn, type Combination, type CombineOptions } from './combine.js';
+import { combinationMembers, combineForecasts, combinedPaths, type Combination, type CombineOptions } from './combine.js';
 
 export interface ForecastOptions {
   search?: SearchOptions;
@@ -228,6 +229,6 @@ function deliveredForecast(
     }
   });
   const combination = combineForecasts(members, h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
-  if (!replacesOwn(combination, structure.key)) return { paths: own, alone: null, combination };
-  return { paths: recentre(own, combination.point), alone: own, combination };
+  const moved = combinedPaths(own, combination, structure.key);
+  return moved ? { paths: moved, alone: own, combination } : { paths: own, alone: null, combination };
 }

@@ -77,7 +77,7 @@ import type { Structure } from '../models/structure.js';
 import { forward } from '../models/transforms.js';
 import { search, type SearchOptions, type SearchResult } from '../select/search.js';
 import { structureFromSpec } from '../models/registry.js';
-import { assertedFromBody, learnerFields, windowSeries, type AssertedState } from '../store/asserted.js';
+import { assertedFromBody, learnerFields, storedCombination, windowSeries, type AssertedState } from '../store/asserted.js';
 import { extendFingerprint, type DataRow } from '../store/fingerprint.js';
 import type { ModelBody, UpdateEntry } from '../store/model-file.js';
 import { extendWindow } from '../store/window.js';
@@ -86,7 +86,7 @@ import { defaultInputPolicy, futureByPolicy, type FutureInputs } from './future.
 import { forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
 import { Learner } from './online.js';
 import { defaultHorizon } from './pipeline.js';
-import { combinationMembers, combineForecasts, recentre, replacesOwn, type Combination, type Member } from './combine.js';
+import { combinationMembers, combineForecasts, combinedPaths, type Combination, type Member } from './combine.js';
 
 export type DriftPolicy = 'warn' | 'adapt' | 'research';
 export const DRIFT_POLICIES: readonly DriftPolicy[] = ['warn', 'adapt', 'research'];
@@ -678,14 +678,15 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
   const estimate = { theta: learner.theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };
   const own = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method });
   const combination = body.combination ? combineForecasts(storedMembers(body.combination, model), horizon, (s, e) => s.simulate(e.theta, series, inputs.values, horizon), series.values) : null;
-  const paths = combination && replacesOwn(combination, structure.key) ? recentre(own, combination.point) : own;
+  const moved = combination ? combinedPaths(own, combination, structure.key) : null;
+  const paths = moved ?? own;
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the updated equation diverges over this horizon`);
       break;
     }
   }
-  return { times, paths, inputs, horizon, levels, combination: combination && replacesOwn(combination, structure.key) ? combination : null };
+  return { times, paths, inputs, horizon, levels, combination: moved ? combination : null };
 }
 
 /** Member structures rebuilt from a body's combination, kept while the combination object lives. */
@@ -700,7 +701,7 @@ const memberStructures = new WeakMap<NonNullable<ModelBody['combination']>, Stru
 function storedMembers(stored: NonNullable<ModelBody['combination']>, model: AssertedState): Member[] {
   let structures = memberStructures.get(stored);
   if (structures === undefined) {
-    structures = stored.members.map((m) => (m.key === model.structure.key ? model.structure : structureFromSpec(m.structure)));
+    structures = stored.members.map((m) => structureFromSpec(m.structure));
     memberStructures.set(stored, structures);
   }
   return stored.members.map((m, i) => {
@@ -715,9 +716,7 @@ function storedMembers(stored: NonNullable<ModelBody['combination']>, model: Ass
 
 /** The members a re-search hands to the model file: its combination members with their window estimates. */
 function searchedCombination(ranking: SearchResult['ranking']): ModelBody['combination'] {
-  const members = combinationMembers(ranking);
-  if (members.length === 0) return undefined;
-  return { members: members.map((m) => ({ key: m.key, structure: m.structure.spec, theta: Array.from(m.estimate.theta), group: m.group, weight: m.weight })) };
+  return storedCombination(combinationMembers(ranking).map((m) => ({ key: m.key, spec: m.structure.spec, theta: m.estimate.theta, group: m.group, weight: m.weight })));
 }
 
 /** One-step residuals z_t − ẑ_t of θ over the window (scoring scale), t ≥ history. */

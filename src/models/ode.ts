@@ -193,6 +193,7 @@ export function odeStructure(options: OdeOptions): Structure {
  * term that moves the state. Names follow the same rule (`harmonicTermNames`).
  */
 interface OdeHarmonic {
+  k: number;
   omega: number;
   isSin: boolean;
 }
@@ -202,15 +203,15 @@ function odeHarmonics(K: number, season: number | null): OdeHarmonic[] {
   if (season === null) return out;
   for (let k = 1; k <= K; k++) {
     const omega = (2 * Math.PI * k) / season;
-    out.push({ omega, isSin: true });
-    if (2 * k !== season) out.push({ omega, isSin: false });
+    out.push({ k, omega, isSin: true });
+    if (2 * k !== season) out.push({ k, omega, isSin: false });
   }
   return out;
 }
 
 /** Term names of the ODE harmonics (see `odeHarmonics`), written as terms.ts writes them. */
 export function harmonicTermNames(K: number, season: number | null): string[] {
-  return odeHarmonics(K, season).map((h) => `${h.isSin ? 'sin' : 'cos'}(2π·${Math.round((h.omega * (season as number)) / (2 * Math.PI))}·t/${season})`);
+  return odeHarmonics(K, season).map((h) => `${h.isSin ? 'sin' : 'cos'}(2π·${h.k}·t/${season})`);
 }
 
 /**

@@ -6,7 +6,7 @@
 import { formatTime, type Frequency } from '../data/calendar.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
-import type { Combination } from '../forecast/combine.js';
+import { replacesOwn, type Combination } from '../forecast/combine.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
 import { candidatesCsv } from './candidates.js';
@@ -309,8 +309,8 @@ export function pointSource(run: ForecastRun): string {
 
 /** The same for any combination and asserted structure key (`certa forecast` and `certa update`). */
 export function describePoint(c: Combination | null, assertedKey: string): string {
-  const used = c ? c.members.filter((m) => !m.excluded) : [];
-  if (!c || used.length === 0 || (used.length === 1 && used[0].key === assertedKey)) return 'point from the asserted equation';
+  if (!c || !replacesOwn(c, assertedKey)) return 'point from the asserted equation';
+  const used = c.members.filter((m) => !m.excluded);
   const own = used.find((m) => m.key === assertedKey);
   const share = `the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
   if (c.groups > 1 && used.every((m) => m.group !== 'all')) {

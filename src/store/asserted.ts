@@ -81,7 +81,7 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
  * What a model file keeps of a combination: its members that were used (not left out), with
  * spec, coefficients, group and within-group weight. Undefined when no member was used.
  */
-export function storedCombination(members: readonly CombinationMember[]): ModelBody['combination'] {
+export function storedCombination(members: readonly Pick<CombinationMember, 'key' | 'spec' | 'theta' | 'group' | 'weight' | 'excluded'>[]): ModelBody['combination'] {
   const used = members.filter((m) => !m.excluded && m.weight > 0);
   if (used.length === 0) return undefined;
   return {
