@@ -8,6 +8,11 @@
  * each taking every k-th series; results are put back in file order, so the output does not
  * depend on the number of workers. `--every k` scores only every k-th series of each file (a
  * quick look; the full run is the benchmark).
+ *
+ * `--options '<json>'` passes forecast options to the pipeline instead of the defaults, to
+ * measure a variant on the same scoring, e.g. `--options '{"combine":false}'` (the winner
+ * alone), `'{"search":{"families":["damped"]}}'` (one family) or `'{"combine":{"maxDelta":1e9}}'`
+ * (equal weights over every group). The benchmark of record is the run without it.
  */
 import { readFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
@@ -26,6 +31,7 @@ import {
   type M3Summary,
 } from '../src/evaluate/m3.js';
 import { toCsv } from '../src/report/tables.js';
+import type { ForecastOptions } from '../src/forecast/pipeline.js';
 import { writeFileAtomicSync } from '../src/store/atomic.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
@@ -40,6 +46,7 @@ interface Job {
   every: number;
   part: number;
   parts: number;
+  options: ForecastOptions;
 }
 
 function runPart(job: Job): { index: number; result: M3Result }[] {
@@ -47,7 +54,7 @@ function runPart(job: Job): { index: number; result: M3Result }[] {
   const mine = items.map((item, index) => ({ item, index })).filter(({ index }) => index % job.parts === job.part);
   const results = scoreM3(
     mine.map((m) => m.item),
-    certaForecaster(),
+    certaForecaster(job.options),
   );
   return results.map((result, i) => ({ index: mine[i].index, result }));
 }
@@ -58,6 +65,21 @@ function option(name: string, fallback: number): number {
   const v = Number(process.argv[at + 1]);
   if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} needs a whole number ≥ 1, got ${process.argv[at + 1]}`);
   return v;
+}
+
+/** `--options '<json>'`: forecast options for a variant (an object), or none. */
+function forecastOptions(): ForecastOptions {
+  const at = process.argv.indexOf('--options');
+  if (at < 0) return {};
+  const text = process.argv[at + 1] ?? '';
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch {
+    throw new Error(`--options needs a JSON object, got ${text}`);
+  }
+  if (value === null || typeof value !== 'object' || Array.isArray(value)) throw new Error(`--options needs a JSON object, got ${text}`);
+  return value as ForecastOptions;
 }
 
 function pad(s: string, w: number, right = false): string {
@@ -92,6 +114,7 @@ const boot = `import(${JSON.stringify(import.meta.resolve('tsx/esm/api'))}).then
 
 async function main(): Promise<void> {
   const every = option('every', 1);
+  const options = forecastOptions();
   const parts = option('workers', Math.max(1, Math.min(2, availableParallelism())));
   const started = performance.now();
   const chunks = await Promise.all(
@@ -99,7 +122,7 @@ async function main(): Promise<void> {
       { length: parts },
       (_, part) =>
         new Promise<{ index: number; result: M3Result }[]>((resolve, reject) => {
-          const w = new Worker(boot, { eval: true, workerData: { every, part, parts } satisfies Job });
+          const w = new Worker(boot, { eval: true, workerData: { every, part, parts, options } satisfies Job });
           w.once('message', resolve);
           w.once('error', reject);
           w.once('exit', (code) => {
@@ -120,7 +143,8 @@ async function main(): Promise<void> {
   writeFileAtomicSync(out, toCsv(columns, rows), { mkdir: true });
 
   const summaries = summariseM3ByFrequency(results);
-  process.stdout.write(`M3 accuracy, certa default pipeline${every > 1 ? ` (every ${every}th series)` : ''}\n\n`);
+  const variant = Object.keys(options).length > 0 ? `, options ${JSON.stringify(options)}` : ' default pipeline';
+  process.stdout.write(`M3 accuracy, certa${variant}${every > 1 ? ` (every ${every}th series)` : ''}\n\n`);
   process.stdout.write(`${table(summaries)}\n\n`);
   process.stdout.write('sMAPE in percent (mean over horizons, then series); MASE scale: in-sample naive (yearly), seasonal naive m = 4 (quarterly).\n');
   process.stdout.write('"beats Naive2": share of series with a strictly lower sMAPE than Naive2. Published: Makridakis & Hibon (2000), via Oreshkin et al. (2020) Table 14.\n');
