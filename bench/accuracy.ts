@@ -1,8 +1,12 @@
 /**
  * `npm run bench:accuracy`: certa's default automatic pipeline on every yearly (645, horizon 6)
- * and quarterly (756, horizon 8) series of the M3 competition (datasets/m3), scored as in the
- * competition (src/evaluate/m3.ts). Prints a table per category and overall beside the
- * published reference scores, and writes one row per series to output/bench/m3.csv.
+ * and quarterly (756, horizon 8) series of the M3 competition and on the development halves of
+ * its monthly (714, horizon 18) and "other" (87, horizon 8) files (datasets/m3), scored as in the
+ * competition (src/evaluate/m3.ts). Prints a point-accuracy table per category and overall beside
+ * the published reference scores, an interval table (coverage of each band over all steps, at
+ * the first and the last step, and the MSIS of the 95 % band, beside the seasonal-naive Gaussian
+ * reference interval), and writes one row per series to output/bench/m3.csv.
+ * `--categories yearly,monthly` scores only those files.
  *
  * The series are split over worker threads (one per core, at most 2 by default; `--workers k`),
  * each taking every k-th series; results are put back in file order, so the output does not
@@ -20,8 +24,10 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
 import {
+  M3_CATEGORIES,
   M3_FALLBACK,
   M3_PUBLISHED,
+  type M3Category,
   certaForecaster,
   parseM3,
   scoreM3,
@@ -36,21 +42,23 @@ import { writeFileAtomicSync } from '../src/store/atomic.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 
-function loadItems(every: number): M3Item[] {
-  const read = (file: string, f: 'yearly' | 'quarterly') => parseM3(readFileSync(join(root, 'datasets/m3', file), 'utf8'), f, `datasets/m3/${file}`);
-  const keep = (items: M3Item[]) => items.filter((_, i) => i % every === 0);
-  return [...keep(read('M3Year.csv', 'yearly')), ...keep(read('M3Quart.csv', 'quarterly'))];
+const FILES: Record<M3Category, string> = { yearly: 'M3Year.csv', quarterly: 'M3Quart.csv', monthly: 'M3Month-dev.csv', other: 'M3Other-dev.csv' };
+
+function loadItems(every: number, categories: readonly M3Category[]): M3Item[] {
+  const read = (f: M3Category) => parseM3(readFileSync(join(root, 'datasets/m3', FILES[f]), 'utf8'), f, `datasets/m3/${FILES[f]}`);
+  return categories.flatMap((f) => read(f).filter((_, i) => i % every === 0));
 }
 
 interface Job {
   every: number;
+  categories: M3Category[];
   part: number;
   parts: number;
   options: ForecastOptions;
 }
 
 function runPart(job: Job): { index: number; result: M3Result }[] {
-  const items = loadItems(job.every);
+  const items = loadItems(job.every, job.categories);
   const mine = items.map((item, index) => ({ item, index })).filter(({ index }) => index % job.parts === job.part);
   const results = scoreM3(
     mine.map((m) => m.item),
@@ -65,6 +73,15 @@ function option(name: string, fallback: number): number {
   const v = Number(process.argv[at + 1]);
   if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} needs a whole number ≥ 1, got ${process.argv[at + 1]}`);
   return v;
+}
+
+/** `--categories a,b`: the files to score (default all four). */
+function categoriesOption(): M3Category[] {
+  const at = process.argv.indexOf('--categories');
+  if (at < 0) return [...M3_CATEGORIES];
+  const list = (process.argv[at + 1] ?? '').split(',').map((s) => s.trim());
+  for (const c of list) if (!(M3_CATEGORIES as readonly string[]).includes(c)) throw new Error(`--categories takes ${M3_CATEGORIES.join(', ')}, got ${c}`);
+  return M3_CATEGORIES.filter((c) => list.includes(c));
 }
 
 /** `--options '<json>'`: forecast options for a variant (an object), or none. */
@@ -89,7 +106,7 @@ function pad(s: string, w: number, right = false): string {
 function table(summaries: M3Summary[]): string {
   const head = ['category', 'series', 'sMAPE', 'MASE', 'beats Naive2', 'Naive2 sMAPE', 'Naive2 MASE', 'pub. Naive2', 'pub. Theta', 'pub. B-J auto', 'failures'];
   const rows = summaries.map((s) => {
-    const pub = s.group === 'yearly' || s.group === 'quarterly' ? M3_PUBLISHED[s.group] : null;
+    const pub = s.group in M3_PUBLISHED ? M3_PUBLISHED[s.group as M3Category] : null;
     return [
       s.group,
       String(s.series),
@@ -104,9 +121,42 @@ function table(summaries: M3Summary[]): string {
       String(s.failures),
     ];
   });
+  return layout(head, rows);
+}
+
+function layout(head: string[], rows: string[][]): string {
   const widths = head.map((h, j) => Math.max(h.length, ...rows.map((r) => r[j].length)));
   const line = (cells: string[]) => cells.map((c, j) => pad(c, widths[j], j === 0)).join('  ');
   return [line(head), line(widths.map((w) => '-'.repeat(w))), ...rows.map(line)].join('\n');
+}
+
+/** Coverage and MSIS per category: certa's bands beside the seasonal-naive Gaussian reference. */
+function intervalTable(summaries: M3Summary[]): string {
+  const pct = (x: number | undefined) => (x === undefined || !Number.isFinite(x) ? '' : `${(100 * x).toFixed(1)}`);
+  const at = (list: M3Summary['bands'], level: number) => list.find((b) => b.level === level);
+  const head = ['category', 'series', 'cover 80', '80 @1', '80 @h', 'cover 95', '95 @1', '95 @h', 'MSIS 95', 'ref cover 80', 'ref cover 95', 'ref 95 @h', 'ref MSIS 95'];
+  const rows = summaries.map((s) => {
+    const b80 = at(s.bands, 80);
+    const b95 = at(s.bands, 95);
+    const r80 = at(s.referenceBands, 80);
+    const r95 = at(s.referenceBands, 95);
+    return [
+      s.group,
+      String(b95?.series ?? 0),
+      pct(b80?.coverage),
+      pct(b80?.first),
+      pct(b80?.last),
+      pct(b95?.coverage),
+      pct(b95?.first),
+      pct(b95?.last),
+      b95 ? b95.scaledScore.toFixed(2) : '',
+      pct(r80?.coverage),
+      pct(r95?.coverage),
+      pct(r95?.last),
+      r95 ? r95.scaledScore.toFixed(2) : '',
+    ];
+  });
+  return layout(head, rows);
 }
 
 /** Worker entry: registers the TypeScript loader in the worker, then loads this file. */
@@ -114,6 +164,7 @@ const boot = `import(${JSON.stringify(import.meta.resolve('tsx/esm/api'))}).then
 
 async function main(): Promise<void> {
   const every = option('every', 1);
+  const categories = categoriesOption();
   const options = forecastOptions();
   const parts = option('workers', Math.max(1, Math.min(2, availableParallelism())));
   const started = performance.now();
@@ -122,7 +173,7 @@ async function main(): Promise<void> {
       { length: parts },
       (_, part) =>
         new Promise<{ index: number; result: M3Result }[]>((resolve, reject) => {
-          const w = new Worker(boot, { eval: true, workerData: { every, part, parts, options } satisfies Job });
+          const w = new Worker(boot, { eval: true, workerData: { every, categories, part, parts, options } satisfies Job });
           w.once('message', resolve);
           w.once('error', reject);
           w.once('exit', (code) => {
@@ -137,8 +188,28 @@ async function main(): Promise<void> {
     .sort((a, b) => a.index - b.index)
     .map((c) => c.result);
 
-  const columns = ['series', 'frequency', 'domain', 'train', 'horizon', 'model', 'failure', 'smape', 'mase', 'naive2_smape', 'naive2_mase', 'ms'];
-  const rows = results.map((r) => [r.id, r.frequency, r.domain, r.train, r.horizon, r.model, r.failure, r.smape, r.mase, r.naive2Smape, r.naive2Mase, Math.round(r.ms * 10) / 10]);
+  const band = (r: M3Result, level: number) => r.bands.find((b) => b.level === level);
+  const ref95 = (r: M3Result) => r.referenceBands.find((b) => b.level === 95);
+  const columns = ['series', 'category', 'domain', 'train', 'horizon', 'model', 'failure', 'smape', 'mase', 'naive2_smape', 'naive2_mase', 'cover_80', 'cover_95', 'msis_95', 'ref_cover_95', 'ref_msis_95', 'ms'];
+  const rows = results.map((r) => [
+    r.id,
+    r.frequency,
+    r.domain,
+    r.train,
+    r.horizon,
+    r.model,
+    r.failure,
+    r.smape,
+    r.mase,
+    r.naive2Smape,
+    r.naive2Mase,
+    band(r, 80)?.coverage ?? null,
+    band(r, 95)?.coverage ?? null,
+    band(r, 95)?.scaledScore ?? null,
+    ref95(r)?.coverage ?? null,
+    ref95(r)?.scaledScore ?? null,
+    Math.round(r.ms * 10) / 10,
+  ]);
   const out = join(root, 'output/bench/m3.csv');
   writeFileAtomicSync(out, toCsv(columns, rows), { mkdir: true });
 
@@ -146,8 +217,12 @@ async function main(): Promise<void> {
   const variant = Object.keys(options).length > 0 ? `, options ${JSON.stringify(options)}` : ' default pipeline';
   process.stdout.write(`M3 accuracy, certa${variant}${every > 1 ? ` (every ${every}th series)` : ''}\n\n`);
   process.stdout.write(`${table(summaries)}\n\n`);
-  process.stdout.write('sMAPE in percent (mean over horizons, then series); MASE scale: in-sample naive (yearly), seasonal naive m = 4 (quarterly).\n');
-  process.stdout.write('"beats Naive2": share of series with a strictly lower sMAPE than Naive2. Published: Makridakis & Hibon (2000), via Oreshkin et al. (2020) Table 14.\n');
+  process.stdout.write('sMAPE in percent (mean over horizons, then series); MASE scale: in-sample naive (yearly, other), seasonal naive m = 4 (quarterly), m = 12 (monthly).\n');
+  process.stdout.write('"beats Naive2": share of series with a strictly lower sMAPE than Naive2. Published: Makridakis & Hibon (2000), via Oreshkin et al. (2020) Table 14;\n');
+  process.stdout.write('monthly and other are development halves (every 2nd series), so their published whole-category values are a yardstick only.\n\n');
+  process.stdout.write(`Prediction intervals\n\n${intervalTable(summaries)}\n\n`);
+  process.stdout.write('Coverage in percent: over all test steps, at step 1 (@1) and at the last step (@h). MSIS: interval score of the 95 % band scaled by the MASE scale\n');
+  process.stdout.write('(Makridakis, Spiliotis & Assimakopoulos 2020, IJF 36(1)); lower is better. ref: the seasonal naive forecast with Gaussian bands (seasonal random walk variance).\n');
   const failed = results.filter((r) => r.failure !== null);
   if (failed.length > 0) {
     process.stdout.write(`\n${failed.length} series failed and were scored with the ${M3_FALLBACK} forecast:\n`);

@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import { formatTime } from '../../src/data/calendar.js';
 import { DataError } from '../../src/data/errors.js';
 import { naive2 } from '../../src/evaluate/baselines.js';
-import { parseM3, scoreM3, scoreM3Item, summariseM3ByFrequency, type PointForecaster } from '../../src/evaluate/m3.js';
+import { parseM3, scoreM3, scoreM3Item, seasonalNaiveGaussian, summariseM3ByFrequency, type PointForecaster } from '../../src/evaluate/m3.js';
+import { maseScale } from '../../src/evaluate/metrics.js';
 
 const read = (file: string) => readFileSync(new URL(`../../datasets/m3/${file}`, import.meta.url), 'utf8');
 const yearly = parseM3(read('M3Year.csv'), 'yearly', 'M3Year.csv');
@@ -34,6 +35,17 @@ describe('parseM3 on the competition files (datasets/m3/README.md)', () => {
     expect(formatTime(s.time[5], 'quarterly')).toBe('1985-Q2');
     const odd = quarterly.find((i) => i.id === 'N1071');
     expect(odd && formatTime(odd.series.time[0], 'quarterly')).toBe('1984-Q3');
+  });
+
+  it('reads the monthly (714, horizon 18, season 12) and other (87, horizon 8, step counter) development halves', () => {
+    const monthly = parseM3(read('M3Month-dev.csv'), 'monthly', 'M3Month-dev.csv');
+    const other = parseM3(read('M3Other-dev.csv'), 'other', 'M3Other-dev.csv');
+    expect(monthly.length).toBe(714);
+    expect(other.length).toBe(87);
+    expect(monthly.every((i) => i.horizon === 18 && i.series.season === 12 && i.series.frequency === 'monthly')).toBe(true);
+    expect(other.every((i) => i.horizon === 8 && i.series.season === null && i.series.frequency === 'index')).toBe(true);
+    expect(formatTime(monthly[0].series.time[1], 'monthly')).toBe('1990-02');
+    expect(Array.from(other[0].series.time.subarray(0, 3))).toEqual([1, 2, 3]);
   });
 
   it('refuses a row whose n disagrees with its values with a DataError naming the row', () => {
@@ -91,5 +103,49 @@ describe('Naive2 on the whole M3 yearly and quarterly sets', () => {
   it('comes within 0.1 of the published quarterly Naive2 sMAPE of 9.95', () => {
     expect(summaries[1].group).toBe('quarterly');
     expect(Math.abs(summaries[1].smape - 9.95)).toBeLessThan(0.1);
+  });
+});
+
+describe('interval scores (M4 definition of MSIS: Makridakis, Spiliotis & Assimakopoulos 2020)', () => {
+  it('gives the seasonal random-walk bands F ± z·σ·√(⌊(k−1)/m⌋+1) (Hyndman & Athanasopoulos 2021, §5.5)', () => {
+    const { point, bands } = seasonalNaiveGaussian(Float64Array.from([1, 2, 3, 4]), 2, 1, [95]);
+    expect(Array.from(point)).toEqual([4, 4]);
+    // in-sample naive errors are all 1, so σ = 1; z(0.975) = 1.959964
+    expect(bands[0].upper[0] - 4).toBeCloseTo(1.959964, 5);
+    expect(bands[0].upper[1] - 4).toBeCloseTo(1.959964 * Math.SQRT2, 5);
+    const seasonal = seasonalNaiveGaussian(Float64Array.from([1, 5, 2, 6, 3, 7]), 4, 2, [80]);
+    expect(Array.from(seasonal.point)).toEqual([3, 7, 3, 7]);
+    const w = (k: number) => seasonal.bands[0].upper[k] - seasonal.point[k];
+    expect(w(1)).toBeCloseTo(w(0), 12);
+    expect(w(2) / w(0)).toBeCloseTo(Math.SQRT2, 12);
+  });
+
+  it('scores a band of half-width 1 around the truth with full coverage and MSIS = 2 / Q', () => {
+    const item = yearly[0];
+    const n = item.series.values.length - item.horizon;
+    const actual = item.series.values.subarray(n);
+    const r = scoreM3Item(item, (_, h) => ({
+      forecast: actual.slice(0, h),
+      model: 'truth',
+      bands: [{ level: 95, lower: actual.map((x) => x - 1), upper: actual.map((x) => x + 1) }],
+    }));
+    expect(r.bands).toHaveLength(1);
+    expect(r.bands[0].coverage).toBe(1);
+    expect(r.bands[0].first).toBe(1);
+    expect(r.bands[0].last).toBe(1);
+    expect(r.bands[0].scaledScore).toBeCloseTo(2 / maseScale(item.series.values.subarray(0, n), 1), 12);
+  });
+
+  it('charges a miss by d at the 95 % level 2/0.05·d beyond the width (Gneiting & Raftery 2007, eq. 43)', () => {
+    const item = yearly[0];
+    const n = item.series.values.length - item.horizon;
+    const actual = item.series.values.subarray(n);
+    const r = scoreM3Item(item, (_, h) => ({
+      forecast: actual.slice(0, h),
+      model: 'low',
+      bands: [{ level: 95, lower: actual.map((x) => x - 3), upper: actual.map((x) => x - 1) }],
+    }));
+    expect(r.bands[0].coverage).toBe(0);
+    expect(r.bands[0].scaledScore).toBeCloseTo((2 + 40 * 1) / maseScale(item.series.values.subarray(0, n), 1), 12);
   });
 });
