@@ -190,7 +190,7 @@ async function main(): Promise<void> {
 
   const band = (r: M3Result, level: number) => r.bands.find((b) => b.level === level);
   const ref95 = (r: M3Result) => r.referenceBands.find((b) => b.level === 95);
-  const columns = ['series', 'category', 'domain', 'train', 'horizon', 'model', 'failure', 'smape', 'mase', 'naive2_smape', 'naive2_mase', 'cover_80', 'cover_95', 'msis_95', 'ref_cover_95', 'ref_msis_95', 'ms'];
+  const columns = ['series', 'category', 'domain', 'train', 'horizon', 'model', 'failure', 'smape', 'mase', 'naive2_smape', 'naive2_mase', 'band_method', 'cover_80', 'cover_95', 'msis_95', 'ref_cover_95', 'ref_msis_95', 'ms'];
   const rows = results.map((r) => [
     r.id,
     r.frequency,
@@ -203,6 +203,7 @@ async function main(): Promise<void> {
     r.mase,
     r.naive2Smape,
     r.naive2Mase,
+    r.bandMethod,
     band(r, 80)?.coverage ?? null,
     band(r, 95)?.coverage ?? null,
     band(r, 95)?.scaledScore ?? null,

@@ -134,7 +134,7 @@ export interface M3Band {
 }
 
 /** A forecaster under test: h point forecasts (and, optionally, bands) from the training series, and a label. */
-export type PointForecaster = (train: Series, h: number) => { forecast: Float64Array; model: string; bands?: M3Band[] };
+export type PointForecaster = (train: Series, h: number) => { forecast: Float64Array; model: string; bands?: M3Band[]; bandMethod?: string };
 
 /**
  * certa's default automatic pipeline (`forecastSeries`, as `certa forecast` runs it) with no
@@ -144,7 +144,7 @@ export function certaForecaster(options: ForecastOptions = {}): PointForecaster 
   return (train, h) => {
     const run = forecastSeries(train, { levels: [...M3_LEVELS], ...options, holdout: 0, horizon: h });
     const bands = run.forecast.paths.bands.map((b) => ({ level: b.level, lower: b.lower, upper: b.upper }));
-    return { forecast: run.forecast.paths.point, model: run.asserted.structure.key, bands };
+    return { forecast: run.forecast.paths.point, model: run.asserted.structure.key, bands, bandMethod: run.forecast.paths.method + (run.forecast.paths.calibration ? ` (${run.forecast.paths.calibration.scale} scale)` : '') };
   };
 }
 
@@ -178,6 +178,8 @@ export interface M3Result {
   naive2Mase: number;
   /** The forecaster's bands (empty when it gives none or failed: then no interval score). */
   bands: M3BandScore[];
+  /** How the forecaster made its bands, when it says. */
+  bandMethod: string | null;
   /** The same scores of the reference interval (`seasonalNaiveGaussian`) at the benchmark's levels. */
   referenceBands: M3BandScore[];
   /** Wall time of the forecaster on this series, milliseconds. */
@@ -251,6 +253,7 @@ export function scoreM3Item(item: M3Item, forecaster: PointForecaster): M3Result
   const base = naive2(trainValues, h, series.season);
   let forecast: Float64Array = base;
   let bands: M3Band[] = [];
+  let bandMethod: string | null = null;
   let model = M3_FALLBACK;
   let failure: string | null = null;
   const start = performance.now();
@@ -261,7 +264,10 @@ export function scoreM3Item(item: M3Item, forecaster: PointForecaster): M3Result
     else {
       forecast = out.forecast;
       model = out.model;
-      if (validBands(out.bands, h)) bands = out.bands;
+      if (validBands(out.bands, h)) {
+        bands = out.bands;
+        bandMethod = out.bandMethod ?? null;
+      }
     }
   } catch (e) {
     failure = e instanceof Error ? e.message : String(e);
@@ -281,6 +287,7 @@ export function scoreM3Item(item: M3Item, forecaster: PointForecaster): M3Result
     naive2Smape: smape(actual, base).value,
     naive2Mase: mase(actual, base, trainValues, m),
     bands: bandScores(actual, bands, scale),
+    bandMethod,
     referenceBands: bandScores(actual, seasonalNaiveGaussian(trainValues, h, m, M3_LEVELS).bands, scale),
     ms,
   };

@@ -163,7 +163,7 @@ export function combineForecasts(
 ): Combination {
   const used: CombinationMember[] = [];
   const totals = new Map<string, number>();
-  const summary = history ? summarise(history) : null;
+  const summary = history ? summariseHistory(history) : null;
   for (const m of members) {
     let forecast: Float64Array;
     let excluded: string | undefined;
@@ -171,8 +171,7 @@ export function combineForecasts(
       if (m.failure !== undefined) throw new Error(m.failure);
       forecast = simulate(m.structure, m.estimate);
       if (!forecast.every(Number.isFinite)) excluded = 'non-finite forecast';
-      else if (summary && explodes(summary, forecast)) excluded = 'explosive simulated path';
-      else if (summary && turnsNonPositive(summary, forecast)) excluded = 'path falls to zero or below on a series that has always been positive';
+      else excluded = summary ? (pathFault(summary, forecast) ?? undefined) : undefined;
     } catch (e) {
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
@@ -231,7 +230,7 @@ export function combineRanking(ranking: readonly CandidateResult[], history: Ser
  * @example isExplosivePath([1, 2, 3], [4, 5]) === false; isExplosivePath([1, 2, 3], [4, 1e6]) === true
  */
 export function isExplosivePath(history: ArrayLike<number>, forecast: ArrayLike<number>): boolean {
-  return explodes(summarise(history), forecast);
+  return explodes(summariseHistory(history), forecast);
 }
 
 /**
@@ -243,20 +242,33 @@ export function isExplosivePath(history: ArrayLike<number>, forecast: ArrayLike<
  * @example leavesPositive([3, 2, 1], [0.5, -0.2]) === true; leavesPositive([3, 0, 1], [-1]) === false
  */
 export function leavesPositive(history: ArrayLike<number>, forecast: ArrayLike<number>): boolean {
-  return turnsNonPositive(summarise(history), forecast);
+  return turnsNonPositive(summariseHistory(history), forecast);
+}
+
+/**
+ * Why a finite forecast path continuing a history is left out of a combination (explosive, or
+ * leaving the positive values of an always-positive series), or null when it passes.
+ */
+export function pathFault(h: HistorySummary, forecast: ArrayLike<number>): string | null {
+  if (explodes(h, forecast)) return 'explosive simulated path';
+  if (turnsNonPositive(h, forecast)) return 'path falls to zero or below on a series that has always been positive';
+  return null;
 }
 
 /** What the path checks need of a history, computed once for all the members continuing it. */
-interface HistorySummary {
+export interface HistorySummary {
   length: number;
   last: number;
+  min: number;
+  max: number;
   /** max − min. */
   range: number;
   /** Every value > 0. */
   positive: boolean;
 }
 
-function summarise(history: ArrayLike<number>): HistorySummary {
+/** The summary of a history for `pathFault`. */
+export function summariseHistory(history: ArrayLike<number>): HistorySummary {
   const n = history.length;
   let min = Infinity;
   let max = -Infinity;
@@ -267,7 +279,14 @@ function summarise(history: ArrayLike<number>): HistorySummary {
     if (v > max) max = v;
     if (!(v > 0)) positive = false;
   }
-  return { length: n, last: n > 0 ? history[n - 1] : NaN, range: max - min, positive };
+  return { length: n, last: n > 0 ? history[n - 1] : NaN, min, max, range: max - min, positive };
+}
+
+/** The summary of a history extended by one value. */
+export function extendSummary(h: HistorySummary, value: number): HistorySummary {
+  const min = h.length === 0 ? value : Math.min(h.min, value);
+  const max = h.length === 0 ? value : Math.max(h.max, value);
+  return { length: h.length + 1, last: value, min, max, range: max - min, positive: h.positive && value > 0 };
 }
 
 function explodes(h: HistorySummary, forecast: ArrayLike<number>): boolean {

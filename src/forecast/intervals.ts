@@ -22,14 +22,18 @@ import type { Series } from '../data/series.js';
 import type { Estimate, Structure } from '../models/structure.js';
 import { createRng } from '../linalg/random.js';
 import { normalQuantile } from './normal.js';
+import type { Calibration, CalibrationOptions } from './calibrate.js';
 
-export type IntervalMethod = 'analytic' | 'bootstrap';
+/** How bands were made: from the asserted equation (`analytic`, `bootstrap`) or from measured errors (`calibrated`, calibrate.ts). */
+export type IntervalMethod = 'analytic' | 'bootstrap' | 'calibrated';
 
 export interface IntervalOptions {
   /** Nominal coverage levels in percent, e.g. [80, 95]. */
   levels: number[];
-  /** Force a method; by default analytic when the structure is linear, else bootstrap. */
+  /** Force a method; by default analytic when the structure is linear, else bootstrap ('calibrated' is the pipeline's, calibrate.ts). */
   method?: IntervalMethod;
+  /** Options of the calibrated method. */
+  calibration?: CalibrationOptions;
   /** Number of bootstrap paths (default 1000). */
   draws?: number;
   /** Seed of the bootstrap's random source (default 1). */
@@ -50,6 +54,8 @@ export interface ForecastPaths {
   method: IntervalMethod;
   /** Standard deviation of the h-step error per step (analytic method only). */
   sd?: Float64Array;
+  /** The measured error spread the bands come from (calibrated method only). */
+  calibration?: Calibration;
 }
 
 /** True when a structure's forecast error is linear in its shocks on the original scale. */
@@ -71,7 +77,7 @@ export function forecastWithIntervals(
   options: IntervalOptions,
 ): ForecastPaths {
   const point = structure.simulate(estimate.theta, history, future, h);
-  const method = options.method ?? (isLinearStructure(structure) ? 'analytic' : 'bootstrap');
+  const method = options.method === undefined || options.method === 'calibrated' ? (isLinearStructure(structure) ? 'analytic' : 'bootstrap') : options.method;
   if (method === 'analytic') return analytic(structure, estimate, history, future, h, point, options.levels);
   return bootstrap(structure, estimate, history, future, h, point, residuals, options);
 }

@@ -27,7 +27,8 @@ import { backtest, type Backtest } from '../evaluate/backtest.js';
 import { forecastWithIntervals, type ForecastPaths, type IntervalMethod, type IntervalOptions } from './intervals.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
-import { combinationMembers, combineForecasts, combinedPaths, type Combination, type CombineOptions } from './combine.js';
+import { combinationMembers, combineForecasts, combinedPaths, replacesOwn, type Combination, type CombineOptions, type Member } from './combine.js';
+import { calibrate, calibratedBands, memberSpread, type CalibrationOptions } from './calibrate.js';
 
 export interface ForecastOptions {
   search?: SearchOptions;
@@ -39,7 +40,7 @@ export interface ForecastOptions {
   inputPolicy?: InputPolicy;
   /** Future inputs for the final forecast (from a file); overrides `inputPolicy`. */
   future?: (history: Series, h: number, times: number[]) => FutureInputs;
-  intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean };
+  intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean; calibration?: CalibrationOptions };
   /** Point forecast combined over the leading candidates (combine.ts; default on); false = the winner's path. */
   combine?: CombineOptions | false;
 }
@@ -132,7 +133,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
   let evaluation: Backtest | null = null;
   if (holdout > 0) {
     const fixedInputs = series.inputs.map((i) => i.values.slice(nTrain, n));
-    const fixed = deliveredForecast(found, structure, found.winner.estimate, train, fixedInputs, holdout, found.winner.residuals, intervalOptions, combine, (_, e) => e);
+    const fixed = deliveredForecast(found, structure, found.winner.estimate, train, fixedInputs, holdout, found.winner.residuals, intervalOptions, combine, (_, e) => e, from);
     evaluation = backtest(structure, found.winner.estimate, series, nTrain, {
       horizon,
       lambda: forgetting,
@@ -168,7 +169,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
         : futureByPolicy(series, horizon, options.inputPolicy ?? defaultInputPolicy(series));
   // Members other than the winner are refitted on all data after a holdout search.
   const refit = (s: Structure, e: Estimate): Estimate => (s.key === structure.key ? estimate : holdout > 0 ? s.estimate(series, from, n) : e);
-  const { paths, combination } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit);
+  const { paths, combination } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit, from);
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the asserted equation diverges over this horizon`);
@@ -218,17 +219,40 @@ function deliveredForecast(
   intervals: IntervalOptions,
   combine: CombineOptions | null,
   refit: (s: Structure, e: Estimate) => Estimate,
+  from: number,
 ): { paths: ForecastPaths; alone: ForecastPaths | null; combination: Combination | null } {
-  const own = forecastWithIntervals(structure, estimate, history, future, h, residuals, intervals);
-  if (combine === null) return { paths: own, alone: null, combination: null };
-  const members = combinationMembers(found.ranking, combine).map((m) => {
-    try {
-      return { ...m, estimate: refit(m.structure, m.estimate) };
-    } catch (e) {
-      return { ...m, failure: e instanceof Error ? e.message : String(e) };
+  const calibrated = intervals.method === undefined || intervals.method === 'calibrated';
+  const modelOptions: IntervalOptions = calibrated ? { ...intervals, method: undefined } : intervals;
+  let own: ForecastPaths | null = null;
+  const ownPaths = (): ForecastPaths => (own ??= forecastWithIntervals(structure, estimate, history, future, h, residuals, modelOptions));
+  let combination: Combination | null = null;
+  let members: (Member & { share: number })[] = [{ key: structure.key, structure, estimate, group: '', weight: 1, share: 1 }];
+  let point: Float64Array = structure.simulate(estimate.theta, history, future, h);
+  if (combine !== null) {
+    const candidates = combinationMembers(found.ranking, combine).map((m) => {
+      try {
+        return { ...m, estimate: refit(m.structure, m.estimate) };
+      } catch (e) {
+        return { ...m, failure: e instanceof Error ? e.message : String(e) };
+      }
+    });
+    combination = combineForecasts(candidates, h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
+    if (replacesOwn(combination, structure.key)) {
+      point = Float64Array.from(combination.point);
+      const shares = new Map(combination.members.map((m) => [m.key, m.share]));
+      members = candidates.filter((m) => m.failure === undefined).map((m) => ({ ...m, share: shares.get(m.key) ?? 0 }));
     }
-  });
-  const combination = combineForecasts(members, h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
-  const moved = combinedPaths(own, combination, structure.key);
-  return moved ? { paths: moved, alone: own, combination } : { paths: own, alone: null, combination };
+  }
+  const replaced = members.length > 1 || members[0].key !== structure.key;
+  const calibration = calibrated ? calibrate(members, history, from, h, intervals.levels, intervals.calibration) : null;
+  let paths: ForecastPaths;
+  if (calibration) {
+    const used = replaced && combination ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
+    const spread = memberSpread(used, point, calibration.scale);
+    paths = { point, bands: calibratedBands(point, calibration, intervals.levels, spread), method: 'calibrated', calibration };
+  }
+  else if (replaced) paths = combinedPaths(ownPaths(), combination as Combination, structure.key) as ForecastPaths;
+  else paths = ownPaths();
+  const alone = replaced ? (calibration ? { point: structure.simulate(estimate.theta, history, future, h), bands: [], method: paths.method } : ownPaths()) : null;
+  return { paths, alone, combination };
 }

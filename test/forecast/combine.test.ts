@@ -182,9 +182,9 @@ describe('two-level weights: Akaike weights within a group, equal weights across
 });
 
 describe('forecastSeries with combination', () => {
-  it('by default forecasts the combination and moves the bands with it; combine: false keeps the winner’s path', () => {
-    const own = forecastSeries(noisy, { holdout: 0, horizon: 4, combine: false });
-    const mixed = forecastSeries(noisy, { holdout: 0, horizon: 4 });
+  it('forecasts the combination and, with the asserted equation’s own bands, moves them with it; combine: false keeps the winner’s path', () => {
+    const own = forecastSeries(noisy, { holdout: 0, horizon: 4, combine: false, intervals: { method: 'analytic' } });
+    const mixed = forecastSeries(noisy, { holdout: 0, horizon: 4, intervals: { method: 'analytic' } });
     expect(own.forecast.combination).toBeNull();
     const c = mixed.forecast.combination;
     expect(c).not.toBeNull();

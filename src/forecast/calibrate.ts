@@ -1,0 +1,474 @@
+/**
+ * Calibrated prediction bands: the spread of the delivered forecast's own multi-step errors,
+ * measured by rolling origins inside the data the forecast is made from, instead of the one-step
+ * noise propagated under certainty equivalence.
+ *
+ * Why. Bands from the asserted equation alone (intervals.ts) treat the fitted equation as the
+ * law of the series: parameters known, structure right, the point made by that equation. Each of
+ * the three is false in practice (the parameters are estimated, the structure was chosen among
+ * many, and the point is usually a combination of several), and the bands cover far less than
+ * their level, worst at long horizons. The errors the forecast actually makes when it is re-run
+ * from earlier origins carry all three.
+ *
+ * Method (split-conformal style, with a smoothed horizon profile and the members' spread as
+ * the local difficulty):
+ *  1. Origins. Every member of the delivered point joins at the first origin o that leaves it
+ *     `minRows(p)` estimation rows after the sample start `from` (p its active terms); its
+ *     coefficients at o are those of least squares on [from, o), carried from origin to origin
+ *     by recursive least squares at λ = 1 (online.ts; equal to a batch refit on each prefix).
+ *     From each origin every member forecasts y_o … y_{o+h−1} from the history before o, inputs
+ *     as observed (ex post); the members are averaged with their shares in the delivered
+ *     combination, renormalised over the members present whose path passes the checks the
+ *     combination applies (finite, not explosive, not leaving the positive values of an
+ *     always-positive series: combine.ts `pathFault`) and does not collapse on the log scale
+ *     (`collapses`).
+ *  2. Errors e_{o,k} = g(y_{o+k−1}) − g(F_{o,k}) for the lead times k = 1 … h the data reach, on
+ *     the original scale (g = identity) and, on a series that has always been positive, on the
+ *     log scale (multiplicative errors, bands that stay positive); beside each, the members'
+ *     spread d_{o,k}: the share-weighted root mean square of g(F^{(i)}_{o,k}) − g(F_{o,k}).
+ *  3. Profile. The mean squared error by lead, MS_k over the N_k origins reaching k, is smoothed
+ *     by a power law fitted by weighted least squares, ln MS_k = a + b·ln k (weights N_k, growth
+ *     b clipped to [0, 2]: from a constant spread to one growing linearly; b = 1, random-walk
+ *     growth, when only lead 1 is reached), and blended with the raw value where there are many
+ *     origins: s_k² = (N_k·MS_k + κ·fit_k)/(N_k + κ), κ = `prior`, made non-decreasing in k.
+ *     Past the last lead reached the power law extrapolates.
+ *  4. Multiplier. Scores u_{o,k} = |e_{o,k}| / √(s_k² + d_{o,k}²) pooled over all (o, k); the
+ *     band at level L is g⁻¹(g(F_k) ± q_L·√(s_k² + d_k²)), d_k the members' spread of the
+ *     delivered forecast itself, and q_L the conformal quantile of the N scores, the
+ *     ⌈(N+1)L⌉-th smallest (Vovk, Gammerman & Shafer, "Algorithmic Learning in a Random World",
+ *     2005; Lei, G'Sell, Rinaldo, Tibshirani & Wasserman, "Distribution-free predictive
+ *     inference for regression", JASA 113, 2018: split conformal with a local scale), widened
+ *     by t_ν/z at the same level with ν = origins/2 for the small number of origins behind the
+ *     scores (consecutive origins share all but one observation: a rule of thumb, chosen on the
+ *     development data). With too few scores for that rank, q_L = z·RMS(u)·√(1 + 1/N).
+ *  5. Scale. On an always-positive series the scale whose errors have the higher Gaussian
+ *     likelihood under their own spread model (with the log scale's Jacobian) is kept
+ *     (`logLikelihood`).
+ * The bands keep the delivered point; only their widths come from the data. Where the history
+ * is too short for a single origin, no calibration is made and the caller keeps the model's own
+ * bands (and says so).
+ *
+ * Cost: per member one batch fit at the first origin, one RLS step and one h-step simulation per
+ * origin.
+ */
+import type { Series } from '../data/series.js';
+import { sliceSeries } from '../data/series.js';
+import type { Estimate, Structure } from '../models/structure.js';
+import { Learner } from './online.js';
+import { normalQuantile } from './normal.js';
+import type { Band } from './intervals.js';
+import { extendSummary, pathFault, summariseHistory } from './combine.js';
+import { studentTQuantile } from './student-t.js';
+
+/** A forecast that the calibration re-runs: a member of the delivered point and its share. */
+export interface CalibrationMember {
+  structure: Structure;
+  estimate: Pick<Estimate, 'active'>;
+  share: number;
+}
+
+export interface CalibrationOptions {
+  /** Most origins, counted back from the end of the history (default: every origin the data allow). */
+  window?: number;
+  /** Scale of the errors: 'auto' (log on an always-positive series), 'log' or 'none'. */
+  scale?: 'auto' | 'log' | 'none';
+  /** How the members' disagreement enters (default 'normalised'): see the module comment. */
+  spread?: 'normalised' | 'none';
+  /** Widen the multipliers for the origins' small sample by t_ν/z with ν = origins / `originsPerDof` (default true). */
+  smallSample?: boolean;
+  /** Spread statistic of each lead's errors: 'rms' (root mean square, default) or 'robust' (median |e| / Φ⁻¹(3/4)). */
+  profile?: 'robust' | 'rms';
+  /** Origins per degree of freedom of the small-sample widening (default 2: consecutive origins share all but one observation). */
+  originsPerDof?: number;
+  /** Weight, in origins, of the power-law fit against the raw mean squared error of each lead (default 10). */
+  prior?: number;
+  /** Estimation rows per active term a member needs before its first origin (default 2; at least 4 more than the terms). */
+  rowsPerTerm?: number;
+}
+
+/** The measured spread of the delivered forecast by lead time (see the module comment). */
+export interface Calibration {
+  /** Scale the errors were measured on. */
+  scale: 'log' | 'none';
+  /** Origins used, and the first of them (time index). */
+  origins: number;
+  firstOrigin: number;
+  /** Per lead time k = 1 … h: origins reaching it (N_k) and the raw root mean squared error (NaN when none). */
+  counts: Int32Array;
+  rmse: Float64Array;
+  /** Smoothed error profile s_k and its growth exponent b (variance ∝ k^b). */
+  profile: Float64Array;
+  growth: number;
+  /** Whether the members' spread enters the scores and the bands. */
+  spread: boolean;
+  /** Pooled scores N and the multiplier q_L per level. */
+  scores: number;
+  multipliers: { level: number; q: number; rule: 'conformal' | 'gaussian' }[];
+}
+
+/** Estimation rows a member with p active terms needs before its first origin: max(r·p, p + 4). */
+export function minRows(activeTerms: number, rowsPerTerm = 2): number {
+  return Math.max(Math.ceil(rowsPerTerm * activeTerms), activeTerms + 4);
+}
+
+/** Errors and members' spreads by lead time (index k − 1) on one scale. */
+export interface ScaledErrors {
+  scale: 'log' | 'none';
+  errors: number[][];
+  spreads: number[][];
+}
+
+/** What the origins produced: for every lead, the actual values and the delivered point, and the errors on each scale. */
+export interface RollingErrors {
+  /** Per lead (index k − 1): actual y_{o+k−1} and point F_{o,k} of every origin reaching it. */
+  actual: number[][];
+  point: number[][];
+  /** Errors on the original scale, and on the log scale when the history has always been positive. */
+  none: ScaledErrors;
+  log: ScaledErrors | null;
+  origins: number;
+  firstOrigin: number;
+}
+
+/**
+ * The rolling-origin errors of the delivered forecast inside `history` (module comment, steps 1
+ * and 2), or null when the history is too short for one origin. `from` is the start of the
+ * members' estimation sample.
+ */
+export function rollingErrors(members: readonly CalibrationMember[], history: Series, from: number, h: number, options: CalibrationOptions = {}): RollingErrors | null {
+  const n = history.values.length;
+  const used = members.filter((m) => m.share > 0);
+  if (used.length === 0 || n < 2) return null;
+  const window = options.window ?? n;
+  // Each member joins at the first origin with enough estimation rows for it.
+  const starts = used.map((m) => Math.max(n - window, from + minRows(m.estimate.active.filter(Boolean).length, options.rowsPerTerm)));
+  const first = Math.min(...starts);
+  if (first >= n) return null;
+  const positive = history.values.every((v) => v > 0);
+  const lists = () => Array.from({ length: h }, (): number[] => []);
+
+  const learners: (Learner | null)[] = used.map(() => null);
+  const start = (i: number): Learner | null => {
+    try {
+      return Learner.start(used[i].structure, used[i].estimate.active, history, from, starts[i]);
+    } catch {
+      return null;
+    }
+  };
+  const out: RollingErrors = {
+    actual: lists(),
+    point: lists(),
+    none: { scale: 'none', errors: lists(), spreads: lists() },
+    log: positive ? { scale: 'log', errors: lists(), spreads: lists() } : null,
+    origins: 0,
+    firstOrigin: first,
+  };
+  const paths: (Float64Array | null)[] = used.map(() => null);
+  const combined = new Float64Array(h);
+  let summary = summariseHistory(history.values.subarray(0, first));
+  let logRange = positive ? Math.log(summary.max / summary.min) : null;
+  for (let o = first; o < n; o++) {
+    const lead = Math.min(h, n - o);
+    const past = sliceSeries(history, 0, o);
+    const future = history.inputs.map((i) => i.values.subarray(o, o + lead));
+    let total = 0;
+    for (let i = 0; i < used.length; i++) {
+      paths[i] = null;
+      if (o === starts[i]) learners[i] = start(i);
+      const learner = learners[i];
+      if (learner === null) continue;
+      let f: Float64Array;
+      try {
+        f = used[i].structure.simulate(learner.theta, past, future, lead);
+      } catch {
+        continue;
+      }
+      if (!f.every(Number.isFinite) || pathFault(summary, f) !== null || (logRange !== null && collapses(summary.last, logRange, f))) continue;
+      paths[i] = f;
+      total += used[i].share;
+    }
+    if (total > 0) {
+      const path = membersMean(used, paths, lead, combined);
+      for (let k = 0; k < lead; k++) {
+        const y = history.values[o + k];
+        out.actual[k].push(y);
+        out.point[k].push(path[k]);
+        out.none.errors[k].push(y - path[k]);
+        out.none.spreads[k].push(spreadAt(used, paths, k, path[k], 'none'));
+        if (out.log) {
+          out.log.errors[k].push(path[k] > 0 ? Math.log(y / path[k]) : NaN);
+          out.log.spreads[k].push(spreadAt(used, paths, k, path[k], 'log'));
+        }
+      }
+      out.origins++;
+    }
+    summary = extendSummary(summary, history.values[o]);
+    if (logRange !== null) logRange = Math.log(summary.max / summary.min);
+    const next = sliceSeries(history, 0, o + 1);
+    for (const learner of learners) {
+      if (learner === null) continue;
+      try {
+        learner.learn(next);
+      } catch {
+        /* a member that cannot learn this row keeps its coefficients */
+      }
+    }
+  }
+  return out.origins === 0 ? null : out;
+}
+
+/**
+ * True when a path continuing an always-positive history moves, on the log scale, more per step
+ * than the history's whole log range: |ln F_k − ln y_o| > k·ln(max/min) for some k — the
+ * multiplicative form of the combination's explosion check, which catches paths that collapse
+ * towards zero without crossing it.
+ */
+function collapses(last: number, logRange: number, f: ArrayLike<number>): boolean {
+  const base = Math.log(last);
+  for (let k = 1; k <= f.length; k++) if (!(Math.abs(Math.log(f[k - 1]) - base) <= k * logRange)) return true;
+  return false;
+}
+
+/** The share-weighted mean of the members' paths that exist (renormalised), into `out`. */
+function membersMean(members: readonly CalibrationMember[], paths: readonly (Float64Array | null)[], lead: number, out: Float64Array): Float64Array {
+  out.fill(0);
+  let total = 0;
+  for (let i = 0; i < members.length; i++) {
+    const f = paths[i];
+    if (f === null) continue;
+    for (let k = 0; k < lead; k++) out[k] += members[i].share * f[k];
+    total += members[i].share;
+  }
+  for (let k = 0; k < lead; k++) out[k] /= total;
+  return out;
+}
+
+/**
+ * The members' spread around their mean at lead k + 1, on the errors' scale: the share-weighted
+ * root mean square of g(F_i) − g(F̄) over the members whose path exists.
+ */
+function spreadAt(members: readonly { share: number }[], paths: readonly (ArrayLike<number> | null)[], k: number, mean: number, scale: 'log' | 'none'): number {
+  let ss = 0;
+  let total = 0;
+  for (let i = 0; i < members.length; i++) {
+    const f = paths[i];
+    if (f === null || !(members[i].share > 0)) continue;
+    const d = scale === 'log' ? (f[k] > 0 && mean > 0 ? Math.log(f[k] / mean) : 0) : f[k] - mean;
+    ss += members[i].share * d * d;
+    total += members[i].share;
+  }
+  return total > 0 ? Math.sqrt(ss / total) : 0;
+}
+
+/**
+ * The members' spread by lead time at the delivered forecast's origin (for `calibratedBands`),
+ * from their forecasts and shares.
+ */
+export function memberSpread(members: readonly { share: number; forecast: ArrayLike<number> }[], point: Float64Array, scale: 'log' | 'none'): Float64Array {
+  const paths = members.map((m) => m.forecast);
+  return Float64Array.from(point, (p, k) => spreadAt(members, paths, k, p, scale));
+}
+
+/**
+ * The calibration of a delivered forecast: `rollingErrors` then `profileOf`; null when too
+ * short. Scale 'auto': the original scale for a series that has not always been positive;
+ * otherwise whichever of the log and the original scale gives its errors the higher likelihood
+ * (`logLikelihood`) — multiplicative errors suit most positive series, but not one whose dips
+ * towards zero make relative errors explode.
+ */
+export function calibrate(
+  members: readonly CalibrationMember[],
+  history: Series,
+  from: number,
+  h: number,
+  levels: readonly number[],
+  options: CalibrationOptions = {},
+): Calibration | null {
+  const rolled = rollingErrors(members, history, from, h, options);
+  if (rolled === null) return null;
+  const want = options.scale ?? 'auto';
+  const none = profileOf(rolled.none, rolled, levels, options);
+  if (rolled.log === null || want === 'none') return none;
+  const log = profileOf(rolled.log, rolled, levels, options);
+  if (want === 'log') return log;
+  return logLikelihood(log, rolled) > logLikelihood(none, rolled) ? log : none;
+}
+
+/**
+ * Gaussian log-likelihood of the origins' errors under a calibration's own spread model,
+ * e_{o,k} ~ N(0, c²·(s_k² + spread²_{o,k})) with c² the mean squared score, on the original
+ * scale: a log-scale calibration carries the Jacobian −Σ ln y (Box & Cox, "An analysis of
+ * transformations", JRSS B 26, 1964), so the two scales compare like the structure search's
+ * transformed candidates.
+ */
+function logLikelihood(c: Calibration, rolled: RollingErrors): number {
+  const scaled = c.scale === 'log' ? rolled.log : rolled.none;
+  if (!scaled) return -Infinity;
+  let ss = 0;
+  let n = 0;
+  const v: number[] = [];
+  const e: number[] = [];
+  const jac: number[] = [];
+  for (let k = 0; k < scaled.errors.length; k++) {
+    for (let i = 0; i < scaled.errors[k].length; i++) {
+      const err = scaled.errors[k][i];
+      if (!Number.isFinite(err)) return -Infinity;
+      const w = widthScale(profileAt(c, k + 1), c.spread ? scaled.spreads[k][i] : 0);
+      ss += (err / w) ** 2;
+      n++;
+      v.push(w * w);
+      e.push(err);
+      jac.push(c.scale === 'log' ? Math.log(rolled.actual[k][i]) : 0);
+    }
+  }
+  if (n === 0) return -Infinity;
+  const c2 = ss / n;
+  let ll = 0;
+  for (let i = 0; i < n; i++) ll += -0.5 * Math.log(2 * Math.PI * c2 * v[i]) - (e[i] * e[i]) / (2 * c2 * v[i]) - jac[i];
+  return ll;
+}
+
+
+/** Mean interval score, summed over levels, of a calibration's bands around the origins' own points. */
+function insampleScore(c: Calibration, rolled: RollingErrors, levels: readonly number[]): number {
+  const spreads = (c.scale === 'log' ? rolled.log : rolled.none)?.spreads;
+  let total = 0;
+  let count = 0;
+  for (let k = 0; k < rolled.point.length; k++) {
+    const pts = rolled.point[k];
+    for (let i = 0; i < pts.length; i++) {
+      const y = rolled.actual[k][i];
+      for (const level of levels) {
+        const [lo, up] = bandAt(c, level, pts[i], k + 1, spreads ? spreads[k][i] : 0);
+        const alpha = 1 - level / 100;
+        total += up - lo + (y < lo ? (2 / alpha) * (lo - y) : 0) + (y > up ? (2 / alpha) * (y - up) : 0);
+      }
+      count++;
+    }
+  }
+  return count > 0 ? total / count : Infinity;
+}
+
+/**
+ * The smoothed profile and multipliers of per-lead errors: steps 3 and 4 of the module comment.
+ */
+export function profileOf(scaled: ScaledErrors, rolled: Pick<RollingErrors, 'origins' | 'firstOrigin'>, levels: readonly number[], options: CalibrationOptions = {}): Calibration {
+  const { scale, spreads } = scaled;
+  const { origins, firstOrigin } = rolled;
+  const errors = scaled.errors;
+  const useSpread = (options.spread ?? 'normalised') === 'normalised';
+  const h = errors.length;
+  const counts = new Int32Array(h);
+  const rmse = new Float64Array(h).fill(NaN);
+  // Weighted least squares of ln MS_k on ln k.
+  let sw = 0;
+  let sx = 0;
+  let sy = 0;
+  let sxx = 0;
+  let sxy = 0;
+  const robust = (options.profile ?? 'rms') === 'robust';
+  for (let k = 1; k <= h; k++) {
+    const list = errors[k - 1].filter(Number.isFinite);
+    counts[k - 1] = list.length;
+    if (list.length === 0) continue;
+    const ms = robust ? (medianAbs(list) / MAD_NORMAL) ** 2 : meanSquare(list);
+    rmse[k - 1] = Math.sqrt(ms);
+    if (!(ms > 0)) continue;
+    const w = list.length;
+    const x = Math.log(k);
+    const y = Math.log(ms);
+    sw += w;
+    sx += w * x;
+    sy += w * y;
+    sxx += w * x * x;
+    sxy += w * x * y;
+  }
+  let growth = 1;
+  const det = sw * sxx - sx * sx;
+  if (sw > 0 && det > 1e-12 * sw * sw) growth = Math.min(2, Math.max(0, (sw * sxy - sx * sy) / det));
+  const intercept = sw > 0 ? (sy - growth * sx) / sw : Math.log(1e-300);
+  const kappa = options.prior ?? 10;
+  const profile = new Float64Array(h);
+  for (let j = 0; j < h; j++) {
+    const fit = Math.exp(intercept + growth * Math.log(j + 1));
+    const nk = counts[j];
+    const ms = nk > 0 ? rmse[j] * rmse[j] : 0;
+    const blended = (nk * ms + kappa * fit) / (nk + kappa);
+    profile[j] = Math.max(Math.sqrt(blended), j > 0 ? profile[j - 1] : 0);
+  }
+
+  const scores: number[] = [];
+  for (let k = 1; k <= h; k++) {
+    const list = errors[k - 1];
+    for (let i = 0; i < list.length; i++) if (Number.isFinite(list[i])) scores.push(Math.abs(list[i]) / widthScale(profile[k - 1], useSpread ? spreads[k - 1][i] : 0));
+  }
+  scores.sort((a, b) => a - b);
+  const N = scores.length;
+  let ss = 0;
+  for (const u of scores) ss += u * u;
+  const rms = N > 0 ? Math.sqrt(ss / N) : NaN;
+  const small = options.smallSample ?? true;
+  const multipliers = levels.map((level) => {
+    const L = level / 100;
+    const widen = small ? studentTQuantile(0.5 + L / 2, origins / (options.originsPerDof ?? 2)) / normalQuantile(0.5 + L / 2) : 1;
+    const rank = Math.ceil((N + 1) * L);
+    if (rank <= N) return { level, q: widen * scores[rank - 1], rule: 'conformal' as const };
+    return { level, q: widen * normalQuantile(0.5 + L / 2) * rms * Math.sqrt(1 + 1 / Math.max(N, 1)), rule: 'gaussian' as const };
+  });
+  return { scale, origins, firstOrigin, counts, rmse, profile, growth, spread: useSpread, scores: N, multipliers };
+}
+
+/** Φ⁻¹(3/4): the median absolute value of a standard normal variable. */
+const MAD_NORMAL = 0.6744897501960817;
+
+function medianAbs(list: readonly number[]): number {
+  const a = list.map(Math.abs).sort((x, y) => x - y);
+  const m = a.length >> 1;
+  return a.length % 2 === 1 ? a[m] : 0.5 * (a[m - 1] + a[m]);
+}
+
+function meanSquare(list: readonly number[]): number {
+  let ss = 0;
+  for (const e of list) ss += e * e;
+  return ss / list.length;
+}
+
+/** The normaliser of a score and of a band: √(s_k² + spread²). */
+function widthScale(profile: number, spread: number): number {
+  return Math.sqrt(profile * profile + spread * spread);
+}
+
+/**
+ * The calibrated bands around a delivered point forecast (module comment, step 4). `spread` is
+ * the members' spread by lead at this origin (`memberSpread`; ignored unless the calibration
+ * uses it).
+ */
+export function calibratedBands(point: Float64Array, calibration: Calibration, levels: readonly number[], spread?: ArrayLike<number>): Band[] {
+  const h = point.length;
+  return levels.map((level) => {
+    const lower = new Float64Array(h);
+    const upper = new Float64Array(h);
+    for (let j = 0; j < h; j++) [lower[j], upper[j]] = bandAt(calibration, level, point[j], j + 1, spread ? spread[j] : 0);
+    return { level, lower, upper };
+  });
+}
+
+/** The band at one level around one point F at lead k: g⁻¹(g(F) ± q_L·√(s_k² + spread²)). */
+export function bandAt(calibration: Calibration, level: number, point: number, k: number, spread: number): [number, number] {
+  const m = calibration.multipliers.find((x) => x.level === level);
+  if (m === undefined) throw new RangeError(`calibratedBands: no multiplier for level ${level}`);
+  const w = m.q * widthScale(profileAt(calibration, k), calibration.spread ? spread : 0);
+  if (calibration.scale === 'log') {
+    if (point > 0) return [point * Math.exp(-w), point * Math.exp(w)];
+    const half = Math.abs(point) * (Math.exp(w) - 1);
+    return [point - half, point + half];
+  }
+  return [point - w, point + w];
+}
+
+/** The profile at lead k, extrapolated by its power law past the horizon it was measured on. */
+export function profileAt(calibration: Calibration, k: number): number {
+  const h = calibration.profile.length;
+  if (k <= h) return calibration.profile[k - 1];
+  return calibration.profile[h - 1] * Math.pow(k / h, calibration.growth / 2);
+}
