@@ -127,7 +127,7 @@ function yearlyNote(series: Series[], report: LoadReport): string | null {
   const longest = Math.max(...series.map((x) => x.values.length));
   return longest >= YEARLY_MIN_POINTS
     ? `the search also tries the yearly cycle (${DAYS_PER_YEAR} days) by harmonics and keeps the season the data support`
-    : `not searched: the yearly cycle needs at least two years (${YEARLY_MIN_POINTS} days)`;
+    : `not searched: it needs at least two years (${YEARLY_MIN_POINTS} days)`;
 }
 
 function orderedStats(s: SeriesStats): SeriesStats {

@@ -179,7 +179,7 @@ function withStep(f: Frequency, runs: readonly StampRun[], periodsOf: (a: number
         file: where.file,
         row: run.rows[i],
         column: where.column,
-        found: `${f === 'index' ? t[i - 1] : isoText(t[i - 1])} → ${f === 'index' ? t[i] : isoText(t[i - 1])} → ${isoText(t[i])}`,
+        found: `${stampText(f, t[i - 1])} → ${stampText(f, t[i])}`,
         expected: `steps of ${step} ${periodName(f, step)} or a multiple of ${step} (missing observations)`,
         hint: `correct or remove the time stamp at row ${run.rows[i]}: the other steps are multiples of ${step} ${periodName(f, step)}`,
       });
@@ -240,6 +240,10 @@ function formatMs(ms: number): string {
   if (ms % HOUR === 0) return `${ms / HOUR} hour${ms === HOUR ? '' : 's'}`;
   if (ms % 60_000 === 0) return `${ms / 60_000} minute${ms === 60_000 ? '' : 's'}`;
   return `${ms / 1000} seconds`;
+}
+
+function stampText(f: Frequency, t: number): string {
+  return f === 'index' ? String(t) : isoText(t);
 }
 
 function isoText(t: number): string {

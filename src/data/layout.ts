@@ -67,7 +67,9 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
   const time = found.column;
   const passedOver = found.passedOver.map((c) => table.header[c]);
   if (inputs.includes(time)) throw sameColumn(table, table.header[time], '--time', '--inputs');
+  // Time columns passed over for a finer one are neither ids nor series (unless named as inputs).
   const taken = new Set<number>([time, ...inputs]);
+  const skipped = new Set<number>(found.passedOver.filter((c) => !inputs.includes(c)));
 
   let id: number | null = null;
   if (options.id !== undefined) {
@@ -76,7 +78,7 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
   } else if (hasRepeats(table.columns[time])) {
     // Long layout only when time stamps repeat: otherwise a text column is a label, not an id.
     for (let c = 0; c < table.header.length; c++) {
-      if (!taken.has(c) && (options.value === undefined || table.header[c] !== options.value) && looksLikeId(table.columns[c])) {
+      if (!taken.has(c) && !skipped.has(c) && (options.value === undefined || table.header[c] !== options.value) && looksLikeId(table.columns[c])) {
         id = c;
         break;
       }
@@ -90,7 +92,7 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
       const v = named(options.value, '--value');
       if (taken.has(v)) throw sameColumn(table, table.header[v], '--value', v === time ? '--time' : '--inputs');
       values = [v];
-    } else values = table.header.map((_, c) => c).filter((c) => !taken.has(c) && !looksLikeText(table.columns[c]));
+    } else values = table.header.map((_, c) => c).filter((c) => !taken.has(c) && !skipped.has(c) && !looksLikeText(table.columns[c]));
     if (values.length === 0) {
       const comma = decimal === '.' ? decimalCommaColumn(table, taken) : null;
       if (comma) {
@@ -126,7 +128,7 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
     value = named(options.value, '--value');
     if (taken.has(value)) throw sameColumn(table, table.header[value], '--value', value === time ? '--time' : value === id ? '--id' : '--inputs');
   } else {
-    const numeric = table.header.map((_, c) => c).filter((c) => !taken.has(c) && !looksLikeText(table.columns[c]));
+    const numeric = table.header.map((_, c) => c).filter((c) => !taken.has(c) && !skipped.has(c) && !looksLikeText(table.columns[c]));
     const byName = numeric.filter((c) => /^value$/i.test(table.header[c]));
     if (numeric.length === 1) value = numeric[0];
     else if (byName.length === 1) value = byName[0];
@@ -135,7 +137,7 @@ export function detectLayout(table: Table, options: LayoutOptions = {}): Layout 
         file: table.source,
         found: numeric.length === 0 ? `columns ${table.header.map((h) => `"${h}"`).join(', ')}` : numeric.map((c) => `"${table.header[c]}"`).join(', '),
         expected: `one value column beside the id "${table.header[id]}" and time "${table.header[time]}"`,
-        hint: numeric.length === 0 ? 'name it with --value' : `name it with --value (e.g. --value ${quoteArg(table.header[numeric[0]])}), and any others with --inputs`,
+        hint: numeric.length === 0 ? 'name it with --value' : `pass --value ${quoteArg(table.header[numeric[0]])} (or another of them) for the values, and name any others with --inputs`,
       });
     }
   }

@@ -202,6 +202,11 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq),
   );
   if (resolved.some((r) => r.sorted)) notes.push('rows were not in time order; sorted by time');
+  for (const r of resolved) {
+    if (r.shortEnds.length === 0) continue;
+    const listed = r.shortEnds.map((e) => `${e.time} (${e.rows} row${e.rows === 1 ? '' : 's'}, most have ${e.typical})`).join(', ');
+    notes.push(`warning: series "${r.series.name}": --duplicates ${duplicatePolicy} combined fewer rows at the ends than elsewhere: ${listed}; a finer time column with --freq drops incomplete periods`);
+  }
 
   const runs: StampRun[] = (layout.kind === 'wide' ? resolved.slice(0, 1) : resolved).map((r) => ({ name: r.series.name, times: r.series.times, rows: r.series.rows }));
   const evidence = inferFrequency(runs, timeCol.kind, { file, column: layout.time }, { target: options.freq });

@@ -48,6 +48,14 @@ export interface DuplicateNote {
   rows: number[];
 }
 
+/** A combined time stamp at either end with fewer rows than most (a partial year summed, say). */
+export interface ShortEnd {
+  time: string;
+  rows: number;
+  /** The most common number of rows per time stamp. */
+  typical: number;
+}
+
 export interface FilledPoint {
   time: string;
   column: string;
@@ -114,7 +122,12 @@ const FIXED_STEP: Partial<Record<Frequency, number>> = { index: 1, hourly: 3_600
 export const MAX_PERIODS = 5_000_000;
 
 /** Steps 1–2: sorted by time, equal stamps resolved. Returns the rows that were duplicates. */
-export function sortAndResolveDuplicates(raw: RawSeries, policy: DuplicatePolicyName, where: Where, frequency: Frequency | null): { series: RawSeries; duplicates: DuplicateNote[]; sorted: boolean } {
+export function sortAndResolveDuplicates(
+  raw: RawSeries,
+  policy: DuplicatePolicyName,
+  where: Where,
+  frequency: Frequency | null,
+): { series: RawSeries; duplicates: DuplicateNote[]; sorted: boolean; shortEnds: ShortEnd[] } {
   const n = raw.times.length;
   const order = new Int32Array(n);
   let inOrder = true;
@@ -132,7 +145,7 @@ export function sortAndResolveDuplicates(raw: RawSeries, policy: DuplicatePolicy
   const duplicates: DuplicateNote[] = [];
   let distinct = n;
   for (let i = 1; i < n; i++) if (times[i] === times[i - 1]) distinct--;
-  if (distinct === n) return { series: { name: raw.name, times, values, inputs, rows }, duplicates, sorted: !inOrder };
+  if (distinct === n) return { series: { name: raw.name, times, values, inputs, rows }, duplicates, sorted: !inOrder, shortEnds: [] };
 
   const label = (t: number): string => (frequency ? formatTime(t, frequency) : new Date(t).toISOString());
   for (let i = 0; i < n; ) {
@@ -154,6 +167,7 @@ export function sortAndResolveDuplicates(raw: RawSeries, policy: DuplicatePolicy
     });
   }
   const combine = aggregators[policy];
+  const sizes = new Int32Array(distinct);
   const outTimes = new Float64Array(distinct);
   const outValues = new Float64Array(distinct);
   const outInputs = inputs.map((x) => ({ name: x.name, values: new Float64Array(distinct) }));
@@ -166,10 +180,26 @@ export function sortAndResolveDuplicates(raw: RawSeries, policy: DuplicatePolicy
     outValues[k] = combine(values, i, j);
     outInputs.forEach((x, c) => (x.values[k] = combine(inputs[c].values, i, j)));
     outRows[k] = rows[i];
+    sizes[k] = j - i;
     k++;
     i = j;
   }
-  return { series: { name: raw.name, times: outTimes, values: outValues, inputs: outInputs, rows: outRows }, duplicates, sorted: !inOrder };
+  return { series: { name: raw.name, times: outTimes, values: outValues, inputs: outInputs, rows: outRows }, duplicates, sorted: !inOrder, shortEnds: shortEnds(sizes, outTimes, label) };
+}
+
+/** The first and last combined stamps when they hold fewer rows than the most common count. */
+function shortEnds(sizes: Int32Array, times: Float64Array, label: (t: number) => string): ShortEnd[] {
+  const tally = new Map<number, number>();
+  for (const c of sizes) tally.set(c, (tally.get(c) ?? 0) + 1);
+  let typical = 0;
+  let best = 0;
+  for (const [size, count] of tally) if (count > best || (count === best && size > typical)) [typical, best] = [size, count];
+  const out: ShortEnd[] = [];
+  const m = sizes.length;
+  if (typical < 2 || m < 2) return out;
+  if (sizes[0] < typical) out.push({ time: label(times[0]), rows: sizes[0], typical });
+  if (sizes[m - 1] < typical) out.push({ time: label(times[m - 1]), rows: sizes[m - 1], typical });
+  return out;
 }
 
 /** Steps 3–7 on a sorted series with distinct stamps. */

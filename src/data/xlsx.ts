@@ -2,7 +2,7 @@
  * XLSX workbook → Table, through exceljs. The first sheet is read unless a sheet name is given;
  * its first non-empty row is the header. When the sheet asked for does not exist, or the sheet
  * read has no data rows, the error lists every sheet with its number of data rows and the hint
- * names the first sheet that has some. Date cells become `ExcelSerial` values in the
+ * names the other sheet with the most data rows (of those with two columns or more). Date cells become `ExcelSerial` values in the
  * workbook's date system (1900 or 1904), so dates.ts maps them by the ECMA-376 rules rather
  * than by the library's conversion. Formula cells contribute their cached result.
  */
@@ -34,7 +34,12 @@ export async function parseXlsx(bytes: Buffer, file: string, sheetName?: string)
   const sheet = sheetName === undefined ? sheets[0] : sheets.find((s) => s.name === sheetName);
   const listing = sheets.map((s) => ({ name: s.name, rows: dataRows(s) }));
   const listed = (list: typeof listing) => list.map((s) => `"${s.name}" (${s.rows === 0 ? 'no data rows' : `${s.rows} data row${s.rows === 1 ? '' : 's'}`})`).join(', ');
-  const usable = listing.find((s) => s.rows > 0 && s.name !== sheet?.name);
+  // The hint names the other sheet with the most data rows among those with a time and a value column's width.
+  let usable: { name: string; rows: number } | undefined;
+  sheets.forEach((s, i) => {
+    const rows = listing[i].rows;
+    if (s.name !== sheet?.name && rows > 0 && s.actualColumnCount >= 2 && rows > (usable?.rows ?? 0)) usable = listing[i];
+  });
   const sheetHint = usable ? { hint: `pass --sheet ${JSON.stringify(usable.name)}` } : {};
   if (!sheet) {
     throw new UsageError('xlsx-unknown-sheet', `no sheet named "${sheetName}"`, {
