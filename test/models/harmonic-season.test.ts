@@ -56,7 +56,7 @@ describe('ODE harmonics on a series observed every 2 months', () => {
     const rows = Array.from({ length: 24 }, (_, t) => `${2019 + Math.floor((2 * t) / 12)}-${String(((2 * t) % 12) + 1).padStart(2, '0')},${(50 + 5 * Math.sin((2 * Math.PI * t) / 6) + 0.5 * t).toFixed(4)}`);
     const { series } = await loadSeries({ name: 'bimonthly.csv', bytes: Buffer.from(`month,registrations\n${rows.join('\n')}\n`) });
     expect(series[0]).toMatchObject({ frequency: 'monthly', step: 2, season: 6 });
-    const withHarmonics = odeCandidates(series[0], resolveBounds(series[0], { harmonics: 1 })).filter((s) => (s.spec as { harmonics: number }).harmonics > 0);
+    const withHarmonics = odeCandidates(series[0], resolveBounds(series[0], { harmonics: 1 })).filter((s) => ((s.spec as { harmonics?: number }).harmonics ?? 0) > 0);
     expect(withHarmonics.length).toBeGreaterThan(0);
     for (const s of withHarmonics) expect(s.spec).toMatchObject({ season: 12, dt: 2 });
   });
