@@ -9,7 +9,8 @@
  *     harmonics, a seasonal lag or seasonal differences of that season;
  *   - yearly (daily data only): harmonics of the mean Gregorian year, s = 365.25 days, which
  *     the second search fits in place of the weekly terms (one season per candidate).
- * The data support the kind whose best candidate has the lowest criterion value.
+ * The data support the kind whose best candidate has the lowest criterion value. A series
+ * without a season (yearly data) gets no evidence.
  *
  * The yearly search runs when the series is daily with one day per step, its season is the
  * weekly default (7), no season was asked for (`options.season` unset, `options.yearly` not
@@ -95,6 +96,7 @@ function bestOf(ranking: readonly CandidateResult[], keep: (c: CandidateResult) 
 
 function withEvidence(kept: SearchResult, own: SearchResult, yearly: SearchResult | null, yearlySkipped: string | null): SearchResult {
   const season = own.bounds.season;
+  if (season === null && yearly === null && yearlySkipped === null) return kept; // nothing seasonal was tried
   const found: { kind: SeasonKind; season: number | null; c: CandidateResult | null }[] = [
     { kind: 'none', season: null, c: bestOf(own.ranking, (c) => !isSeasonal(c)) },
   ];
