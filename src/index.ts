@@ -5,8 +5,8 @@
  */
 export { loadSeries, loadTable, seriesFromTable, type LoadOptions, type LoadReport } from './data/load.js';
 export type { Series, SeriesInput } from './data/series.js';
-export { sliceSeries } from './data/series.js';
-export { formatTime, stepTime, seasonPeriod, type Frequency } from './data/calendar.js';
+export { seriesStep, sliceSeries, timesAfter } from './data/series.js';
+export { cadenceName, formatTime, stepTime, seasonPeriod, type Frequency } from './data/calendar.js';
 export { CertaError, DataError, UsageError, ModelError, StoreError, isCertaError } from './data/errors.js';
 
 export { lstsq, type LstsqResult } from './linalg/lstsq.js';
@@ -18,6 +18,7 @@ export { criteria, akaikeWeights, type Criterion } from './select/criteria.js';
 export type { Structure, StructureSpec, Estimate, Derived } from './models/structure.js';
 export { structureFromSpec, FAMILIES } from './models/registry.js';
 export { search, type SearchOptions, type SearchResult } from './select/search.js';
+export { searchSeasons, type SeasonEvidence } from './select/seasons.js';
 
 export { forecastSeries, type ForecastOptions, type ForecastRun } from './forecast/pipeline.js';
 export { combineRanking, groupOf, COMBINE_DEFAULTS, type CombineOptions, type Combination } from './forecast/combine.js';

@@ -14,7 +14,7 @@ import { DATE_FORMATS } from '../data/dates.js';
 import { UsageError } from '../data/errors.js';
 import { GAP_POLICY_NAMES, MAX_INTERPOLATED_RUN } from '../data/gaps.js';
 import { loadSeries, type LoadOptions, type LoadReport } from '../data/load.js';
-import { DUPLICATE_POLICY_NAMES } from '../data/regularise.js';
+import { DUPLICATE_POLICY_NAMES, PARTIAL_POLICY_NAMES } from '../data/regularise.js';
 import type { Series } from '../data/series.js';
 import { readSource, type TableSource } from '../data/source.js';
 import type { CliIO } from './main.js';
@@ -34,6 +34,9 @@ export function addDataOptions(command: Command): Command {
     .option('--aggregate <how>', `how --freq combines periods: ${AGGREGATOR_NAMES.join(', ')} (default: sum)`)
     .option('--duplicates <how>', `rows sharing a time stamp: ${DUPLICATE_POLICY_NAMES.join(', ')} (default: error)`)
     .option('--gaps <how>', `missing periods: ${GAP_POLICY_NAMES.join(', ')} (default: interpolate, runs of at most ${MAX_INTERPOLATED_RUN})`)
+    .option('--partial <how>', `incomplete periods at either end after --freq: ${PARTIAL_POLICY_NAMES.join(', ')} (default: drop)`)
+    .option('--season <n>', 'season length in observations, used by every stage (default: from the frequency)')
+    .option('--decimal <mark>', 'decimal mark of numbers: . or , (default: ., or , when detected in a semicolon-delimited file)')
     .option('--delimiter <char>', 'field delimiter for text files (default: sniffed among , ; tab |)')
     .option('--format <format>', `file format when the name does not tell (standard input): ${FORMATS.join(', ')}`);
 }
@@ -58,6 +61,14 @@ const schema = z.object({
   aggregate: choice('--aggregate', AGGREGATOR_NAMES).optional(),
   duplicates: choice('--duplicates', DUPLICATE_POLICY_NAMES).optional(),
   gaps: choice('--gaps', GAP_POLICY_NAMES).optional(),
+  partial: choice('--partial', PARTIAL_POLICY_NAMES).optional(),
+  season: z
+    .string()
+    .regex(/^\d+$/, { message: '--season|a whole number ≥ 2' })
+    .transform(Number)
+    .refine((v) => v >= 2, { message: '--season|a whole number ≥ 2' })
+    .optional(),
+  decimal: choice('--decimal', ['.', ','] as const).optional(),
   delimiter: z
     .string()
     .refine((v) => ['\t', 'tab', '\\t'].includes(v) || v.length === 1, { message: '--delimiter|one character, or "tab"' })
@@ -92,6 +103,9 @@ export function parseDataOptions(opts: Record<string, unknown>): LoadOptions {
   if (o.aggregate !== undefined) out.aggregate = o.aggregate;
   if (o.duplicates !== undefined) out.duplicates = o.duplicates;
   if (o.gaps !== undefined) out.gaps = o.gaps;
+  if (o.partial !== undefined) out.partial = o.partial;
+  if (o.season !== undefined) out.season = o.season;
+  if (o.decimal !== undefined) out.decimal = o.decimal;
   if (o.delimiter !== undefined) out.delimiter = o.delimiter.length === 1 ? o.delimiter : '\t';
   if (o.format !== undefined) out.format = o.format;
   return out;

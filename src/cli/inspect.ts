@@ -1,10 +1,14 @@
 /**
- * `certa inspect <file>`: what certa reads in a file — layout, series, frequency with its
- * evidence, span, length, gaps (filled, listed), duplicates, missing values and summary
+ * `certa inspect <file>`: what certa reads in a file — format (delimiter, decimal mark, the
+ * sheets of a workbook), layout, how the time cells were read (and any instants snapped to
+ * midnight), frequency and step with their evidence, the season, span, length, gaps (filled,
+ * listed), duplicates, incomplete periods after `--freq`, missing values and summary
  * statistics. `--json` prints the same as one JSON document with a fixed key order.
  */
 import type { Command } from 'commander';
-import { periodName } from '../data/calendar.js';
+import { cadenceName, DAYS_PER_YEAR, periodName, type Frequency } from '../data/calendar.js';
+import { offsetText } from '../data/snap.js';
+import { YEARLY_MIN_POINTS } from '../select/seasons.js';
 import { delimiterName } from '../data/csv.js';
 import type { LoadReport } from '../data/load.js';
 import { summaryStats, type SeriesStats } from '../data/regularise.js';
@@ -38,11 +42,15 @@ export interface InspectDocument {
   format: string;
   delimiter: string | null;
   sheet: string | null;
+  sheets: { name: string; rows: number }[];
+  decimal: { mark: string; source: string; columns: string[] };
   rows: number;
   columns: string[];
-  layout: { kind: 'wide' | 'long'; time: string; id: string | null; values: string[]; inputs: string[]; ignored: string[] };
+  layout: { kind: 'wide' | 'long'; time: string; id: string | null; values: string[]; inputs: string[]; ignored: string[]; passed_over: string[] };
   time_form: string;
-  frequency: { name: string; evidence: string; steps: number; step_counts: { periods: number; count: number }[] };
+  time_snapped: { moved: number; min_offset_minutes: number; max_offset_minutes: number } | null;
+  frequency: { name: string; step: number; cadence: string; evidence: string; steps: number; step_counts: { periods: number; count: number }[] };
+  season: { length: number | null; source: string; yearly: string | null };
   aggregated: { from: string; to: string; by: string } | null;
   series: {
     name: string;
@@ -54,7 +62,7 @@ export interface InspectDocument {
     trimmed: { leading: number; trailing: number };
     duplicates: { policy: string; times: { time: string; rows: number[] }[] };
     filled: { time: string; column: string; value: number }[];
-    partial_periods: { time: string; observed: number; expected: number }[];
+    partial_periods: { time: string; observed: number; expected: number; dropped: boolean }[];
     stats: SeriesStats;
     inputs: InputDoc[];
   }[];
@@ -67,6 +75,8 @@ export function inspectDocument(series: Series[], report: LoadReport): InspectDo
     format: report.format,
     delimiter: report.delimiter,
     sheet: report.sheet,
+    sheets: report.sheets.map((x) => ({ name: x.name, rows: x.rows })),
+    decimal: { mark: report.decimal.mark, source: report.decimal.source, columns: report.decimal.columns },
     rows: report.rows,
     columns: report.columns,
     layout: {
@@ -76,14 +86,19 @@ export function inspectDocument(series: Series[], report: LoadReport): InspectDo
       values: report.layout.values,
       inputs: report.layout.inputs,
       ignored: report.layout.ignored,
+      passed_over: report.layout.passedOver,
     },
     time_form: report.timeForm,
+    time_snapped: report.snapped ? { moved: report.snapped.moved, min_offset_minutes: report.snapped.minOffset, max_offset_minutes: report.snapped.maxOffset } : null,
     frequency: {
       name: report.frequency.frequency,
+      step: report.frequency.step,
+      cadence: cadenceName(report.frequency.frequency, report.frequency.step),
       evidence: report.frequency.text,
       steps: report.frequency.steps,
       step_counts: report.frequency.counts.map((c) => ({ periods: c.periods, count: c.count })),
     },
+    season: { length: report.season.length, source: report.season.source, yearly: yearlyNote(series, report) },
     aggregated: report.aggregated ? { from: report.aggregated.from, to: report.aggregated.to, by: report.aggregated.by } : null,
     series: report.series.map((r, i) => ({
       name: r.name,
@@ -95,12 +110,24 @@ export function inspectDocument(series: Series[], report: LoadReport): InspectDo
       trimmed: { leading: r.trimmed.leading, trailing: r.trimmed.trailing },
       duplicates: { policy: r.duplicatePolicy, times: r.duplicates.map((d) => ({ time: d.time, rows: d.rows })) },
       filled: r.filled.map((p) => ({ time: p.time, column: p.column, value: p.value })),
-      partial_periods: r.partialPeriods.map((p) => ({ time: p.time, observed: p.observed, expected: p.expected })),
+      partial_periods: r.partialPeriods.map((p) => ({ time: p.time, observed: p.observed, expected: p.expected, dropped: p.dropped })),
       stats: orderedStats(r.stats),
       inputs: series[i].inputs.map((x) => ({ name: x.name, stats: orderedStats(summaryStats(x.values)) })),
     })),
     notes: report.notes,
   };
+}
+
+/** What the search does about the yearly cycle of a daily series (select/seasons.ts), or null. */
+function yearlyNote(series: Series[], report: LoadReport): string | null {
+  const daily = series.length > 0 && series[0].frequency === 'daily' && (series[0].step ?? 1) === 1;
+  if (!daily) return null;
+  if (report.season.source === 'option') return 'not searched: --season sets the one season';
+  if (series[0].season !== 7) return null;
+  const longest = Math.max(...series.map((x) => x.values.length));
+  return longest >= YEARLY_MIN_POINTS
+    ? `the search also tries the yearly cycle (${DAYS_PER_YEAR} days) by harmonics and keeps the season the data support`
+    : `not searched: it needs at least two years (${YEARLY_MIN_POINTS} days)`;
 }
 
 function orderedStats(s: SeriesStats): SeriesStats {
@@ -123,25 +150,35 @@ export function renderText(doc: InspectDocument): string {
   const line = (label: string, text: string): void => {
     out.push(`${label.padEnd(11)}${text}`);
   };
-  const fmt = doc.format.toUpperCase() + (doc.delimiter !== null ? `, ${delimiterName(doc.delimiter)}-delimited` : '') + (doc.sheet !== null ? `, sheet "${doc.sheet}"` : '');
+  const decimal = doc.decimal.mark === ',' ? `, decimal comma${doc.decimal.source === 'detected' ? ' (detected)' : ''}` : '';
+  const fmt = doc.format.toUpperCase() + (doc.delimiter !== null ? `, ${delimiterName(doc.delimiter)}-delimited` : '') + decimal + (doc.sheet !== null ? `, sheet "${doc.sheet}"` : '');
   line('file', `${doc.file} (${fmt}, ${doc.rows} data row${doc.rows === 1 ? '' : 's'})`);
+  if (doc.sheets.length > 1) line('sheets', doc.sheets.map((x) => `"${x.name}" (${x.rows} data row${x.rows === 1 ? '' : 's'})`).join(', '));
   const l = doc.layout;
   const layoutText =
     l.kind === 'wide'
       ? `wide: time ${quoted([l.time])}, ${l.values.length === 1 ? 'series' : `${l.values.length} series`} ${quoted(l.values)}`
       : `long: id ${quoted([l.id as string])}, time ${quoted([l.time])}, value ${quoted(l.values)}`;
   line('layout', layoutText + (l.inputs.length > 0 ? `; inputs ${quoted(l.inputs)}` : ''));
-  line('times', doc.time_form);
+  const snap = doc.time_snapped;
+  const offsets = snap ? (snap.min_offset_minutes === snap.max_offset_minutes ? offsetText(snap.min_offset_minutes) : `${offsetText(snap.min_offset_minutes)} to ${offsetText(snap.max_offset_minutes)}`) : '';
+  line('times', doc.time_form + (l.passed_over.length > 0 ? ` (column chosen over ${quoted(l.passed_over)}: finer times)` : '') + (snap ? `; ${snap.moved} instant${snap.moved === 1 ? '' : 's'} at ${offsets} h from midnight snapped to it` : ''));
   line('frequency', doc.frequency.evidence);
   if (doc.aggregated) line('aggregated', `${doc.aggregated.from} → ${doc.aggregated.to} by ${doc.aggregated.by}`);
-  const f = doc.aggregated ? doc.aggregated.to : doc.frequency.name;
+  const f = (doc.aggregated ? doc.aggregated.to : doc.frequency.name) as Frequency;
+  const step = doc.aggregated ? 1 : doc.frequency.step;
+  const seasonText =
+    doc.season.length === null
+      ? 'none'
+      : `${doc.season.length} observations${f === 'daily' && step === 1 && doc.season.length === 7 ? ' (weekly)' : ''}, ${doc.season.source === 'option' ? 'set by --season' : 'from the frequency'}`;
+  line('season', seasonText + (doc.season.yearly ? `; yearly cycle: ${doc.season.yearly}` : ''));
   for (const s of doc.series) {
     out.push('');
     out.push(`series "${s.name}"`);
     const ind = (label: string, text: string): void => {
       out.push(`  ${label.padEnd(11)}${text}`);
     };
-    ind('span', `${s.start} to ${s.end} (${s.length} ${periodName(f as never, s.length)})`);
+    ind('span', `${s.start} to ${s.end} (${step === 1 ? `${s.length} ${periodName(f, s.length)}` : `${s.length} observations, ${cadenceName(f, step)}`})`);
     ind('read', `${s.observations} observation${s.observations === 1 ? '' : 's'}; ${s.missing} missing in the span`);
     if (s.trimmed.leading + s.trimmed.trailing > 0) ind('trimmed', `${s.trimmed.leading} leading, ${s.trimmed.trailing} trailing (missing values)`);
     ind(
@@ -158,7 +195,7 @@ export function renderText(doc: InspectDocument): string {
       for (const p of s.filled) out.push(`    ${p.time}  ${p.column} = ${num(p.value)}`);
     }
     if (s.partial_periods.length > 0) {
-      ind('partial', s.partial_periods.map((p) => `${p.time} (${p.observed} of ${p.expected})`).join(', '));
+      ind('partial', s.partial_periods.map((p) => `${p.time} (${p.observed} of ${p.expected}${p.dropped ? ', dropped' : ', kept'})`).join(', '));
     }
     ind('summary', statsText(s.stats));
     for (const x of s.inputs) ind('input', `"${x.name}": ${statsText(x.stats)}`);

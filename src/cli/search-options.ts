@@ -16,7 +16,6 @@ export function addSearchOptions(command: Command): Command {
     .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
     .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
     .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
-    .option('--season <n>', 'season length in periods (default: from the frequency)')
     .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
     .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
     .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')
@@ -40,12 +39,6 @@ const schema = z.object({
     .string()
     .regex(/^(\d+|auto)$/, { message: '--harmonics|a whole number or auto' })
     .transform((v) => (v === 'auto' ? ('auto' as const) : Number(v)))
-    .optional(),
-  season: z
-    .string()
-    .regex(/^\d+$/, { message: '--season|a whole number ≥ 2' })
-    .transform(Number)
-    .refine((v) => v >= 2, { message: '--season|a whole number ≥ 2' })
     .optional(),
   families: z
     .string()
@@ -72,5 +65,7 @@ export function parseSearchOptions(opts: Record<string, unknown>): SearchOptions
   }
   const out: SearchOptions = {};
   for (const [k, v] of Object.entries(result.data)) if (v !== undefined) (out as Record<string, unknown>)[k] = v;
+  // --season (a data option, data-options.ts) sets the one season: no yearly cycle beside it.
+  if (opts.season !== undefined) out.yearly = false;
   return out;
 }

@@ -12,7 +12,9 @@ import type { Command } from 'commander';
 import { join } from 'node:path';
 import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
-import { search, type CandidateResult, type SearchOptions, type SearchResult } from '../select/search.js';
+import type { CandidateResult, SearchOptions, SearchResult } from '../select/search.js';
+import { searchSeasons, type SeasonEvidence } from '../select/seasons.js';
+import { cadenceName, type Frequency } from '../data/calendar.js';
 import { candidatesCsv } from '../report/candidates.js';
 import { criterionLabel } from '../select/criteria.js';
 import { writeFileAtomic } from '../store/atomic.js';
@@ -60,7 +62,7 @@ export function register(program: Command, io: CliIO): void {
     const docs: SearchDocument[] = [];
     const texts: string[] = [];
     for (const s of series) {
-      const result = search(s, cli.search);
+      const result = searchSeasons(s, cli.search);
       const folder = outputFolder(s, series.length, cli.out);
       const written = await writeOutputs(result, s, folder);
       const doc = searchDocument(result, cli.top, written);
@@ -127,6 +129,7 @@ export interface SearchDocument {
   series: SearchResult['series'];
   criterion: string;
   sample: SearchResult['sample'];
+  seasons: SeasonEvidence | null;
   candidates: { total: number; fitted: number; failed: number };
   ranking: RankingRow[];
   winner: {
@@ -172,6 +175,7 @@ export function searchDocument(result: SearchResult, top: number, files: Written
     series: result.series,
     criterion: result.criterion,
     sample: result.sample,
+    seasons: result.seasons ?? null,
     candidates: { total: result.ranking.length, fitted: result.fitted, failed: result.failed },
     ranking: result.ranking.slice(0, Math.min(top, result.fitted)).map(rankingRow),
     winner: {
@@ -211,8 +215,9 @@ export function renderText(doc: SearchDocument): string {
   const out: string[] = [];
   const s = doc.series;
   const crit = criterionLabel(doc.criterion);
-  out.push(`series "${s.name}" (${s.frequency}, ${s.length} points${s.inputs.length > 0 ? `; inputs ${s.inputs.join(', ')}` : ''})`);
+  out.push(`series "${s.name}" (${cadenceName(s.frequency as Frequency, s.step)}, ${s.length} points${s.inputs.length > 0 ? `; inputs ${s.inputs.join(', ')}` : ''})`);
   out.push(`sample ${doc.sample.start} to ${doc.sample.end}: ${doc.sample.n} one-step errors, the same for every candidate`);
+  if (doc.seasons) out.push(`season: ${doc.seasons.text}`);
   out.push(`${doc.candidates.fitted} of ${doc.candidates.total} candidates fitted${doc.candidates.failed > 0 ? ` (${doc.candidates.failed} could not be: reasons in candidates.csv)` : ''}`);
   out.push('');
   const header = ['rank', crit, `Δ${crit}`, 'weight', 'k', 'RSS', 'structure'];

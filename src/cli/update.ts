@@ -16,7 +16,7 @@ import { DRIFT_POLICIES, update, type DriftPolicy, type UpdateOptions, type Upda
 import { updateCharts, updateFiles, updateSummary, updateSummaryJson, updateText } from '../report/update-report.js';
 import { withLock } from '../store/lock.js';
 import { readModelFile, writeModelFile, type ModelBody } from '../store/model-file.js';
-import { addDataOptions, loadSeriesFromCli } from './data-options.js';
+import { addDataOptions, loadSeriesFromCli, parseDataOptions } from './data-options.js';
 import { ExitRequest, type CliIO } from './main.js';
 import { runClock, writeFiles } from './output.js';
 
@@ -87,6 +87,15 @@ export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpd
     modelPath,
     async () => {
       const body = await readModelFile(modelPath);
+      const season = parseDataOptions(opts).season;
+      if (season !== undefined && season !== body.series.season) {
+        throw new UsageError('season-mismatch', `--season ${season} differs from the model's season (${body.series.season ?? 'none'})`, {
+          file: modelPath,
+          found: `--season ${season}`,
+          expected: `the model's season ${body.series.season ?? '(none)'}; another season needs a new model`,
+          hint: `drop --season, or fit a new model with certa forecast --season ${season}`,
+        });
+      }
       const dataOpts = { ...opts };
       if (dataOpts.inputs === undefined && body.series.inputs.length > 0) dataOpts.inputs = body.series.inputs.join(',');
       const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io);

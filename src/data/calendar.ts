@@ -19,25 +19,30 @@ export function frequencyRank(f: Frequency): number {
 }
 
 /**
- * The season length in periods used by seasonal terms and seasonal baselines:
+ * The season length in observations used by seasonal terms and seasonal baselines:
  * 24 for hourly (daily cycle), 7 for daily (weekly cycle), 52 for weekly, 12 monthly, 4 quarterly;
- * yearly and index series have no season (null). Common practice, not a law.
+ * yearly and index series have no season (null). Common practice, not a law. A series observed
+ * every `step` base periods has the base season divided by the step when that is a whole number
+ * of at least 2 (every 2 months: 6; every 2 weeks: 26), and no season otherwise (every 5 days).
  */
-export function seasonPeriod(f: Frequency): number | null {
-  switch (f) {
-    case 'hourly':
-      return 24;
-    case 'daily':
-      return 7;
-    case 'weekly':
-      return 52;
-    case 'monthly':
-      return 12;
-    case 'quarterly':
-      return 4;
-    default:
-      return null;
-  }
+export function seasonPeriod(f: Frequency, step = 1): number | null {
+  const base = BASE_SEASON[f];
+  if (base === null) return null;
+  const s = base / step;
+  return Number.isInteger(s) && s >= 2 ? s : null;
+}
+
+const BASE_SEASON: Record<Frequency, number | null> = { hourly: 24, daily: 7, weekly: 52, monthly: 12, quarterly: 4, yearly: null, index: null };
+
+/** Days in the mean Gregorian year: the period of the yearly cycle of daily data, in days. */
+export const DAYS_PER_YEAR = 365.25;
+
+/**
+ * The name of a cadence: the frequency itself for one period per step (`monthly`), otherwise
+ * `every 10 years`, `every 2 weeks`.
+ */
+export function cadenceName(f: Frequency, step = 1): string {
+  return step === 1 ? f : `every ${step} ${periodName(f, step)}`;
 }
 
 /** Periods per year (used to express rates per year); null for index. */

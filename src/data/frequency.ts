@@ -6,11 +6,19 @@
  * hours of elapsed time. The most common step names the base period: 12·k months → yearly,
  * 3·k months → quarterly, other months → monthly, 7·k days → weekly, days → daily, hours →
  * hourly; an index steps by 1. Every step must then be a whole number of base periods, else
- * the data mix frequencies and are refused. The evidence (how many steps of each length) is
- * returned for the report. Series with a single point take the frequency their time form
- * implies (a `YYYY-MM` cell is monthly).
+ * the data mix frequencies and are refused.
+ *
+ * The step: the most common step, in base periods, is the series' step k (a decennial census
+ * is yearly with k = 10, a fortnightly series weekly with k = 2). Every step must be a multiple
+ * of k (a longer step is k·m periods: m − 1 missing observations); a step that is not, such as
+ * a 5-year step among 10-year ones, is refused with its row. The evidence (how many steps of
+ * each length) is returned for the report. Series with a single point take the frequency their
+ * time form implies (a `YYYY-MM` cell is monthly).
+ *
+ * With a target frequency (`--freq`), stamps that are not whole base periods apart are allowed:
+ * they are folded into the target's periods later (regularise.ts), and the step is 1.
  */
-import { periodName, periodStart, periodsBetween, type Frequency } from './calendar.js';
+import { cadenceName, periodName, periodStart, periodsBetween, type Frequency } from './calendar.js';
 import { kindFrequency, type TimeKind } from './dates.js';
 import { DataError } from './errors.js';
 
@@ -27,12 +35,20 @@ export interface StampRun {
 
 export interface FrequencyEvidence {
   frequency: Frequency;
+  /** Base periods between consecutive observations (the most common step; 1 for most data). */
+  step: number;
   /** Number of steps examined (between consecutive distinct stamps, within each series). */
   steps: number;
-  /** How many steps were k periods long, by k ascending. */
+  /** How many steps were k base periods long, by k ascending (0: less than one period). */
   counts: { periods: number; count: number }[];
   /** E.g. "monthly: 737 of 740 steps are 1 month; 2 steps of 2 months; 1 step of 4 months". */
   text: string;
+}
+
+/** What the inference may take for granted. */
+export interface InferOptions {
+  /** The frequency the data will be folded into (`--freq`): irregular steps are then allowed. */
+  target?: Frequency;
 }
 
 /** A step: a positive number of elapsed milliseconds, or minus a number of whole months. */
@@ -73,8 +89,8 @@ function wholePeriods(a: number, b: number, step: Step, f: Frequency): number {
   return (b - a) % ms === 0 ? (b - a) / ms : 0;
 }
 
-export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where: { file: string; column: string }): FrequencyEvidence {
-  if (kind === 'index') return evidenceFor('index', runs, (a, b) => b - a);
+export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where: { file: string; column: string }, options: InferOptions = {}): FrequencyEvidence {
+  if (kind === 'index') return withStep('index', runs, (a, b) => b - a, options.target === undefined, where);
   const tally = new Map<Step, number>();
   let steps = 0;
   for (const run of runs) {
@@ -95,7 +111,7 @@ export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where:
   }
   if (steps === 0) {
     const f = kindFrequency(kind);
-    return { frequency: f, steps: 0, counts: [], text: `${f}: a single time stamp, frequency taken from its form` };
+    return { frequency: f, step: 1, steps: 0, counts: [], text: `${f}: a single time stamp, frequency taken from its form` };
   }
   let mode: Step = 0;
   let modeCount = 0;
@@ -109,7 +125,22 @@ export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where:
       expected: 'hourly, daily, weekly, monthly, quarterly or yearly stamps',
     });
   }
-  // Every step must be a whole number of base periods.
+  if (options.target === undefined) return strictEvidence(runs, base, mode, where);
+  try {
+    return strictEvidence(runs, base, mode, where);
+  } catch (e) {
+    if (!(e instanceof DataError)) throw e;
+  }
+  // Folded into the target's periods later: steps between period starts, and a step of 1.
+  const periods = (a: number, b: number) => periodsBetween(periodStart(a, base), periodStart(b, base), base);
+  const evidence = evidenceFor(base, 1, runs, periods);
+  const irregular = countIrregular(runs, base);
+  if (irregular > 0) evidence.text += `; ${irregular} step${irregular === 1 ? ' is' : 's are'} not whole ${periodName(base, 2)} (folded by --freq)`;
+  return evidence;
+}
+
+/** Every step a whole number of base periods, and a multiple of the step; else a DataError. */
+function strictEvidence(runs: readonly StampRun[], base: Frequency, mode: Step, where: { file: string; column: string }): FrequencyEvidence {
   for (const run of runs) {
     const t = run.times;
     for (let i = 1; i < t.length; i++) {
@@ -120,19 +151,58 @@ export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where:
           column: where.column,
           found: `${isoText(t[i - 1])} → ${isoText(t[i])}`,
           expected: `steps of whole ${periodName(base, 2)} (${base})`,
-          hint: 'fix the stray time stamps, or pass --freq to aggregate to a coarser frequency',
+          hint: `correct the stray time stamps, or pass --freq ${base} to combine the rows within each ${periodName(base)} (by --aggregate, default sum)`,
         });
       }
     }
   }
-  return evidenceFor(base, runs, (a, b) => wholePeriods(a, b, classify(a, b), base));
+  return withStep(base, runs, (a, b) => wholePeriods(a, b, classify(a, b), base), true, where);
 }
 
 /**
- * Evidence for a given (e.g. user-chosen) frequency, counting steps between period starts.
- * `periodsOf` measures one step in periods.
+ * Evidence with the step: the most common step in periods (`periodsOf`) is the step k, and with
+ * `strict` every step must be a multiple of it.
  */
-function evidenceFor(f: Frequency, runs: readonly StampRun[], periodsOf: (a: number, b: number) => number): FrequencyEvidence {
+function withStep(f: Frequency, runs: readonly StampRun[], periodsOf: (a: number, b: number) => number, strict: boolean, where: { file: string; column: string }): FrequencyEvidence {
+  const ones = evidenceFor(f, 1, runs, periodsOf);
+  if (!strict || ones.steps === 0) return ones;
+  let step = 1;
+  let best = 0;
+  for (const c of ones.counts) if (c.count > best) [step, best] = [c.periods, c.count];
+  if (step <= 1) return ones;
+  for (const run of runs) {
+    const t = run.times;
+    for (let i = 1; i < t.length; i++) {
+      const k = periodsOf(t[i - 1], t[i]);
+      if (k % step === 0) continue;
+      throw new DataError('step-irregular', `the time stamps come every ${step} ${periodName(f, step)}, but this step is ${k} ${periodName(f, k)}`, {
+        file: where.file,
+        row: run.rows[i],
+        column: where.column,
+        found: `${stampText(f, t[i - 1])} → ${stampText(f, t[i])}`,
+        expected: `steps of ${step} ${periodName(f, step)} or a multiple of ${step} (missing observations)`,
+        hint: `correct or remove the time stamp at row ${run.rows[i]}: the other steps are multiples of ${step} ${periodName(f, step)}`,
+      });
+    }
+  }
+  return evidenceFor(f, step, runs, periodsOf);
+}
+
+/** Steps that are not a whole number of base periods. */
+function countIrregular(runs: readonly StampRun[], base: Frequency): number {
+  let n = 0;
+  for (const run of runs) {
+    const t = run.times;
+    for (let i = 1; i < t.length; i++) if (wholePeriods(t[i - 1], t[i], classify(t[i - 1], t[i]), base) === 0) n++;
+  }
+  return n;
+}
+
+/**
+ * Evidence for a frequency and step, counting the length of each step in periods with
+ * `periodsOf`.
+ */
+function evidenceFor(f: Frequency, step: number, runs: readonly StampRun[], periodsOf: (a: number, b: number) => number): FrequencyEvidence {
   const counts = new Map<number, number>();
   let steps = 0;
   for (const run of runs) {
@@ -144,23 +214,19 @@ function evidenceFor(f: Frequency, runs: readonly StampRun[], periodsOf: (a: num
     }
   }
   const sorted = [...counts.entries()].sort((a, b) => a[0] - b[0]).map(([periods, count]) => ({ periods, count }));
-  return { frequency: f, steps, counts: sorted, text: evidenceText(f, steps, sorted) };
+  return { frequency: f, step, steps, counts: sorted, text: evidenceText(f, step, steps, sorted) };
 }
 
-function evidenceText(f: Frequency, steps: number, counts: { periods: number; count: number }[]): string {
+function evidenceText(f: Frequency, step: number, steps: number, counts: { periods: number; count: number }[]): string {
   if (steps === 0) return `${f}: a single time stamp`;
-  const ones = counts.find((c) => c.periods === 1)?.count ?? 0;
-  const parts = [`${f}: ${ones} of ${steps} step${steps === 1 ? '' : 's'} ${steps === 1 ? 'is' : 'are'} 1 ${periodName(f)}`];
+  const regular = counts.find((c) => c.periods === step)?.count ?? 0;
+  const parts = [`${cadenceName(f, step)}: ${regular} of ${steps} step${steps === 1 ? '' : 's'} ${steps === 1 ? 'is' : 'are'} ${step} ${periodName(f, step)}`];
   for (const c of counts) {
-    if (c.periods === 1) continue;
-    parts.push(`${c.count} step${c.count === 1 ? '' : 's'} of ${c.periods} ${periodName(f, c.periods)}`);
+    if (c.periods === step) continue;
+    if (c.periods === 0) parts.push(`${c.count} step${c.count === 1 ? '' : 's'} within one ${periodName(f)}`);
+    else parts.push(`${c.count} step${c.count === 1 ? '' : 's'} of ${c.periods} ${periodName(f, c.periods)}`);
   }
   return parts.join('; ');
-}
-
-/** Evidence of the steps, measured in periods of f, between the period starts of the stamps. */
-export function evidenceAt(f: Frequency, runs: readonly StampRun[]): FrequencyEvidence {
-  return evidenceFor(f, runs, (a, b) => periodsBetween(periodStart(a, f), periodStart(b, f), f));
 }
 
 function describeStep(s: Step): string {
@@ -174,6 +240,10 @@ function formatMs(ms: number): string {
   if (ms % HOUR === 0) return `${ms / HOUR} hour${ms === HOUR ? '' : 's'}`;
   if (ms % 60_000 === 0) return `${ms / 60_000} minute${ms === 60_000 ? '' : 's'}`;
   return `${ms / 1000} seconds`;
+}
+
+function stampText(f: Frequency, t: number): string {
+  return f === 'index' ? String(t) : isoText(t);
 }
 
 function isoText(t: number): string {

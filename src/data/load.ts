@@ -15,12 +15,14 @@ import { DataError, UsageError } from './errors.js';
 import { inferFrequency, type FrequencyEvidence, type StampRun } from './frequency.js';
 import { parseJsonRecords } from './json.js';
 import { detectLayout, type Layout } from './layout.js';
-import { cellNumber, isMissingText, numberExpectation } from './numbers.js';
-import { regularise, sortAndResolveDuplicates, type DuplicatePolicyName, type RawSeries, type SeriesReport } from './regularise.js';
+import { cellNumber, isMissingText, numberExpectation, numberHint, type DecimalMark } from './numbers.js';
+import { detectDecimalComma } from './decimal-comma.js';
+import { regularise, sortAndResolveDuplicates, type DuplicatePolicyName, type PartialPolicyName, type RawSeries, type SeriesReport } from './regularise.js';
 import type { AggregatorName } from './aggregators.js';
 import type { GapPolicyName } from './gaps.js';
 import type { Series } from './series.js';
 import { decodeText, readSource, sniffFormat, type TableSource } from './source.js';
+import { offsetText, snapToMidnight, type SnapReport } from './snap.js';
 import { parseTimeColumn } from './time-column.js';
 import type { Cell, Table, TableFormat } from './table.js';
 import { parseXlsx } from './xlsx.js';
@@ -32,6 +34,14 @@ export interface TableOptions {
   delimiter?: string;
   /** Sheet to read from a workbook (default: the first). */
   sheet?: string;
+}
+
+/** How number cells were read: the decimal mark, and whether it was given, detected or the default. */
+export interface DecimalReport {
+  mark: DecimalMark;
+  source: 'option' | 'detected' | 'default';
+  /** The columns that showed decimal commas, when detected. */
+  columns: string[];
 }
 
 export interface LoadOptions extends TableOptions {
@@ -50,6 +60,12 @@ export interface LoadOptions extends TableOptions {
   duplicates?: DuplicatePolicyName;
   /** Interior gaps (default interpolate, at most 3 periods). */
   gaps?: GapPolicyName;
+  /** Decimal mark of number cells (default: `.`, or `,` when detected, decimal-comma.ts). */
+  decimal?: DecimalMark;
+  /** Incomplete periods at either end after `freq` folded the data (default drop). */
+  partial?: PartialPolicyName;
+  /** Season length in observations, for every stage after loading (default: from the frequency). */
+  season?: number | null;
 }
 
 export interface LoadReport {
@@ -57,14 +73,21 @@ export interface LoadReport {
   format: TableFormat;
   delimiter: string | null;
   sheet: string | null;
+  /** Every sheet of a workbook with its data rows (empty for other formats). */
+  sheets: { name: string; rows: number }[];
+  decimal: DecimalReport;
   /** Data rows read. */
   rows: number;
   columns: string[];
   layout: Layout;
   /** How the time cells were read, e.g. "dates" or "months (YYYY-MM)". */
   timeForm: string;
+  /** Instants near midnight moved to it (snap.ts), or null. */
+  snapped: SnapReport | null;
   /** The data's own frequency and the evidence for it. */
   frequency: FrequencyEvidence;
+  /** The season of the series (in observations) and where it came from. */
+  season: { length: number | null; source: 'frequency' | 'option' };
   /** Set when `--freq` folded the data into a coarser frequency. */
   aggregated: { from: Frequency; to: Frequency; by: AggregatorName } | null;
   series: SeriesReport[];
@@ -92,12 +115,25 @@ export async function loadSeries(source: string | TableSource, options: LoadOpti
 /** The second half of loadSeries, for a table already in memory. */
 export function seriesFromTable(table: Table, options: LoadOptions = {}): { series: Series[]; report: LoadReport } {
   const file = table.source;
-  const layout = detectLayout(table, options);
+  const detected = options.decimal === undefined ? detectDecimalComma(table) : null;
+  const decimal: DecimalReport = options.decimal !== undefined
+    ? { mark: options.decimal, source: 'option', columns: [] }
+    : detected
+      ? { mark: ',', source: 'detected', columns: detected }
+      : { mark: '.', source: 'default', columns: [] };
+  const layout = detectLayout(table, { ...options, decimal: decimal.mark });
   const col = (name: string): Cell[] => table.columns[table.header.indexOf(name)];
   const notes: string[] = [];
 
   const timeCol = parseTimeColumn(col(layout.time), table.rows, { file, column: layout.time }, options.dateFormat ?? 'auto');
   const { times } = timeCol;
+  if (layout.passedOver.length > 0) notes.push(`time column "${layout.time}" chosen over ${layout.passedOver.map((c) => `"${c}"`).join(', ')}: its times are finer`);
+  const snapped = timeCol.kind === 'datetime' ? snapToMidnight(times) : null;
+  if (snapped) {
+    timeCol.kind = 'date';
+    const range = snapped.minOffset === snapped.maxOffset ? offsetText(snapped.minOffset) : `${offsetText(snapped.minOffset)} to ${offsetText(snapped.maxOffset)}`;
+    notes.push(`${snapped.moved} time stamp${snapped.moved === 1 ? '' : 's'} at ${range} hours from midnight (UTC) moved to that midnight, read as local midnights`);
+  }
 
   // Rows with no time: skipped when the whole row is empty, refused otherwise.
   const keep: number[] = [];
@@ -127,15 +163,16 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     const out = new Float64Array(idx.length);
     for (let i = 0; i < idx.length; i++) {
       const r = idx[i];
-      const v = cellNumber(cells[r]);
+      const v = cellNumber(cells[r], decimal.mark);
       if (v === undefined) {
+        const hint = numberHint(String(cells[r]), decimal.mark) ?? (layout.kind === 'wide' && i === 0 ? 'name the value columns with --value, or an id column with --id for long layout' : undefined);
         throw new DataError('value-not-number', 'the cell is not a number', {
           file,
           row: table.rows[r],
           column: name,
           found: String(cells[r]),
-          expected: numberExpectation(String(cells[r])),
-          ...(layout.kind === 'wide' && i === 0 ? { hint: 'name the value columns with --value, or an id column with --id for long layout' } : {}),
+          expected: numberExpectation(String(cells[r]), decimal.mark),
+          ...(hint ? { hint } : {}),
         });
       }
       out[i] = v;
@@ -165,9 +202,14 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq),
   );
   if (resolved.some((r) => r.sorted)) notes.push('rows were not in time order; sorted by time');
+  for (const r of resolved) {
+    if (r.shortEnds.length === 0) continue;
+    const listed = r.shortEnds.map((e) => `${e.time} (${e.rows} row${e.rows === 1 ? '' : 's'}, most have ${e.typical})`).join(', ');
+    notes.push(`warning: series "${r.series.name}": --duplicates ${duplicatePolicy} combined fewer rows at the ends than elsewhere: ${listed}; a finer time column with --freq drops incomplete periods`);
+  }
 
   const runs: StampRun[] = (layout.kind === 'wide' ? resolved.slice(0, 1) : resolved).map((r) => ({ name: r.series.name, times: r.series.times, rows: r.series.rows }));
-  const evidence = inferFrequency(runs, timeCol.kind, { file, column: layout.time });
+  const evidence = inferFrequency(runs, timeCol.kind, { file, column: layout.time }, { target: options.freq });
   const f = evidence.frequency;
   if (runs.some((run) => run.times.some((t) => periodStart(t, f) !== t))) notes.push(`time stamps moved to the start of their ${f === 'daily' ? 'day' : f.replace(/ly$/, '')}`);
 
@@ -177,14 +219,28 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
   const reports: SeriesReport[] = [];
   for (const r of resolved) {
     const where = { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? r.series.name : layout.values[0] };
-    const out = regularise(r.series, { frequency: f, freq: options.freq, aggregate, duplicates: duplicatePolicy, gaps }, where, r.duplicates);
+    const out = regularise(
+      r.series,
+      { frequency: f, step: evidence.step, freq: options.freq, aggregate, duplicates: duplicatePolicy, gaps, partial: options.partial, season: options.season },
+      where,
+      r.duplicates,
+    );
     series.push(out.series);
     reports.push(out.report);
     const { leading, trailing } = out.report.trimmed;
     if (leading + trailing > 0) {
       notes.push(`series "${r.series.name}": trimmed ${leading} leading and ${trailing} trailing period${leading + trailing === 1 ? '' : 's'} with missing values`);
     }
+    const partial = out.report.partialPeriods;
+    if (partial.length > 0) {
+      const listed = (ps: typeof partial) => ps.map((p) => `${p.time} (${p.observed} of ${p.expected})`).join(', ');
+      const dropped = partial.filter((p) => p.dropped);
+      const kept = partial.filter((p) => !p.dropped);
+      if (dropped.length > 0) notes.push(`warning: series "${r.series.name}": dropped incomplete period${dropped.length === 1 ? '' : 's'} at the ends: ${listed(dropped)}`);
+      if (kept.length > 0) notes.push(`warning: series "${r.series.name}": incomplete period${kept.length === 1 ? '' : 's'} kept (${options.aggregate ?? 'sum'} of fewer observations): ${listed(kept)}`);
+    }
   }
+  if (decimal.source === 'detected') notes.push(`numbers read with decimal commas: the file is semicolon-delimited and every value of ${decimal.columns.map((c) => `"${c}"`).join(', ')} has one comma`);
   if (layout.ignored.length > 0) notes.push(`columns not used: ${layout.ignored.map((c) => `"${c}"`).join(', ')}`);
   const target = options.freq ?? f;
   const report: LoadReport = {
@@ -192,11 +248,15 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     format: table.format,
     delimiter: table.delimiter ?? null,
     sheet: table.sheet ?? null,
+    sheets: table.sheets ?? [],
+    decimal,
     rows: table.rows.length,
     columns: table.header,
     layout,
     timeForm: timeCol.form,
+    snapped,
     frequency: evidence,
+    season: { length: series[0]?.season ?? null, source: options.season !== undefined ? 'option' : 'frequency' },
     aggregated: target !== f ? { from: f, to: target, by: aggregate } : null,
     series: reports,
     notes,

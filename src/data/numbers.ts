@@ -5,7 +5,10 @@
  * Thousands separators (`,`) are accepted only where they cannot be a decimal comma: with a
  * decimal point after them (`1,234.5`) or with two or more groups (`1,234,567`). A single group
  * and no point (`1,234`) could mean 1234 or 1.234, so it is refused with a message. Decimal
- * commas (`3,5`) are not read. Hexadecimal, `Infinity` and numbers out of double range are not
+ * commas (`3,5`) are read only in decimal-comma mode (`--decimal ,`, or detected by
+ * decimal-comma.ts); there `.` or a space groups thousands by the same rule mirrored
+ * (`1.234,5`, `1.234.567`, `1 234,5`; `1.234` alone is refused) and `3.5` is not a number.
+ * Hexadecimal, `Infinity` and numbers out of double range are not
  * numbers. Missing markers: an empty cell, `NA`, `NaN`, `null` (any letter case), `-`, `..`.
  */
 
@@ -38,21 +41,60 @@ export function parseNumberText(s: string): number {
   return NaN;
 }
 
-/** Why a non-missing text is not a number, for the "expected" part of a message. */
-export function numberExpectation(s: string): string {
+/** The decimal separator of number cells: `.` (the default) or `,`. */
+export type DecimalMark = '.' | ',';
+
+const COMMA_PLAIN = /^([+-]?)(\d*),?(\d*)(?:[eE]([+-]?\d+))?$/;
+const COMMA_GROUPED = /^([+-]?)(\d{1,3}(?:([. \u00a0\u202f])\d{3})(?:\3\d{3})*)(?:,(\d+))?$/;
+
+/** The number a text cell holds in decimal-comma mode, or NaN (see the module comment). */
+export function parseCommaNumberText(s: string): number {
   const t = s.trim();
-  if (/^[+-]?\d{1,3},\d{3}$/.test(t)) return `a number; "${t}" could be thousands or a decimal comma, write it without the comma`;
-  if (/^[+-]?\d+,\d+$/.test(t)) return 'a number with "." as the decimal point';
+  let m = COMMA_PLAIN.exec(t);
+  if (m && (m[2].length > 0 || m[3].length > 0) && !(t.includes(',') && m[3].length === 0)) {
+    const v = Number(`${m[1]}${m[2] || '0'}.${m[3] || '0'}${m[4] !== undefined ? `e${m[4]}` : ''}`);
+    return Number.isFinite(v) ? v : NaN;
+  }
+  m = COMMA_GROUPED.exec(t);
+  if (m && (m[4] !== undefined || m[2].length > 7)) {
+    const v = Number(`${m[1]}${m[2].split(m[3]).join('')}${m[4] !== undefined ? `.${m[4]}` : ''}`);
+    return Number.isFinite(v) ? v : NaN;
+  }
+  return NaN;
+}
+
+/** A decimal-comma number such as `3,5` or `-12,75` (one comma, digits on both sides). */
+export const DECIMAL_COMMA_NUMBER = /^[+-]?\d+,\d+$/;
+
+/** Why a non-missing text is not a number, for the "expected" part of a message. */
+export function numberExpectation(s: string, decimal: DecimalMark = '.'): string {
+  const t = s.trim();
+  if (decimal === ',') {
+    if (/^[+-]?\d{1,3}\.\d{3}$/.test(t)) return `a number; "${t}" could be thousands or a decimal point, write it without the point`;
+    if (/^[+-]?\d*\.\d+$/.test(t)) return 'a number with "," as the decimal point (--decimal ,)';
+    return 'a number (or a missing marker: empty, NA, NaN, null, -, ..)';
+  }
+  if (/^[+-]?\d{1,3},\d{3}$/.test(t)) return `a number; "${t}" could be thousands or a decimal comma`;
+  if (DECIMAL_COMMA_NUMBER.test(t)) return 'a number with "." as the decimal point';
   return 'a number (or a missing marker: empty, NA, NaN, null, -, ..)';
 }
 
+/** What to do about a text that is not a number, when the cause is the decimal mark. */
+export function numberHint(s: string, decimal: DecimalMark = '.'): string | undefined {
+  const t = s.trim();
+  if (decimal === ',') return /^[+-]?\d*\.\d+$/.test(t) ? 'the file uses "." as the decimal point: drop --decimal ,' : undefined;
+  if (/^[+-]?\d{1,3},\d{3}$/.test(t)) return `if "${t}" means ${t.replace(',', '.')}, pass --decimal , (decimal commas); if it means ${t.replace(',', '')}, write it without the comma`;
+  if (DECIMAL_COMMA_NUMBER.test(t)) return 'the numbers have decimal commas: pass --decimal , to read them';
+  return undefined;
+}
+
 /** Number from any cell kind; NaN for missing; `undefined` when the cell is not a number. */
-export function cellNumber(cell: unknown): number | undefined {
+export function cellNumber(cell: unknown, decimal: DecimalMark = '.'): number | undefined {
   if (cell === null || cell === undefined) return NaN;
   if (typeof cell === 'number') return Number.isFinite(cell) ? cell : undefined;
   if (typeof cell === 'boolean') return cell ? 1 : 0;
   if (typeof cell === 'string') {
-    const v = parseNumberText(cell);
+    const v = decimal === ',' ? parseCommaNumberText(cell) : parseNumberText(cell);
     if (v === v) return v;
     return isMissingText(cell) ? NaN : undefined;
   }

@@ -28,6 +28,8 @@ export interface Table {
   delimiter?: string;
   /** The sheet read, for XLSX. */
   sheet?: string;
+  /** Every sheet of the workbook with its number of data rows, for XLSX. */
+  sheets?: { name: string; rows: number }[];
   header: string[];
   columns: Cell[][];
   rows: ArrayLike<number>;

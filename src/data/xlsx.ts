@@ -1,6 +1,8 @@
 /**
  * XLSX workbook → Table, through exceljs. The first sheet is read unless a sheet name is given;
- * its first non-empty row is the header. Date cells become `ExcelSerial` values in the
+ * its first non-empty row is the header. When the sheet asked for does not exist, or the sheet
+ * read has no data rows, the error lists every sheet with its number of data rows and the hint
+ * names the other sheet with the most data rows (of those with two columns or more). Date cells become `ExcelSerial` values in the
  * workbook's date system (1900 or 1904), so dates.ts maps them by the ECMA-376 rules rather
  * than by the library's conversion. Formula cells contribute their cached result.
  */
@@ -30,14 +32,25 @@ export async function parseXlsx(bytes: Buffer, file: string, sheetName?: string)
   const sheets = workbook.worksheets;
   if (sheets.length === 0) throw new DataError('xlsx-no-sheets', 'the workbook has no sheets', { file, expected: 'at least one sheet' });
   const sheet = sheetName === undefined ? sheets[0] : sheets.find((s) => s.name === sheetName);
+  const listing = sheets.map((s) => ({ name: s.name, rows: dataRows(s) }));
+  const listed = (list: typeof listing) => list.map((s) => `"${s.name}" (${s.rows === 0 ? 'no data rows' : `${s.rows} data row${s.rows === 1 ? '' : 's'}`})`).join(', ');
+  // The hint names the other sheet with the most data rows among those with a time and a value column's width.
+  let usable: { name: string; rows: number } | undefined;
+  sheets.forEach((s, i) => {
+    const rows = listing[i].rows;
+    if (s.name !== sheet?.name && rows > 0 && s.actualColumnCount >= 2 && rows > (usable?.rows ?? 0)) usable = listing[i];
+  });
+  const sheetHint = usable ? { hint: `pass --sheet ${JSON.stringify(usable.name)}` } : {};
   if (!sheet) {
     throw new UsageError('xlsx-unknown-sheet', `no sheet named "${sheetName}"`, {
       file,
       found: sheetName,
-      expected: `one of ${sheets.map((s) => `"${s.name}"`).join(', ')}`,
-      hint: `pass --sheet ${JSON.stringify(sheets[0].name)}`,
+      expected: `one of ${listed(listing)}`,
+      ...sheetHint,
     });
   }
+  const others = listing.filter((s) => s.name !== sheet.name);
+  const elsewhere = others.length > 0 ? `; the other sheets: ${listed(others)}` : '';
   const date1904 = Boolean((workbook.properties as { date1904?: boolean }).date1904);
   let header: string[] | null = null;
   let headerRow = 0;
@@ -70,15 +83,21 @@ export async function parseXlsx(bytes: Buffer, file: string, sheetName?: string)
     for (let c = 0; c < width; c++) columns[c].push(cellOf(values[c + 1], date1904));
     rows.push(rowNumber);
   });
-  if (header === null) throw new DataError('file-empty', `sheet "${sheet.name}" is empty`, { file, expected: 'a header row and data rows' });
+  if (header === null) throw new DataError('file-empty', `sheet "${sheet.name}" is empty${elsewhere}`, { file, expected: 'a header row and data rows', ...sheetHint });
   if (rows.length === 0) {
-    throw new DataError('file-no-rows', `sheet "${sheet.name}" has a header but no data rows`, {
+    throw new DataError('file-no-rows', `sheet "${sheet.name}" has a header but no data rows${elsewhere}`, {
       file,
       row: headerRow,
       expected: 'at least one data row under the header',
+      ...sheetHint,
     });
   }
-  return { source: file, format: 'xlsx', sheet: sheet.name, header: header as string[], columns, rows: Int32Array.from(rows) };
+  return { source: file, format: 'xlsx', sheet: sheet.name, sheets: listing, header: header as string[], columns, rows: Int32Array.from(rows) };
+}
+
+/** Rows with a value below the first non-empty row (the header). */
+function dataRows(sheet: { actualRowCount: number }): number {
+  return Math.max(0, sheet.actualRowCount - 1);
 }
 
 function cellOf(v: unknown, date1904: boolean): Cell {

@@ -17,10 +17,10 @@
  * interval bands are moved by the same amount at each step (their widths kept).
  */
 import type { Series } from '../data/series.js';
-import { sliceSeries } from '../data/series.js';
-import { stepTime } from '../data/calendar.js';
+import { sliceSeries, timesAfter } from '../data/series.js';
 import { ModelError, UsageError } from '../data/errors.js';
-import { search, type SearchOptions, type SearchResult } from '../select/search.js';
+import type { SearchOptions, SearchResult } from '../select/search.js';
+import { searchSeasons } from '../select/seasons.js';
 import type { Derived, Estimate, Structure } from '../models/structure.js';
 import { forward, inverse } from '../models/transforms.js';
 import { backtest, type Backtest } from '../evaluate/backtest.js';
@@ -92,7 +92,10 @@ function checkWhole(name: string, v: number, min: number, hint?: string): number
 }
 
 /** Runs the main job on one regular series (see the module comment). */
-export function forecastSeries(series: Series, options: ForecastOptions = {}): ForecastRun {
+export function forecastSeries(given: Series, options: ForecastOptions = {}): ForecastRun {
+  // One season for every stage: a season asked of the search is the series' season.
+  const season = options.search?.season;
+  const series = season !== undefined && season !== given.season ? { ...given, season } : given;
   const n = series.values.length;
   const horizon = checkWhole('horizon', options.horizon ?? defaultHorizon(series), 1);
   const holdout = checkWhole('holdout', options.holdout ?? defaultHoldout(series), 0);
@@ -118,7 +121,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
   const train = sliceSeries(series, 0, nTrain);
   let found: SearchResult;
   try {
-    found = search(train, options.search);
+    found = searchSeasons(train, options.search);
   } catch (e) {
     if (e instanceof ModelError && holdout > 0 && e.code === 'too-short') {
       throw new ModelError(e.code, `${e.message} after holding out the last ${holdout}`, { ...e.context, hint: 'lower --holdout or use --holdout 0' });
@@ -158,9 +161,7 @@ export function forecastSeries(series: Series, options: ForecastOptions = {}): F
     index[i] = from + i;
   }
 
-  const times = new Float64Array(horizon);
-  const last = series.time[n - 1];
-  for (let j = 0; j < horizon; j++) times[j] = stepTime(last, series.frequency, j + 1);
+  const times = timesAfter(series, horizon);
   const inputs =
     series.inputs.length === 0
       ? { values: [], source: 'no inputs' }

@@ -70,9 +70,9 @@
  * the fingerprint, one drift step, one copy of the window, and the forecast two simulations of
  * h steps (analytic intervals) or `draws` simulations (bootstrap). See bench/update.bench.ts.
  */
-import { formatTime, stepTime } from '../data/calendar.js';
+import { cadenceName, formatTime, periodName, stepTime } from '../data/calendar.js';
 import { DataError, UsageError } from '../data/errors.js';
-import type { Series } from '../data/series.js';
+import { seriesStep, timesAfter, type Series } from '../data/series.js';
 import type { Structure } from '../models/structure.js';
 import { forward } from '../models/transforms.js';
 import { search, type SearchOptions, type SearchResult } from '../select/search.js';
@@ -196,12 +196,17 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
     throw new UsageError('bad-drift-policy', 'unknown drift policy', { found: String(policyName), expected: DRIFT_POLICIES.join(', ') });
   }
   const f = body.series.frequency as Series['frequency'];
+  const step = body.series.step ?? 1;
   const label = (t: number) => formatTime(t, f);
-  if (rows.frequency !== f) {
-    throw new DataError('frequency-mismatch', `the new data are ${rows.frequency}, the model is ${f}`, {
+  // A single new time stamp shows no step of its own: it is taken to follow the model's.
+  const rowsStep = rows.time.length > 1 ? seriesStep(rows) : step;
+  if (rows.frequency !== f || rowsStep !== step) {
+    const found = cadenceName(rows.frequency, rowsStep);
+    const model = cadenceName(f, step);
+    throw new DataError('frequency-mismatch', `the new data are ${found}, the model is ${model}`, {
       ...(rows.source ? { file: rows.source } : {}),
-      found: rows.frequency,
-      expected: `${f} data (the frequency the model was fitted on)`,
+      found,
+      expected: `${model} data (the frequency the model was fitted on)`,
       hint: 'load the new data with the same --freq and --aggregate options as the model',
     });
   }
@@ -272,12 +277,12 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   let prev = lastTime;
   for (let i = firstNew; i < rows.time.length; i++) {
     const t = rows.time[i];
-    const expected = stepTime(prev, f, 1);
+    const expected = stepTime(prev, f, step);
     if (t !== expected) {
       throw new DataError('gap-in-new-data', i === firstNew ? `the new data do not continue the model: after ${label(prev)} comes ${label(t)}` : `the new data skip from ${label(prev)} to ${label(t)}`, {
         ...(rows.source ? { file: rows.source } : {}),
         found: label(t),
-        expected: `${label(expected)} (one period after ${label(prev)})`,
+        expected: `${label(expected)} (${step === 1 ? 'one period' : `one step of ${step} ${periodName(f, step)}`} after ${label(prev)})`,
         hint: i === firstNew ? 'include every period since the model’s last one; fill gaps with --gaps' : 'fill the gap with --gaps interpolate, or supply the missing rows',
       });
     }
@@ -631,6 +636,7 @@ function appendRows(body: ModelBody, seen: ModelBody['window'], rows: DataRow[],
   return {
     name: body.series.name,
     frequency: body.series.frequency as Series['frequency'],
+    ...(body.series.step !== undefined ? { step: body.series.step } : {}),
     season: body.series.season,
     time,
     values,
@@ -668,9 +674,7 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
   }
   const { structure, learner } = model;
   const n = series.values.length;
-  const f = series.frequency;
-  const times = new Float64Array(horizon);
-  for (let j = 0; j < horizon; j++) times[j] = stepTime(series.time[n - 1], f, j + 1);
+  const times = timesAfter(series, horizon);
   const inputs =
     series.inputs.length === 0 ? { values: [], source: 'no inputs' } : options.future ? options.future(series, horizon, Array.from(times)) : futureByPolicy(series, horizon, defaultInputPolicy(series));
   const method = options.intervals?.method ?? (isLinearStructure(structure) ? 'analytic' : 'bootstrap');

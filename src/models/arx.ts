@@ -23,7 +23,7 @@ import type { DesignMatrix } from '../linalg/matrix.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, deterministicRowsFiller, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { deterministicFiller, deterministicNames, deterministicRowsFiller, isHarmonicSeason, maxHarmonics, type DeterministicTerms } from './terms.js';
 import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
 import { linearEquation } from './equation.js';
@@ -80,7 +80,10 @@ export function validateArxSpec(spec: StructureSpec): ArxSpec {
   if (s.differencing !== 'none' && s.differencing !== 'first' && s.differencing !== 'seasonal') bad('differencing', 'none, first or seasonal');
   if (s.transform !== 'none' && s.transform !== 'log') bad('transform', 'none or log');
   const needsSeason = (s.harmonics as number) > 0 || s.seasonalLag || s.differencing === 'seasonal';
-  if (s.season !== null && !(Number.isInteger(s.season) && (s.season as number) >= 2)) bad('season', 'null or a whole number ≥ 2');
+  if (s.season !== null && !(Number.isInteger(s.season) && (s.season as number) >= 2)) {
+    // Harmonics alone also take a season of whole quarter periods (365.25 days).
+    if (!(typeof s.season === 'number' && isHarmonicSeason(s.season) && !s.seasonalLag && s.differencing !== 'seasonal')) bad('season', 'null, a whole number ≥ 2, or for harmonics alone a multiple of 1/4 (e.g. 365.25)');
+  }
   if (needsSeason && s.season === null) bad('season', 'a season length (harmonics, seasonal lag and seasonal differencing need one)');
   if (s.season != null && (s.harmonics as number) > maxHarmonics(s.season)) bad('harmonics', `at most ⌊${s.season}/2⌋ = ${maxHarmonics(s.season)}`);
   return {

@@ -35,7 +35,7 @@ import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { deterministicFiller, deterministicNames, isHarmonicSeason, maxHarmonics, type DeterministicTerms } from './terms.js';
 import { linearEquation } from './equation.js';
 import { isStableRecursion, spectralRadius } from './roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
@@ -78,7 +78,7 @@ export function validateDampedSpec(spec: StructureSpec): DampedSpec {
   if (s.drift === true) out.drift = true;
   if (K > 0) {
     const season = s.season;
-    if (typeof season !== 'number' || !Number.isInteger(season) || season < 2) bad('season', 'a whole number ≥ 2 when harmonics > 0');
+    if (typeof season !== 'number' || !isHarmonicSeason(season)) bad('season', 'a whole number ≥ 2 (or a multiple of 1/4, e.g. 365.25) when harmonics > 0');
     if (K > maxHarmonics(season as number)) bad('harmonics', `at most ⌊s/2⌋ = ${maxHarmonics(season as number)}`);
     out.harmonics = K;
     out.season = season as number;

@@ -124,7 +124,7 @@ const specSchema = z.object({
   powers: z.array(z.number().int().min(0).max(3)).min(1),
   inputs: z.array(z.string().min(1)),
   harmonics: z.number().int().min(0),
-  season: z.number().int().min(2).nullable(),
+  season: z.number().min(2).refine((v) => Number.isInteger(4 * v), 'a whole number of quarter periods').nullable(),
   transform: z.enum(['none', 'log']),
   dt: z.number().positive().nullable(),
   periodsPerYear: z.number().positive().nullable(),
@@ -848,7 +848,7 @@ export function odeCandidates(series: Series, bounds: CandidateBounds): Structur
         if (inputs.length > 0 && powers.length === 1) continue;
         for (const k of harmonics) {
           if (k > 0 && powers.length === 1) continue;
-          const spec = odeSpec({ state, powers, inputs, harmonics: k, season: k > 0 ? bounds.season : null, transform, dt, periodsPerYear: ppy, selection });
+          const spec = odeSpec({ state, powers, inputs, harmonics: k, season: k > 0 ? (bounds.season as number) * dt : null, transform, dt, periodsPerYear: ppy, selection });
           const twin = JSON.stringify({ ...spec, transform: null });
           let shared = twins.get(twin);
           if (shared === undefined) {

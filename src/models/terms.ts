@@ -9,7 +9,9 @@
  * K ≤ ⌊s/2⌋: a trigonometric-polynomial representation of a periodic mean (Harvey 1989,
  * "Forecasting, Structural Time Series Models and the Kalman Filter", §2.3.4). For even s the
  * k = s/2 sine is sin(πt) = 0 at every integer t, so only its cosine is kept; K = s/2 then spans
- * exactly the s−1 seasonal contrasts.
+ * exactly the s−1 seasonal contrasts. Harmonics also take a season that is a whole number of
+ * quarter periods (the yearly cycle of daily data, s = 365.25 days): their values repeat every
+ * q·s samples for the least q ∈ {1, 2, 4} that makes q·s whole, and are tabulated over that span.
  */
 
 export interface DeterministicTerms {
@@ -36,6 +38,16 @@ function harmonicColumns(K: number, s: number): HarmonicColumn[] {
   return cols;
 }
 
+/** A season harmonics can take: at least 2 and a whole number of quarter periods. */
+export function isHarmonicSeason(s: number): boolean {
+  return Number.isFinite(s) && s >= 2 && Number.isInteger(4 * s);
+}
+
+/** Samples after which the harmonics of season s repeat: q·s for the least q ∈ {1, 2, 4} making it whole. */
+export function harmonicRepeat(s: number): number {
+  return Number.isInteger(s) ? s : Number.isInteger(2 * s) ? 2 * s : 4 * s;
+}
+
 /** Largest meaningful number of harmonic pairs for season s: ⌊s/2⌋. */
 export function maxHarmonics(s: number): number {
   return Math.floor(s / 2);
@@ -58,16 +70,18 @@ export function deterministicCount(d: DeterministicTerms): number {
 }
 
 /**
- * The harmonic values at each phase r = t mod s, row-major s × m (m harmonic columns), tabulated
- * once per (K, s) and shared by every filler: they depend on nothing else.
+ * The harmonic values at each phase r = t mod P (P = `harmonicRepeat(s)`, s itself for a whole
+ * season), row-major P × m (m harmonic columns), tabulated once per (K, s) and shared by every
+ * filler: they depend on nothing else.
  */
 function harmonicTable(cols: HarmonicColumn[], K: number, s: number): Float64Array {
   const key = `${K}:${s}`;
   let table = harmonicTables.get(key);
   if (table === undefined) {
     const m = cols.length;
-    table = new Float64Array(m * s);
-    for (let r = 0; r < s && m > 0; r++) {
+    const P = harmonicRepeat(s);
+    table = new Float64Array(m * P);
+    for (let r = 0; r < P && m > 0; r++) {
       for (let c = 0; c < m; c++) {
         const angle = (2 * Math.PI * cols[c].k * r) / s;
         table[r * m + c] = cols[c].kind === 'sin' ? Math.sin(angle) : Math.cos(angle);
@@ -80,12 +94,12 @@ function harmonicTable(cols: HarmonicColumn[], K: number, s: number): Float64Arr
 
 const harmonicTables = new Map<string, Float64Array>();
 
-/** What both fillers need: season s, harmonic column count m and the tabulated values (s × m). */
+/** What both fillers need: the repeat s of the harmonics, column count m and the tabulated values (s × m). */
 function layout(d: DeterministicTerms): { s: number; m: number; table: Float64Array; intercept: boolean; trend: boolean } {
   const cols = d.harmonics > 0 && d.season !== null ? harmonicColumns(d.harmonics, d.season) : [];
-  const s = d.season ?? 1;
+  const s = harmonicRepeat(d.season ?? 1);
   const m = cols.length;
-  const table = m > 0 ? harmonicTable(cols, d.harmonics, s) : new Float64Array(0);
+  const table = m > 0 ? harmonicTable(cols, d.harmonics, d.season as number) : new Float64Array(0);
   return { s, m, table, intercept: d.intercept, trend: d.trend };
 }
 

@@ -3,7 +3,7 @@
  * forecast table, the metrics table, the summary a scheduler reads, the charts, and the text a
  * person reads in the terminal. Nothing here touches files.
  */
-import { formatTime, type Frequency } from '../data/calendar.js';
+import { cadenceName, formatTime, type Frequency } from '../data/calendar.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
 import { replacesOwn, type Combination } from '../forecast/combine.js';
@@ -89,7 +89,9 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
       name: series.name,
       source: ctx.source ?? series.source ?? null,
       frequency: f,
+      ...(series.step !== undefined && series.step > 1 ? { step: series.step } : {}),
       season: series.season,
+      seasons: search.seasons ?? null,
       length: n,
       start: formatTime(series.time[0], f),
       end: formatTime(series.time[n - 1], f),
@@ -238,13 +240,14 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   const f = series.frequency;
   const lines: string[] = [];
   const n = series.values.length;
-  lines.push(`certa forecast: ${series.name} (${f}, ${n} points, ${formatTime(series.time[0], f)} to ${formatTime(series.time[n - 1], f)})`);
+  lines.push(`certa forecast: ${series.name} (${cadenceName(f, series.step)}, ${n} points, ${formatTime(series.time[0], f)} to ${formatTime(series.time[n - 1], f)})`);
   lines.push('');
   lines.push(`Asserted model: ${asserted.structure.label}`);
   lines.push(`  ${asserted.equation}`);
   for (const d of asserted.derived) lines.push(`  ${d.name}: ${typeof d.value === 'number' ? fmt(d.value) : String(d.value)}${d.unit ? ` ${d.unit}` : ''}${d.note ? `  (${d.note})` : ''}`);
   lines.push('');
   lines.push(`Candidates: ${search.fitted} fitted, ${search.failed} could not be fitted; ranked by ${criterionLabel(search.criterion)} on ${search.sample.start} to ${search.sample.end} (n = ${search.sample.n})`);
+  if (search.seasons) lines.push(`Season: ${search.seasons.text}`);
   const top = search.ranking.filter((c) => c.status === 'fitted').slice(0, 5);
   lines.push(pad(['rank', 'Δ', 'weight', 'structure'], [4, 8, 7, 0]));
   for (const c of top) lines.push(pad([String(c.rank), fmt(c.delta), c.weight.toFixed(3), c.label], [4, 8, 7, 0]));

@@ -41,9 +41,10 @@ import {
   type FamilyDefinition,
 } from '../models/registry.js';
 import { forward, isStrictlyPositive, logJacobian } from '../models/transforms.js';
-import { maxHarmonics } from '../models/terms.js';
+import { isHarmonicSeason, maxHarmonics } from '../models/terms.js';
 import { akaikeWeights, criteria, type Criterion } from './criteria.js';
 import { defaultLjungBoxLags, ljungBox, type LjungBoxResult } from './whiteness.js';
+import type { SeasonEvidence } from './seasons.js';
 
 export type Switch = 'on' | 'off' | 'auto';
 
@@ -60,6 +61,11 @@ export interface SearchOptions {
   harmonics?: number | 'auto';
   /** Season length for seasonal terms (default `series.season`; null switches them off). */
   season?: number | null;
+  /**
+   * Daily series: also search the yearly cycle (365.25 days) by harmonics beside the weekly
+   * season and keep the one the data support (select/seasons.ts; default true).
+   */
+  yearly?: boolean;
   /** Scoring-scale transform (default 'auto': none, plus log for strictly positive series). */
   transform?: 'auto' | 'none' | 'log';
   /** Linear trend term (default 'auto': with and without). */
@@ -148,7 +154,7 @@ export interface SearchWinner {
 }
 
 export interface SearchResult {
-  series: { name: string; frequency: string; season: number | null; length: number; inputs: string[]; source?: string };
+  series: { name: string; frequency: string; step?: number; season: number | null; length: number; inputs: string[]; source?: string };
   criterion: Criterion;
   bounds: CandidateBounds;
   families: string[];
@@ -159,6 +165,8 @@ export interface SearchResult {
   failed: number;
   winner: SearchWinner;
   warnings: string[];
+  /** Which season the data support, when the search ran through seasons.ts `searchSeasons`. */
+  seasons?: SeasonEvidence;
 }
 
 function checkInt(name: string, value: number, min: number, max: number): number {
@@ -246,9 +254,11 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
   const maxInputLags = checkInt('maxInputLags', options.maxInputLags ?? SEARCH_DEFAULTS.maxInputLags, 0, 24);
   const maxDelay = checkInt('maxDelay', options.maxDelay ?? SEARCH_DEFAULTS.maxDelay, 0, 60);
   const season = options.season !== undefined ? options.season : series.season;
-  if (season !== null && (!Number.isInteger(season) || season < 2)) {
-    throw new UsageError('bad-season', 'the season length must be a whole number ≥ 2', { found: String(season), expected: 'an integer ≥ 2' });
+  if (season !== null && (!Number.isInteger(season) || season < 2) && !isHarmonicSeason(season)) {
+    throw new UsageError('bad-season', 'the season length must be a whole number ≥ 2', { found: String(season), expected: 'an integer ≥ 2 (or, for harmonics alone, a multiple of 1/4 such as 365.25)' });
   }
+  // A season of whole quarter periods (365.25 days) serves harmonics only: no seasonal lag or differences.
+  const whole = season !== null && Number.isInteger(season);
   let harmonics: number[] = [];
   if (season !== null) {
     const h = options.harmonics ?? SEARCH_DEFAULTS.harmonics;
@@ -285,11 +295,11 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
   }
   const diff = options.differencing ?? SEARCH_DEFAULTS.differencing;
   const differencing: Differencing[] =
-    diff === 'auto' ? (season !== null ? ['none', 'first', 'seasonal'] : ['none', 'first']) : [diff];
-  if (diff === 'seasonal' && season === null) {
+    diff === 'auto' ? (whole ? ['none', 'first', 'seasonal'] : ['none', 'first']) : [diff];
+  if (diff === 'seasonal' && !whole) {
     throw new UsageError('no-season', `seasonal differencing needs a season; series "${series.name}" has none`, { expected: 'a season length' });
   }
-  const seasonalLag = season === null ? [false] : switchValues(options.seasonalLag ?? SEARCH_DEFAULTS.seasonalLag);
+  const seasonalLag = !whole ? [false] : switchValues(options.seasonalLag ?? SEARCH_DEFAULTS.seasonalLag);
   return {
     maxAr,
     maxInputLags,
@@ -510,6 +520,7 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
     series: {
       name: series.name,
       frequency: series.frequency,
+      ...(series.step !== undefined && series.step > 1 ? { step: series.step } : {}),
       season: series.season,
       length: n,
       inputs: series.inputs.map((i) => i.name),

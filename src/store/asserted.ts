@@ -55,6 +55,7 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
     series: {
       name: series.name,
       frequency: series.frequency,
+      ...(series.step !== undefined && series.step > 1 ? { step: series.step } : {}),
       season: series.season,
       lastTime: series.time[n - 1],
       lastTimeLabel: formatTime(series.time[n - 1], series.frequency),
@@ -141,6 +142,7 @@ export function windowSeries(body: ModelBody): Series {
   return {
     name: body.series.name,
     frequency: body.series.frequency as Series['frequency'],
+    ...(body.series.step !== undefined ? { step: body.series.step } : {}),
     season: body.series.season,
     time: Float64Array.from(w.time),
     values: Float64Array.from(w.values),

@@ -74,6 +74,8 @@ export const modelBodySchema = z
     series: z.strictObject({
       name: z.string(),
       frequency: z.enum(FREQUENCIES as [string, ...string[]]),
+      /** Periods of the frequency between observations, when more than one (absent: 1). */
+      step: z.int().min(2).optional(),
       season: z.int().positive().nullable(),
       /** Time stamp of the last observation the model has seen (calendar.ts units). */
       lastTime: finite,

@@ -21,7 +21,7 @@ describe('certa inspect', () => {
     const r = runCli(['inspect', CO2, '--json']);
     expect(r.code, r.stderr).toBe(0);
     const doc = JSON.parse(r.stdout);
-    expect(Object.keys(doc)).toEqual(['file', 'format', 'delimiter', 'sheet', 'rows', 'columns', 'layout', 'time_form', 'frequency', 'aggregated', 'series', 'notes']);
+    expect(Object.keys(doc)).toEqual(['file', 'format', 'delimiter', 'sheet', 'sheets', 'decimal', 'rows', 'columns', 'layout', 'time_form', 'time_snapped', 'frequency', 'season', 'aggregated', 'series', 'notes']);
     expect(Object.keys(doc.series[0])).toEqual(['name', 'start', 'end', 'length', 'observations', 'missing', 'trimmed', 'duplicates', 'filled', 'partial_periods', 'stats', 'inputs']);
     expect(doc.series.map((s: { name: string }) => s.name)).toEqual(['CO2', 'adjusted CO2']);
     expect(doc.series[0].filled.map((p: { time: string }) => p.time)).toEqual(['1958-06', '1958-10', '1964-02', '1964-03', '1964-04']);

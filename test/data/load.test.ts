@@ -93,7 +93,7 @@ describe('loadSeries: layouts and options', () => {
     expect(Array.from(weekly.series[0].values)).toEqual([28, 77]); // 1+…+7, 8+…+14
     const monthly = await loadSeries(src(text), { freq: 'monthly', aggregate: 'max' });
     expect(Array.from(monthly.series[0].values)).toEqual([14]);
-    expect(monthly.report.series[0].partialPeriods).toEqual([{ time: '2021-01', observed: 14, expected: 31 }]);
+    expect(monthly.report.series[0].partialPeriods).toEqual([{ time: '2021-01', observed: 14, expected: 31, dropped: false }]);
     expect(monthly.report.aggregated).toEqual({ from: 'daily', to: 'monthly', by: 'max' });
   });
   it('fills gaps with zero or carry at any length, and gaps in inputs the same way', async () => {

@@ -15,6 +15,7 @@ import type { Series } from '../../src/data/series.js';
 import { ArxStructure } from '../../src/models/arx.js';
 import { criteria } from '../../src/select/criteria.js';
 import { search, type CandidateResult } from '../../src/select/search.js';
+import { expectPearlReedNeighbourhood } from './census-neighbourhood.js';
 
 const csv = readFileSync(fileURLToPath(new URL('../fixtures/population/us_census_1790_1950.csv', import.meta.url)), 'utf8');
 const rows = csv
@@ -57,12 +58,7 @@ describe('U.S. census 1790–1910: logistic ODE (Pearl & Reed 1920)', () => {
   it('fits K between 170 and 240 million and r between 0.027 and 0.035 per year (Pearl & Reed: 197.27 million, 0.03134)', () => {
     const logistic = byKey('ode:level:deg2');
     expect(logistic.status).toBe('fitted');
-    const K = derivedValue(logistic, 'capacity K');
-    const r = derivedValue(logistic, 'rate r per year');
-    expect(K).toBeGreaterThan(170e6);
-    expect(K).toBeLessThan(240e6);
-    expect(r).toBeGreaterThan(0.027);
-    expect(r).toBeLessThan(0.035);
+    expectPearlReedNeighbourhood(derivedValue(logistic, 'capacity K'), derivedValue(logistic, 'rate r per year'));
     expect(logistic.structure.describe(logistic.estimate!.theta)).toMatch(/^dy\/dt = 0\.03\d*·y − [0-9.]+e-10·y²   \(K = \d+ million, r = 0\.03\d* per year\)$/);
   });
 
