@@ -11,7 +11,8 @@ import type { Series } from '../data/series.js';
 import { loadSeries } from '../data/load.js';
 import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forecast/pipeline.js';
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
-import { forecastCharts, forecastFiles, forecastSummary, forecastText, summaryJson } from '../report/forecast-report.js';
+import { forecastCharts, forecastFiles, forecastSummary, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
+import type { IntervalMethod } from '../forecast/intervals.js';
 import { writeModelFile } from '../store/model-file.js';
 import { modelBody, storedCombination } from '../store/asserted.js';
 import { replacesOwn } from '../forecast/combine.js';
@@ -26,6 +27,8 @@ export function addForecastOptions(command: Command): Command {
     .option('--horizon <n>', 'periods to forecast (default: two seasons, or 8 without a season)')
     .option('--holdout <n>', 'last points withheld for evaluation (default: the smaller of two seasons and 20 % of the series; 0 skips evaluation)')
     .option('--levels <list>', 'prediction interval levels in percent (default 80,95)')
+    .option('--point <kind>', 'what the point forecast is: combined (default: the leading structures of every family weighted together) or asserted (the asserted equation alone)')
+    .option('--bands <method>', BANDS_HELP)
     .option('--forgetting <lambda>', 'forgetting factor of online learning, 0 < λ ≤ 1 (default 1)')
     .option('--input-policy <how>', 'future inputs without --future: hold (last value), trend (straight line) or seasonal (repeat the last season); default seasonal for seasonal series, else hold')
     .option('--future <file>', 'file of future input values (same columns, future dates)')
@@ -36,6 +39,18 @@ export function addForecastOptions(command: Command): Command {
     .option('--out <folder>', 'output folder (default output/<series>)')
     .option('--no-charts', 'do not render PNG charts')
     .option('--json', 'print summary.json instead of the text summary');
+}
+
+/** `--bands`, shared by forecast and update. */
+export const BANDS_HELP =
+  'how the prediction bands are made: calibrated (default: from the point forecast’s own errors at rolling origins inside the data), analytic or bootstrap (from the asserted equation alone, under certainty equivalence)';
+
+/** Parses `--bands`; undefined when not given. */
+export function parseBands(raw: unknown): IntervalMethod | undefined {
+  if (raw === undefined) return undefined;
+  const v = String(raw);
+  if (v !== 'calibrated' && v !== 'analytic' && v !== 'bootstrap') throw new UsageError('option-invalid', 'option --bands has an unusable value', { found: v, expected: 'calibrated, analytic or bootstrap' });
+  return v;
 }
 
 interface CliForecastOptions {
@@ -72,6 +87,13 @@ export function parseForecastOptions(opts: Record<string, unknown>): CliForecast
   if (opts.seed !== undefined) f.intervals!.seed = num('--seed', opts.seed, (v) => v >= 0 && v <= 2 ** 53, 'a whole number ≥ 0');
   if (opts.draws !== undefined) f.intervals!.draws = num('--draws', opts.draws, (v) => v >= 100 && v <= 100_000, 'a whole number from 100 to 100000');
   if (opts.parameterUncertainty) f.intervals!.parameterUncertainty = true;
+  const bands = parseBands(opts.bands);
+  if (bands !== undefined) f.intervals!.method = bands;
+  if (opts.point !== undefined) {
+    const p = String(opts.point);
+    if (p !== 'combined' && p !== 'asserted') throw new UsageError('option-invalid', 'option --point has an unusable value', { found: p, expected: 'combined or asserted' });
+    f.point = p;
+  }
   const out: CliForecastOptions = { forecast: f, charts: opts.charts !== false, json: Boolean(opts.json) };
   if (opts.window !== undefined) out.window = num('--window', opts.window, (v) => v >= 10 && v <= 1_000_000, 'a whole number of observations ≥ 10');
   if (opts.future !== undefined) out.future = String(opts.future);
@@ -113,12 +135,22 @@ export async function runForecast(series: Series, cli: CliForecastOptions, folde
   files['summary.json'] = summaryJson(summary);
   await writeFiles(folder, files);
   const a = run.asserted;
+  const story = runStory(run);
   const body = modelBody({ structure: a.structure, learner: a.learner, se: a.estimate.se }, series, {
     criterion: run.search.criterion,
     criterionValue: run.search.winner.result.score,
     now: runClock(),
     windowCapacity: cli.window,
-    meta: { key: a.structure.key, label: a.structure.label, equation: a.equation, horizon: run.horizon, levels: run.levels },
+    meta: {
+      key: a.structure.key,
+      label: a.structure.label,
+      equation: a.equation,
+      horizon: run.horizon,
+      levels: run.levels,
+      intervalMethod: cli.forecast.intervals?.method ?? 'calibrated',
+      point: { kind: story.point.kind, text: story.point.text, assertedShare: story.point.assertedShare },
+      bands: { method: story.bands.method, text: story.bands.text },
+    },
     combination: run.forecast.combination && replacesOwn(run.forecast.combination, a.structure.key) ? storedCombination(run.forecast.combination.members) : undefined,
   });
   await writeModelFile(join(folder, 'model.json'), body, { mkdir: true });

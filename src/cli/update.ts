@@ -19,6 +19,8 @@ import { readModelFile, writeModelFile, type ModelBody } from '../store/model-fi
 import { addDataOptions, loadSeriesFromCli, parseDataOptions } from './data-options.js';
 import { ExitRequest, type CliIO } from './main.js';
 import { runClock, writeFiles } from './output.js';
+import { BANDS_HELP, parseBands } from './forecast.js';
+import type { IntervalMethod } from '../forecast/intervals.js';
 
 export interface CliUpdateOptions {
   onDrift: DriftPolicy;
@@ -26,6 +28,7 @@ export interface CliUpdateOptions {
   acceptRevisions: boolean;
   horizon?: number;
   levels?: number[];
+  bands?: IntervalMethod;
   out?: string;
   charts: boolean;
   json: boolean;
@@ -51,6 +54,8 @@ export function parseUpdateOptions(opts: Record<string, unknown>): CliUpdateOpti
     json: Boolean(opts.json),
   };
   if (opts.horizon !== undefined) out.horizon = num('--horizon', opts.horizon, (v) => v >= 1 && v <= 10_000, 'a whole number of periods from 1 to 10000', true);
+  const bands = parseBands(opts.bands);
+  if (bands !== undefined) out.bands = bands;
   if (opts.levels !== undefined) {
     out.levels = String(opts.levels)
       .split(',')
@@ -103,6 +108,7 @@ export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpd
       const options: UpdateOptions = { now: runClock(), onDrift: cli.onDrift, acceptRevisions: cli.acceptRevisions };
       if (cli.horizon !== undefined) options.horizon = cli.horizon;
       if (cli.levels !== undefined) options.levels = cli.levels;
+      if (cli.bands !== undefined) options.intervals = { method: cli.bands };
       const result = update(body, { ...rows, source: dataFile }, options);
       const warnings = [...report.notes];
       if (!result.changed) {
@@ -138,6 +144,7 @@ export function register(program: Command, io: CliIO): void {
     .option('--accept-revisions', 'accept changed values of rows the model has seen and re-estimate on the revised history')
     .option('--horizon <n>', 'periods to forecast (default: as when the model was made)')
     .option('--levels <list>', 'prediction interval levels in percent (default: as when the model was made)')
+    .option('--bands <method>', `${BANDS_HELP}; default: as when the model was made`)
     .option('--out <folder>', 'folder for forecast.csv, summary.json and charts (default: the model file’s folder)')
     .option('--no-charts', 'do not render PNG charts')
     .option('--json', 'print summary.json instead of the text summary');

@@ -18,7 +18,7 @@ import { sliceSeries } from '../data/series.js';
 import type { Estimate, Structure } from '../models/structure.js';
 import { Learner } from '../forecast/online.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
-import { BASELINES, type BaselineName } from './baselines.js';
+import { BASELINES, BASELINE_NAMES, type BaselineName } from './baselines.js';
 import { metricTable, type MetricTable } from './metrics.js';
 
 export interface RollingRun {
@@ -52,6 +52,16 @@ export interface MetricRow {
   intervals?: { level: number; coverage: number; intervalScore: number }[];
 }
 
+/** The holdout verdict against the baselines (fixed origin, by MASE). */
+export interface BaselineVerdict {
+  /** The baseline with the lowest fixed-origin MASE, its MASE, and the delivered forecast's. */
+  baseline: string;
+  baselineMase: number;
+  modelMase: number;
+  /** True when that baseline's MASE is strictly below the delivered forecast's. */
+  beaten: boolean;
+}
+
 export interface Backtest {
   nTrain: number;
   holdout: number;
@@ -61,6 +71,8 @@ export interface Backtest {
   rolling: RollingRun;
   frozen: RollingRun;
   table: MetricRow[];
+  /** The best baseline on the fixed-origin holdout and whether it beat the model (null when MASE is undefined). */
+  verdict: BaselineVerdict | null;
   warnings: string[];
 }
 
@@ -100,7 +112,30 @@ export function backtest(structure: Structure, estimate: Estimate, series: Serie
   }
   const zeros = modelRow.metrics.mapeExcluded;
   if (zeros > 0) warnings.push(`MAPE leaves out ${zeros} holdout point(s) whose actual value is zero`);
-  return { nTrain, holdout, times: series.time.slice(nTrain, n), actual, fixed, rolling, frozen, table: rows, warnings };
+  const verdict = baselineVerdict(rows);
+  if (verdict?.beaten) {
+    warnings.push(
+      `the ${verdict.baseline} baseline beat the model on the holdout: MASE ${verdict.baselineMase.toFixed(3)} against the model's ${verdict.modelMase.toFixed(3)} ` +
+        `(fixed origin, ${holdout} points); treat the forecast with care, or compare with that baseline`,
+    );
+  }
+  return { nTrain, holdout, times: series.time.slice(nTrain, n), actual, fixed, rolling, frozen, table: rows, verdict, warnings };
+}
+
+/**
+ * The baseline with the lowest fixed-origin MASE against the delivered forecast's (the `model`
+ * row); null when either MASE is not finite. Ties go to the model (not beaten).
+ */
+export function baselineVerdict(rows: readonly MetricRow[]): BaselineVerdict | null {
+  const model = rows.find((r) => r.view === 'fixed-origin' && r.method === 'model');
+  if (!model || !Number.isFinite(model.metrics.mase)) return null;
+  let best: MetricRow | null = null;
+  for (const r of rows) {
+    if (r.view !== 'fixed-origin' || !(BASELINE_NAMES as readonly string[]).includes(r.method) || !Number.isFinite(r.metrics.mase)) continue;
+    if (best === null || r.metrics.mase < best.metrics.mase) best = r;
+  }
+  if (best === null) return null;
+  return { baseline: best.method, baselineMase: best.metrics.mase, modelMase: model.metrics.mase, beaten: best.metrics.mase < model.metrics.mase };
 }
 
 function fixedBaselines(season: number | null): BaselineName[] {

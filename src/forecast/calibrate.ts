@@ -56,7 +56,7 @@ import { sliceSeries } from '../data/series.js';
 import type { Estimate, Structure } from '../models/structure.js';
 import { Learner } from './online.js';
 import { normalQuantile } from './normal.js';
-import type { Band } from './intervals.js';
+import type { Band, ForecastPaths } from './intervals.js';
 import { extendSummary, pathFault, summariseHistory } from './combine.js';
 import { studentTQuantile } from './student-t.js';
 
@@ -292,6 +292,26 @@ export function calibrate(
   const log = profileOf(rolled.log, rolled, levels, options);
   if (want === 'log') return log;
   return logLikelihood(log, rolled) > logLikelihood(none, rolled) ? log : none;
+}
+
+/**
+ * The delivered forecast with calibrated bands: `calibrate` over `members` (the point's members
+ * with their shares), bands around `point` with the members' spread `forecasts` (each member's
+ * forecast and share, those used). Null when the history is too short to calibrate.
+ */
+export function calibratedPaths(
+  point: Float64Array,
+  members: readonly CalibrationMember[],
+  forecasts: readonly { share: number; forecast: ArrayLike<number> }[],
+  history: Series,
+  from: number,
+  levels: readonly number[],
+  options: CalibrationOptions = {},
+): ForecastPaths | null {
+  const calibration = calibrate(members, history, from, point.length, levels, options);
+  if (calibration === null) return null;
+  const spread = memberSpread(forecasts, point, calibration.scale);
+  return { point, bands: calibratedBands(point, calibration, levels, spread), method: 'calibrated', calibration };
 }
 
 /**

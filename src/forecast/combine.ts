@@ -67,6 +67,8 @@ export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'equal', m
 
 export interface CombinationMember {
   key: string;
+  /** The member's readable structure label. */
+  label: string;
   /** The member's structure spec and the coefficients its forecast used (what a model file keeps). */
   spec: StructureSpec;
   theta: Float64Array;
@@ -176,7 +178,7 @@ export function combineForecasts(
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
     }
-    used.push({ key: m.key, spec: m.structure.spec, theta: m.estimate.theta, group: m.group, weight: m.weight, share: 0, forecast, ...(excluded ? { excluded } : {}) });
+    used.push({ key: m.key, label: m.structure.label, spec: m.structure.spec, theta: m.estimate.theta, group: m.group, weight: m.weight, share: 0, forecast, ...(excluded ? { excluded } : {}) });
     if (!excluded && m.weight > 0) totals.set(m.group, (totals.get(m.group) ?? 0) + m.weight);
   }
   const point = new Float64Array(h);

@@ -28,7 +28,7 @@ import { forecastWithIntervals, type ForecastPaths, type IntervalMethod, type In
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
 import { combinationMembers, combineForecasts, combinedPaths, replacesOwn, type Combination, type CombineOptions, type Member } from './combine.js';
-import { calibrate, calibratedBands, memberSpread, type CalibrationOptions } from './calibrate.js';
+import { calibratedPaths, type CalibrationOptions } from './calibrate.js';
 
 export interface ForecastOptions {
   search?: SearchOptions;
@@ -43,6 +43,8 @@ export interface ForecastOptions {
   intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean; calibration?: CalibrationOptions };
   /** Point forecast combined over the leading candidates (combine.ts; default on); false = the winner's path. */
   combine?: CombineOptions | false;
+  /** What the point forecast is: 'combined' (default: `combine`'s combination) or 'asserted' (the asserted equation's own path; same as combine: false). */
+  point?: 'combined' | 'asserted';
 }
 
 export interface AssertedModel {
@@ -74,6 +76,10 @@ export interface ForecastRun {
   forecast: { times: Float64Array; paths: ForecastPaths; inputs: FutureInputs; combination: Combination | null };
   warnings: string[];
 }
+
+/** Said when the bands could not be calibrated and come from the asserted equation alone. */
+export const UNCALIBRATED_WARNING =
+  'the series is too short to calibrate the bands on its own forecast errors: they come from the asserted equation alone, under certainty equivalence, and are likely too narrow';
 
 export function defaultHorizon(series: Series): number {
   return series.season ? 2 * series.season : 8;
@@ -132,7 +138,10 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
   const { structure } = found.winner;
   const from = found.sample.from;
 
-  const combine = options.combine === false ? null : options.combine ?? {};
+  if (options.point !== undefined && options.point !== 'combined' && options.point !== 'asserted') {
+    throw new UsageError('bad-point', 'the point forecast must be "combined" or "asserted"', { found: String(options.point), expected: 'combined or asserted' });
+  }
+  const combine = options.combine === false || options.point === 'asserted' ? null : options.combine ?? {};
   let evaluation: Backtest | null = null;
   if (holdout > 0) {
     const fixedInputs = series.inputs.map((i) => i.values.slice(nTrain, n));
@@ -145,6 +154,7 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
       alone: fixed.alone,
     });
     warnings.push(...evaluation.warnings);
+    if (fixed.uncalibrated) warnings.push('the training part is too short to calibrate the holdout forecast’s bands: its coverage is that of the asserted equation’s own bands');
   }
 
   // Assert: the chosen structure refitted on all data.
@@ -170,13 +180,14 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
         : futureByPolicy(series, horizon, options.inputPolicy ?? defaultInputPolicy(series));
   // Members other than the winner are refitted on all data after a holdout search.
   const refit = (s: Structure, e: Estimate): Estimate => (s.key === structure.key ? estimate : holdout > 0 ? s.estimate(series, from, n) : e);
-  const { paths, combination } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit, from);
+  const { paths, combination, uncalibrated } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit, from);
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the asserted equation diverges over this horizon`);
       break;
     }
   }
+  if (uncalibrated) warnings.push(UNCALIBRATED_WARNING);
 
   return {
     series,
@@ -221,7 +232,7 @@ function deliveredForecast(
   combine: CombineOptions | null,
   refit: (s: Structure, e: Estimate) => Estimate,
   from: number,
-): { paths: ForecastPaths; alone: ForecastPaths | null; combination: Combination | null } {
+): { paths: ForecastPaths; alone: ForecastPaths | null; combination: Combination | null; uncalibrated: boolean } {
   const calibrated = intervals.method === undefined || intervals.method === 'calibrated';
   const modelOptions: IntervalOptions = calibrated ? { ...intervals, method: undefined } : intervals;
   let own: ForecastPaths | null = null;
@@ -245,15 +256,9 @@ function deliveredForecast(
     }
   }
   const replaced = members.length > 1 || members[0].key !== structure.key;
-  const calibration = calibrated ? calibrate(members, history, from, h, intervals.levels, intervals.calibration) : null;
-  let paths: ForecastPaths;
-  if (calibration) {
-    const used = replaced && combination ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
-    const spread = memberSpread(used, point, calibration.scale);
-    paths = { point, bands: calibratedBands(point, calibration, intervals.levels, spread), method: 'calibrated', calibration };
-  }
-  else if (replaced) paths = combinedPaths(ownPaths(), combination as Combination, structure.key) as ForecastPaths;
-  else paths = ownPaths();
-  const alone = replaced ? (calibration ? { point: structure.simulate(estimate.theta, history, future, h), bands: [], method: paths.method } : ownPaths()) : null;
-  return { paths, alone, combination };
+  const used = replaced && combination ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
+  const cal = calibrated ? calibratedPaths(point, members, used, history, from, intervals.levels, intervals.calibration) : null;
+  const paths = cal ?? (replaced ? (combinedPaths(ownPaths(), combination as Combination, structure.key) as ForecastPaths) : ownPaths());
+  const alone = replaced ? (cal ? { point: structure.simulate(estimate.theta, history, future, h), bands: [], method: paths.method } : ownPaths()) : null;
+  return { paths, alone, combination, uncalibrated: calibrated && cal === null };
 }

@@ -85,7 +85,8 @@ import { createDriftState, stepDrift, type DriftAlarm, type DriftState } from '.
 import { defaultInputPolicy, futureByPolicy, type FutureInputs } from './future.js';
 import { forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
 import { Learner } from './online.js';
-import { defaultHorizon } from './pipeline.js';
+import { defaultHorizon, UNCALIBRATED_WARNING } from './pipeline.js';
+import { calibratedPaths, type CalibrationOptions } from './calibrate.js';
 import { combinationMembers, combineForecasts, combinedPaths, type Combination, type Member } from './combine.js';
 
 export type DriftPolicy = 'warn' | 'adapt' | 'research';
@@ -111,7 +112,7 @@ export interface UpdateOptions {
   /** Future inputs for the forecast (default: held at their last values). */
   future?: (history: Series, h: number, times: number[]) => FutureInputs;
   /** Options of the simulation intervals. */
-  intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean };
+  intervals?: { method?: IntervalMethod; draws?: number; seed?: number; parameterUncertainty?: boolean; calibration?: CalibrationOptions };
   /** Search options of the `research` policy (default bounds over the model's inputs). */
   search?: SearchOptions;
   /** Skip the forecast (the result's `forecast` is null). Default false. */
@@ -677,13 +678,27 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
   const times = timesAfter(series, horizon);
   const inputs =
     series.inputs.length === 0 ? { values: [], source: 'no inputs' } : options.future ? options.future(series, horizon, Array.from(times)) : futureByPolicy(series, horizon, defaultInputPolicy(series));
-  const method = options.intervals?.method ?? (isLinearStructure(structure) ? 'analytic' : 'bootstrap');
+  const wanted = options.intervals?.method ?? (typeof body.meta.intervalMethod === 'string' ? (body.meta.intervalMethod as IntervalMethod) : 'calibrated');
+  const method = wanted === 'calibrated' ? (isLinearStructure(structure) ? 'analytic' : 'bootstrap') : wanted;
   const residuals = method === 'bootstrap' ? windowResiduals(structure, learner.theta, series) : new Float64Array(0);
   const estimate = { theta: learner.theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };
   const own = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method });
-  const combination = body.combination ? combineForecasts(storedMembers(body.combination, model), horizon, (s, e) => s.simulate(e.theta, series, inputs.values, horizon), series.values) : null;
+  const members = body.combination ? storedMembers(body.combination, model) : null;
+  const combination = members ? combineForecasts(members, horizon, (s, e) => s.simulate(e.theta, series, inputs.values, horizon), series.values) : null;
   const moved = combination ? combinedPaths(own, combination, structure.key) : null;
-  const paths = moved ?? own;
+  // Calibrated bands on the stored window: the members of the point (or the asserted equation
+  // alone) re-run from rolling origins inside it, as `certa forecast` does on the whole series.
+  let calibrated: ForecastPaths | null = null;
+  if (wanted === 'calibrated') {
+    const point = moved ? moved.point : own.point;
+    const shares = new Map((moved && combination ? combination.members : []).map((m) => [m.key, m.share]));
+    const used = moved && members ? members.filter((m) => (shares.get(m.key) ?? 0) > 0).map((m) => ({ structure: m.structure, estimate: { active: m.key === structure.key ? learner.active : Array.from(m.estimate.theta, (v) => v !== 0) }, share: shares.get(m.key) ?? 0 })) : [{ structure, estimate: { active: learner.active }, share: 1 }];
+    const from = Math.max(1, ...used.map((m) => m.structure.history));
+    const spread = moved && combination ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
+    calibrated = calibratedPaths(point, used, spread, series, from, levels, options.intervals?.calibration);
+    if (calibrated === null) warnings.push(UNCALIBRATED_WARNING.replace('the series is', "the model's stored window is"));
+  }
+  const paths = calibrated ?? moved ?? own;
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the updated equation diverges over this horizon`);

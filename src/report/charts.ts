@@ -40,6 +40,11 @@ export interface HistoryChartInput extends ChartText, ChartSize {
   actual: ArrayLike<number>;
   /** Fitted (one-step) values aligned with `time`; NaN where the model has none. */
   fitted?: ArrayLike<number>;
+  /** Legend label of the fitted values (default "fitted"). */
+  fittedLabel?: string;
+  /** An out-of-sample forecast aligned with `time` (NaN outside its span), e.g. the holdout's fixed-origin forecast. */
+  outOfSample?: ArrayLike<number>;
+  outOfSampleLabel?: string;
   /** Time stamp of the first holdout period: drawn as a dashed marker with the holdout shaded. */
   holdoutStart?: number;
 }
@@ -347,7 +352,10 @@ export function historyChart(input: HistoryChartInput): Buffer {
   const n = input.time.length;
   const datasets: ChartDataset<'line', Point[]>[] = [lineDataset('observed', points(input.time, input.actual, f), palette.observed, { points: showPoints(n), order: 1 })];
   if (input.fitted !== undefined) {
-    datasets.push(lineDataset('fitted', points(input.time, input.fitted, f), palette.fitted, { dash: [7, 4], order: 0 }));
+    datasets.push(lineDataset(input.fittedLabel ?? 'fitted', points(input.time, input.fitted, f), palette.fitted, { dash: [7, 4], order: 0 }));
+  }
+  if (input.outOfSample !== undefined) {
+    datasets.push(lineDataset(input.outOfSampleLabel ?? 'out-of-sample forecast', points(input.time, input.outOfSample, f), palette.forecast, { order: 0 }));
   }
   const marker = input.holdoutStart === undefined ? null : axisValue(input.holdoutStart, f);
   return renderTimeLines(input, datasets, datasets.map(lineLegend), finiteBounds(input.time), marker, width, height);

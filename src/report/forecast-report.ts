@@ -9,9 +9,17 @@ import type { ForecastRun } from '../forecast/pipeline.js';
 import { replacesOwn, type Combination } from '../forecast/combine.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
+import { setAsideWords } from '../select/search.js';
 import { candidatesCsv } from './candidates.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
+import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
+
+/** The account of what a run forecasts: its point and its bands (forecast-story.ts). */
+export function runStory(run: ForecastRun): { point: PointStory; bands: BandStory } {
+  const point = pointStory(run.forecast.combination, run.asserted.structure);
+  return { point, bands: bandStory(run.forecast.paths, point, run.series.time, run.series.frequency, run.series.inputs.length > 0) };
+}
 
 /** The tidy forecast table: one row per time and kind (history, fitted, holdout, forecast). */
 export function forecastTable(run: ForecastRun): Table {
@@ -83,6 +91,7 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
   const ev = run.evaluation;
   const learning = ev?.table.find((r) => r.view === 'rolling-one-step' && r.method.startsWith('model, learning'));
   const frozen = ev?.table.find((r) => r.view === 'rolling-one-step' && r.method === 'model, frozen');
+  const story = runStory(run);
   return {
     caution: FORECAST_CAUTION,
     series: {
@@ -132,11 +141,15 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
           holdout: ev.holdout,
           rows: ev.table.map((r) => ({ view: r.view, method: r.method, ...r.metrics, intervals: r.intervals ?? null })),
           onlineLearning: learning && frozen ? { learningMae: learning.metrics.mae, frozenMae: frozen.metrics.mae } : null,
+          bestBaseline: ev.verdict ? { name: ev.verdict.baseline, mase: ev.verdict.baselineMase } : null,
+          modelMase: ev.verdict?.modelMase ?? null,
+          beatenByBaseline: ev.verdict?.beaten ?? false,
         }
       : null,
     forecast: {
       inputs: run.forecast.inputs.source,
-      point: pointSource(run),
+      point: story.point,
+      bands: story.bands,
       combination: combinationJson(run.forecast.combination),
       rows: Array.from(run.forecast.times, (t, j) => {
         const row: Record<string, unknown> = { time: formatTime(t, f), point: run.forecast.paths.point[j] };
@@ -160,23 +173,35 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   const n = series.values.length;
   const title = series.name;
   const out: Record<string, Buffer> = {};
+  // The one-step fitted values come from the refit on all data: inside the holdout they are
+  // in-sample, so the chart stops them where the holdout starts and shows there the forecast
+  // that was made without the holdout (out of sample).
+  const ev0 = run.evaluation;
+  const nTrain = ev0 ? ev0.nTrain : n;
   const fitted = new Float64Array(n).fill(NaN);
-  run.fitted.index.forEach((t, i) => (fitted[t] = run.fitted.values[i]));
-  const holdoutStart = run.evaluation ? series.time[run.evaluation.nTrain] : undefined;
+  run.fitted.index.forEach((t, i) => {
+    if (t < nTrain) fitted[t] = run.fitted.values[i];
+  });
+  const outOfSample = ev0 ? new Float64Array(n).fill(NaN) : undefined;
+  if (ev0 && outOfSample) for (let j = 0; j < ev0.holdout; j++) outOfSample[nTrain + j] = ev0.fixed.point[j];
+  const holdoutStart = ev0 ? series.time[ev0.nTrain] : undefined;
   out['history.png'] = historyChart({
-    title: `${title}: history and one-step fitted values`,
-    subtitle: asserted.structure.label,
+    title: `${title}: history, one-step fitted values${ev0 ? ' and the holdout forecast' : ''}`,
+    subtitle: `${asserted.structure.label}${ev0 ? `; fitted values are in-sample (refit on all data) and stop at the holdout, where the forecast made without it is drawn` : ''}`,
     frequency: f,
     valueLabel: series.name,
     time: series.time,
     actual: series.values,
     fitted,
+    fittedLabel: 'one-step fitted (in-sample)',
+    ...(outOfSample ? { outOfSample, outOfSampleLabel: 'holdout forecast (out of sample)' } : {}),
     holdoutStart,
   });
   const show = Math.min(n, Math.max(series.season ? 6 * series.season : 40, 3 * run.horizon));
+  const story = runStory(run);
   out['forecast.png'] = forecastChart({
     title: `${title}: forecast, ${run.horizon} periods`,
-    subtitle: `${asserted.structure.label}; ${run.forecast.inputs.source}`,
+    subtitle: `${storySubtitle(story.point, story.bands)}; asserted: ${asserted.structure.label}; ${run.forecast.inputs.source}`,
     frequency: f,
     valueLabel: series.name,
     history: { time: series.time.subarray(n - show), values: series.values.subarray(n - show) },
@@ -242,11 +267,16 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   const n = series.values.length;
   lines.push(`certa forecast: ${series.name} (${cadenceName(f, series.step)}, ${n} points, ${formatTime(series.time[0], f)} to ${formatTime(series.time[n - 1], f)})`);
   lines.push('');
-  lines.push(`Asserted model: ${asserted.structure.label}`);
+  const story = runStory(run);
+  lines.push(...headlineLines(story.point, story.bands));
+  lines.push('');
+  const share = story.point.kind === 'combined' ? ` (share of the point forecast: ${(100 * story.point.assertedShare).toFixed(0)} %)` : '';
+  lines.push(`Asserted model${share}: ${asserted.structure.label}`);
   lines.push(`  ${asserted.equation}`);
   for (const d of asserted.derived) lines.push(`  ${d.name}: ${typeof d.value === 'number' ? fmt(d.value) : String(d.value)}${d.unit ? ` ${d.unit}` : ''}${d.note ? `  (${d.note})` : ''}`);
   lines.push('');
-  lines.push(`Candidates: ${search.fitted} fitted, ${search.failed} could not be fitted; ranked by ${criterionLabel(search.criterion)} on ${search.sample.start} to ${search.sample.end} (n = ${search.sample.n})`);
+  const aside = search.failed > 0 ? `, ${search.failed} set aside (${setAsideWords(search.setAside)})` : '';
+  lines.push(`Candidates: ${search.fitted} fitted${aside}; ranked by ${criterionLabel(search.criterion)} on ${search.sample.start} to ${search.sample.end} (n = ${search.sample.n})`);
   if (search.seasons) lines.push(`Season: ${search.seasons.text}`);
   const top = search.ranking.filter((c) => c.status === 'fitted').slice(0, 5);
   lines.push(pad(['rank', 'Δ', 'weight', 'structure'], [4, 8, 7, 0]));
@@ -265,12 +295,22 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
       });
       lines.push(pad([r.view, r.method, fmt(m.mae), fmt(m.rmse), m.smape.toFixed(2), m.mase.toFixed(3), fmt(m.meanError), ...c], [17, 24, 10, 10, 7, 7, 10, ...c.map(() => 10)]));
     }
+    if (ev.verdict) {
+      const v = ev.verdict;
+      lines.push(
+        v.beaten
+          ? `Verdict: the ${v.baseline} baseline beat the model on the holdout (MASE ${v.baselineMase.toFixed(3)} against ${v.modelMase.toFixed(3)})`
+          : `Verdict: the model beat every baseline on the holdout (MASE ${v.modelMase.toFixed(3)}; best baseline ${v.baseline} ${v.baselineMase.toFixed(3)})`,
+      );
+    }
   } else {
     lines.push('');
     lines.push('Holdout: none (--holdout 0): the model was not evaluated on unseen data.');
   }
   lines.push('');
-  lines.push(...forecastTableLines(f, run.forecast.times, run.forecast.paths, `${pointSource(run)}; ${run.forecast.inputs.source}`));
+  const members = memberLines(story.point);
+  if (members.length > 0) lines.push(...members, '');
+  lines.push(...forecastTableLines(f, run.forecast.times, run.forecast.paths, run.forecast.inputs.source));
   lines.push(...footerLines(summary));
   return `${lines.join('\n')}\n`;
 }
@@ -295,7 +335,7 @@ export function footerLines(summary: Record<string, unknown>): string[] {
 
 /** The forecast table of the terminal summary: a heading line, then time, point and bands per step. */
 export function forecastTableLines(f: Frequency, times: Float64Array, paths: ForecastPaths, inputs: string): string[] {
-  const lines = [`Forecast (${paths.method} intervals; ${inputs}):`];
+  const lines = [`Forecast (${paths.method} bands; ${inputs}):`];
   const bandHead = paths.bands.map((b) => `${b.level}% interval`);
   lines.push(pad(['time', 'point', ...bandHead], [12, 12, ...bandHead.map(() => 26)]));
   for (let j = 0; j < times.length; j++) {
@@ -303,23 +343,6 @@ export function forecastTableLines(f: Frequency, times: Float64Array, paths: For
     lines.push(pad([formatTime(times[j], f), fmt(paths.point[j]), ...cells], [12, 12, ...cells.map(() => 26)]));
   }
   return lines;
-}
-
-/** What the point forecast is, in words: the asserted equation's path or a combination. */
-export function pointSource(run: ForecastRun): string {
-  return describePoint(run.forecast.combination, run.asserted.structure.key);
-}
-
-/** The same for any combination and asserted structure key (`certa forecast` and `certa update`). */
-export function describePoint(c: Combination | null, assertedKey: string): string {
-  if (!c || !replacesOwn(c, assertedKey)) return 'point from the asserted equation';
-  const used = c.members.filter((m) => !m.excluded);
-  const own = used.find((m) => m.key === assertedKey);
-  const share = `the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
-  if (c.groups > 1 && used.every((m) => m.group !== 'all')) {
-    return `point = equal-weight mean over ${c.groups} groups (family and scale), each the Akaike-weighted mean of its candidates (${used.length} in all), ${share}`;
-  }
-  return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, ${share}`;
 }
 
 /** The members of a combination as summary.json lists them. */

@@ -9,7 +9,16 @@ import type { DriftAlarm } from '../forecast/drift.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { forecastChart } from './charts.js';
-import { combinationJson, describePoint, fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
+import { combinationJson, fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
+import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
+
+/** The account of what an update forecasts (forecast-story.ts); null without a forecast. */
+export function updateStory(result: UpdateResult): { point: PointStory; bands: BandStory } | null {
+  const fc = result.forecast;
+  if (!fc) return null;
+  const point = pointStory(fc.combination, result.policy.after);
+  return { point, bands: bandStory(fc.paths, point, result.series.time, result.series.frequency, result.series.inputs.length > 0) };
+}
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 
 /** `forecast.csv` after an update: window rows as `history`, then `forecast` rows. */
@@ -52,6 +61,7 @@ export function updateSummary(result: UpdateResult, ctx: UpdateContext): Record<
   const f = series.frequency;
   const fc = result.forecast;
   const d = body.drift;
+  const story = updateStory(result);
   return {
     caution: FORECAST_CAUTION,
     command: 'update',
@@ -80,7 +90,8 @@ export function updateSummary(result: UpdateResult, ctx: UpdateContext): Record<
           levels: fc.levels,
           intervalMethod: fc.paths.method,
           inputs: fc.inputs.source,
-          point: describePoint(fc.combination, result.policy.after.key),
+          point: story?.point ?? null,
+          bands: story?.bands ?? null,
           combination: combinationJson(fc.combination),
           rows: Array.from(fc.times, (t, j) => {
             const row: Record<string, unknown> = { time: formatTime(t, f), point: fc.paths.point[j] };
@@ -108,12 +119,17 @@ export function updateCharts(result: UpdateResult): Record<string, Buffer> {
   return {
     'forecast.png': forecastChart({
       title: `${series.name}: forecast after update, ${fc.horizon} periods`,
-      subtitle: `${result.policy.after.label}; ${fc.inputs.source}`,
+      subtitle: `${storyText(result)}asserted: ${result.policy.after.label}; ${fc.inputs.source}`,
       frequency: series.frequency,
       history: { time: series.time.subarray(n - show), values: series.values.subarray(n - show) },
       forecast: { time: fc.times, mean: fc.paths.point, bands: fc.paths.bands.map((b) => ({ level: b.level / 100, lower: b.lower, upper: b.upper })) },
     }),
   };
+}
+
+function storyText(result: UpdateResult): string {
+  const story = updateStory(result);
+  return story ? `${storySubtitle(story.point, story.bands)}; ` : '';
 }
 
 /** CSV and JSON files of an update, by file name (charts separately; summary.json added by the caller). */
@@ -152,9 +168,14 @@ export function updateText(result: UpdateResult, summary: Record<string, unknown
       lines.push(`  ${after.equation}`);
     }
   }
-  if (result.forecast) {
+  const story = updateStory(result);
+  if (result.forecast && story) {
     lines.push('');
-    lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, `${describePoint(result.forecast.combination, result.policy.after.key)}; ${result.forecast.inputs.source}`));
+    lines.push(...headlineLines(story.point, story.bands));
+    const members = memberLines(story.point);
+    if (members.length > 0) lines.push('', ...members);
+    lines.push('');
+    lines.push(...forecastTableLines(f, result.forecast.times, result.forecast.paths, result.forecast.inputs.source));
   }
   lines.push(...footerLines(summary));
   return `${lines.join('\n')}\n`;

@@ -108,8 +108,9 @@ export interface CandidateResult {
   spec: StructureSpec;
   structure: Structure;
   status: 'fitted' | 'failed';
-  /** Why a failed candidate could not be fitted. */
+  /** Why a failed candidate could not be fitted, and the kind of failure (`failureKind`). */
   reason?: string;
+  failure?: FailureKind;
   /** 1-based position among fitted candidates (null for failed ones). */
   rank: number | null;
   /** Value of the ranking criterion, its distance to the best, and the Akaike weight. */
@@ -129,6 +130,39 @@ export interface CandidateResult {
   from: number;
   to: number;
   estimate?: Estimate;
+}
+
+/**
+ * Why a candidate was set aside: `explosive` (its fitted dynamics run away: a root on or outside
+ * the unit circle, a state that blows up in finite time), `estimation` (the fit itself failed:
+ * rank loss, a transform the data do not allow, too few rows), `non-finite` (its one-step
+ * predictions are not finite), `exact-fit` (zero one-step errors).
+ */
+export type FailureKind = 'explosive' | 'estimation' | 'non-finite' | 'exact-fit';
+
+const FAILURE_WORDS: Record<FailureKind, string> = {
+  explosive: 'explosive (fitted dynamics run away)',
+  estimation: 'not estimable',
+  'non-finite': 'with non-finite predictions',
+  'exact-fit': 'exact fits (an input restates the target)',
+};
+
+/** Counts of set-aside candidates by kind (kinds with none left out). */
+export function setAsideCounts(failures: readonly Pick<CandidateResult, 'failure'>[]): Partial<Record<FailureKind, number>> {
+  const out: Partial<Record<FailureKind, number>> = {};
+  for (const k of Object.keys(FAILURE_WORDS) as FailureKind[]) {
+    const c = failures.filter((f) => (f.failure ?? 'estimation') === k).length;
+    if (c > 0) out[k] = c;
+  }
+  return out;
+}
+
+/** The counts in words, e.g. "35 explosive (fitted dynamics run away), 2 not estimable". */
+export function setAsideWords(counts: Partial<Record<FailureKind, number>>): string {
+  return (Object.keys(FAILURE_WORDS) as FailureKind[])
+    .filter((k) => (counts[k] ?? 0) > 0)
+    .map((k) => `${counts[k]} ${FAILURE_WORDS[k]}`)
+    .join(', ');
 }
 
 export interface SearchSample {
@@ -163,6 +197,8 @@ export interface SearchResult {
   ranking: CandidateResult[];
   fitted: number;
   failed: number;
+  /** The failed candidates counted by why they were set aside. */
+  setAside: Partial<Record<FailureKind, number>>;
   winner: SearchWinner;
   warnings: string[];
   /** Which season the data support, when the search ran through seasons.ts `searchSeasons`. */
@@ -314,7 +350,7 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
   };
 }
 
-function failed(s: Structure, reason: string, from: number, to: number): CandidateResult {
+function failed(s: Structure, reason: string, from: number, to: number, failure: FailureKind): CandidateResult {
   return {
     key: s.key,
     label: s.label,
@@ -323,6 +359,7 @@ function failed(s: Structure, reason: string, from: number, to: number): Candida
     structure: s,
     status: 'failed',
     reason,
+    failure,
     rank: null,
     score: NaN,
     delta: NaN,
@@ -416,13 +453,13 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       est = s.estimate(series, from, to);
     } catch (e) {
       if (e instanceof CertaError) {
-        results.push(failed(s, e.message, from, to));
+        results.push(failed(s, e.message, from, to, 'estimation'));
         continue;
       }
       throw e;
     }
     if (!isStable(s, est.theta, registry, { series, to })) {
-      results.push(failed(s, unstableReason(s, registry), from, to));
+      results.push(failed(s, unstableReason(s, registry), from, to, 'explosive'));
       continue;
     }
     // The fit's own one-step predictions when the structure gives them (Estimate.oneStep).
@@ -434,20 +471,20 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       rss += e * e;
     }
     if (!Number.isFinite(rss)) {
-      results.push(failed(s, 'non-finite one-step predictions', from, to));
+      results.push(failed(s, 'non-finite one-step predictions', from, to, 'non-finite'));
       continue;
     }
     let active = 0;
     for (const a of est.active) if (a) active++;
     const k = active + 1;
     if (rows - k - 1 <= 0) {
-      results.push(failed(s, `too short: ${rows} rows for ${k} parameters (AICc needs n − k − 1 > 0)`, from, to));
+      results.push(failed(s, `too short: ${rows} rows for ${k} parameters (AICc needs n − k − 1 > 0)`, from, to, 'estimation'));
       continue;
     }
     // An exact fit (up to rounding: RSS ≤ 1e−20 of the total sum of squares) makes log L
     // unbounded; it means an input restates the target, not that the structure is right.
     if (rss <= 1e-20 * (tssByTransform.get(s.transform) ?? 0)) {
-      results.push(failed(s, 'exact fit (zero one-step errors): the target is a deterministic function of its regressors', from, to));
+      results.push(failed(s, 'exact fit (zero one-step errors): the target is a deterministic function of its regressors', from, to, 'exact-fit'));
       continue;
     }
     const c = criteria(rss, rows, k, { logJacobian: jacByTransform.get(s.transform) ?? 0 });
@@ -514,7 +551,12 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
         'structure is left in the errors; consider more lags, seasonal terms or another input',
     );
   }
-  if (failures.length > 0) warnings.push(`${failures.length} of ${candidates.length} candidates could not be fitted (see their reasons in the ranking)`);
+  // Explosive fits are routine (the ranking and the summary count them); a fit that fails
+  // otherwise usually points at the data (a constant or duplicated input, a transform they do not allow).
+  const troubled = failures.filter((r) => r.failure !== 'explosive');
+  if (troubled.length > 0) {
+    warnings.push(`${troubled.length} of ${candidates.length} candidates could not be estimated: ${setAsideWords(setAsideCounts(troubled))}; first reason: ${troubled[0].reason}`);
+  }
 
   return {
     series: {
@@ -539,6 +581,7 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
     ranking: [...fitted, ...failures],
     fitted: fitted.length,
     failed: failures.length,
+    setAside: setAsideCounts(failures),
     winner: {
       structure,
       estimate,

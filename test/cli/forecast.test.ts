@@ -43,7 +43,9 @@ describe('certa forecast', () => {
     const out = join(tmp(), 'o');
     const r = runCli(['forecast', ...demoArgs, '--out', out, '--no-charts']);
     expect(r.code, r.stderr).toBe(0);
-    expect(r.stdout).toMatch(/Asserted model: /);
+    expect(r.stdout).toMatch(/Asserted model( \(share of the point forecast: \d+ %\))?: /);
+    expect(r.stdout).toMatch(/Point forecast: /);
+    expect(r.stdout).toMatch(/Bands: 80 % and 95 %, calibrated on this point forecast’s own/);
     expect(r.stdout).toMatch(/y\[t\] = /);
     expect(r.stdout).toMatch(/fixed-origin\s+seasonal-naive/);
     expect(r.stdout).toMatch(/rolling-one-step\s+model, frozen/);

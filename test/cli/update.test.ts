@@ -49,7 +49,7 @@ describe('certa update', () => {
     expect(r.stdout).toContain('12 new rows (2008-05 to 2009-04)');
     expect(r.stdout).toContain('Parameter change ‖θ_after − θ_before‖₂ = ');
     expect(r.stdout).toContain('Drift: no alarm');
-    expect(r.stdout).toMatch(/Forecast \(analytic intervals/);
+    expect(r.stdout).toMatch(/Forecast \(calibrated bands/);
     expect(r.stdout).toContain('Forecasts are statistical extrapolations');
     expect(existsSync(join(dir, 'forecast.csv'))).toBe(true);
     expect(existsSync(join(dir, 'forecast.png'))).toBe(false);

@@ -203,7 +203,8 @@ describe('update: drift policies and the log', () => {
     expect(entry.note).toContain('before: ');
     expect(r.forecast?.horizon).toBe(12);
     expect(r.forecast?.levels).toEqual([80, 95]);
-    expect(r.forecast?.paths.method).toBe('analytic');
+    expect(r.forecast?.paths.method).toBe('calibrated');
+    expect(r.forecast?.paths.calibration?.origins).toBeGreaterThan(0);
     expect(r.body.updated).toBe('2024-02-01T00:00:00.000Z');
     expect(r.body.created).toBe(NOW);
   });

@@ -130,7 +130,8 @@ describe('search: candidates that cannot be fitted and bad input', () => {
     const bad = r.ranking.filter((c) => c.status === 'failed');
     expect(bad.length).toBeGreaterThan(0);
     expect(bad.every((c) => /flat\[t.*\]/.test(c.reason ?? '') && /const/.test(c.reason ?? ''))).toBe(true);
-    expect(r.warnings.some((w) => /could not be fitted/.test(w))).toBe(true);
+    expect(r.warnings.some((w) => /candidates could not be estimated: \d+ not estimable; first reason: /.test(w))).toBe(true);
+    expect(r.setAside.estimation).toBe(bad.length);
   });
 
   it('refuses a series shorter than the candidates need, naming the length needed', () => {
