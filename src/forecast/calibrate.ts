@@ -12,7 +12,10 @@
  *
  * Method (split-conformal style, with a smoothed horizon profile and the members' spread as
  * the local difficulty):
- *  1. Origins. Every member of the delivered point joins at the first origin o that leaves it
+ *  1. Origins. The members re-run are the largest of each group of the combination (at most 2,
+ *     holding 90 % of the group's share: `calibrationSubset`), their shares scaled up to their
+ *     group's; the origins are every position the data allow, or 24 of them evenly spread
+ *     (`originsFrom`). Every member joins at the first origin o that leaves it
  *     `minRows(p)` estimation rows after the sample start `from` (p its active terms); its
  *     coefficients at o are those of least squares on [from, o), carried from origin to origin
  *     by recursive least squares at λ = 1 (online.ts; equal to a batch refit on each prefix).
@@ -48,8 +51,8 @@
  * is too short for a single origin, no calibration is made and the caller keeps the model's own
  * bands (and says so).
  *
- * Cost: per member one batch fit at the first origin, one RLS step and one h-step simulation per
- * origin.
+ * Cost: per member re-run one batch fit at its first origin, one RLS step per observation after
+ * it, and one h-step simulation per origin: at most 2 members × groups × 24 simulations.
  */
 import type { Series } from '../data/series.js';
 import { sliceSeries } from '../data/series.js';
@@ -65,6 +68,8 @@ export interface CalibrationMember {
   structure: Structure;
   estimate: Pick<Estimate, 'active'>;
   share: number;
+  /** The member's group in the combination (`groupOf`), for `calibrationSubset`. */
+  group?: string;
 }
 
 export interface CalibrationOptions {
@@ -82,6 +87,11 @@ export interface CalibrationOptions {
   originsPerDof?: number;
   /** Weight, in origins, of the power-law fit against the raw mean squared error of each lead (default 10). */
   prior?: number;
+  /** Most origins re-run (default 24, evenly spread over those the data allow, the last always in). */
+  maxOrigins?: number;
+  /** Members re-run per group and the share of the group they must hold (defaults 2 and 0.9: `calibrationSubset`). */
+  perGroup?: number;
+  groupMass?: number;
   /** Estimation rows per active term a member needs before its first origin (default 2; at least 4 more than the terms). */
   rowsPerTerm?: number;
 }
@@ -137,46 +147,53 @@ export interface RollingErrors {
  */
 export function rollingErrors(members: readonly CalibrationMember[], history: Series, from: number, h: number, options: CalibrationOptions = {}): RollingErrors | null {
   const n = history.values.length;
-  const used = members.filter((m) => m.share > 0);
+  const used = calibrationSubset(members, options.perGroup ?? 2, options.groupMass ?? 0.9);
   if (used.length === 0 || n < 2) return null;
   const window = options.window ?? n;
   // Each member joins at the first origin with enough estimation rows for it.
   const starts = used.map((m) => Math.max(n - window, from + minRows(m.estimate.active.filter(Boolean).length, options.rowsPerTerm)));
   const first = Math.min(...starts);
   if (first >= n) return null;
+  const origins = originsFrom(first, n, options.maxOrigins ?? 24);
   const positive = history.values.every((v) => v > 0);
   const lists = () => Array.from({ length: h }, (): number[] => []);
 
   const learners: (Learner | null)[] = used.map(() => null);
-  const start = (i: number): Learner | null => {
-    try {
-      return Learner.start(used[i].structure, used[i].estimate.active, history, from, starts[i]);
-    } catch {
-      return null;
-    }
-  };
+  const started = used.map(() => false);
   const out: RollingErrors = {
     actual: lists(),
     point: lists(),
     none: { scale: 'none', errors: lists(), spreads: lists() },
     log: positive ? { scale: 'log', errors: lists(), spreads: lists() } : null,
     origins: 0,
-    firstOrigin: first,
+    firstOrigin: origins[0],
   };
   const paths: (Float64Array | null)[] = used.map(() => null);
   const combined = new Float64Array(h);
+  let seen = first;
   let summary = summariseHistory(history.values.subarray(0, first));
-  let logRange = positive ? Math.log(summary.max / summary.min) : null;
-  for (let o = first; o < n; o++) {
+  for (const o of origins) {
+    for (; seen < o; seen++) summary = extendSummary(summary, history.values[seen]);
+    const logRange = positive ? Math.log(summary.max / summary.min) : null;
     const lead = Math.min(h, n - o);
     const past = sliceSeries(history, 0, o);
     const future = history.inputs.map((i) => i.values.subarray(o, o + lead));
     let total = 0;
     for (let i = 0; i < used.length; i++) {
       paths[i] = null;
-      if (o === starts[i]) learners[i] = start(i);
+      if (!started[i] && o >= starts[i]) {
+        started[i] = true;
+        learners[i] = startLearner(used[i], history, from, starts[i]);
+      }
       const learner = learners[i];
       if (learner === null) continue;
+      // Rows before o only use observations before o: the learner catches up on the whole history.
+      try {
+        if (learner.next < o) learner.learn(history, o);
+      } catch {
+        learners[i] = null;
+        continue;
+      }
       let f: Float64Array;
       try {
         f = used[i].structure.simulate(learner.theta, past, future, lead);
@@ -202,19 +219,60 @@ export function rollingErrors(members: readonly CalibrationMember[], history: Se
       }
       out.origins++;
     }
-    summary = extendSummary(summary, history.values[o]);
-    if (logRange !== null) logRange = Math.log(summary.max / summary.min);
-    const next = sliceSeries(history, 0, o + 1);
-    for (const learner of learners) {
-      if (learner === null) continue;
-      try {
-        learner.learn(next);
-      } catch {
-        /* a member that cannot learn this row keeps its coefficients */
-      }
-    }
   }
   return out.origins === 0 ? null : out;
+}
+
+function startLearner(m: CalibrationMember, history: Series, from: number, to: number): Learner | null {
+  try {
+    return Learner.start(m.structure, m.estimate.active, history, from, to);
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * The origins re-run: every position from `first` to n − 1, or, when there are more than `most`,
+ * `most` of them evenly spread, the last (n − 1) always among them; ascending.
+ */
+export function originsFrom(first: number, n: number, most: number): number[] {
+  const count = n - first;
+  if (count <= most) return Array.from({ length: count }, (_, j) => first + j);
+  const stride = count / most;
+  const out: number[] = [];
+  for (let j = most - 1; j >= 0; j--) out.push(n - 1 - Math.floor(j * stride));
+  return out;
+}
+
+/**
+ * The members the origins re-run: in each group (`group`, or one group when absent), the
+ * largest shares until they hold `mass` of the group's share, at most `perGroup`, their shares
+ * scaled up to the group's whole share (so groups keep their weight in the mean). Small members
+ * move the combined path little; re-running them would multiply the cost.
+ */
+export function calibrationSubset(members: readonly CalibrationMember[], perGroup: number, mass: number): CalibrationMember[] {
+  const groups = new Map<string, CalibrationMember[]>();
+  for (const m of members) {
+    if (!(m.share > 0)) continue;
+    const g = m.group ?? '';
+    const list = groups.get(g);
+    if (list) list.push(m);
+    else groups.set(g, [m]);
+  }
+  const out: CalibrationMember[] = [];
+  for (const list of groups.values()) {
+    const sorted = [...list].sort((a, b) => b.share - a.share);
+    const whole = sorted.reduce((s, m) => s + m.share, 0);
+    const kept: CalibrationMember[] = [];
+    let held = 0;
+    for (const m of sorted) {
+      if (kept.length >= perGroup || held >= mass * whole) break;
+      kept.push(m);
+      held += m.share;
+    }
+    for (const m of kept) out.push({ ...m, share: (m.share * whole) / held });
+  }
+  return out;
 }
 
 /**

@@ -3,7 +3,7 @@ import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { ArxStructure, validateArxSpec } from '../../src/models/arx.js';
 import { structureFromSpec } from '../../src/models/registry.js';
-import { calibrate, calibratedBands, memberSpread, profileOf, rollingErrors, type RollingErrors } from '../../src/forecast/calibrate.js';
+import { calibrate, calibratedBands, calibrationSubset, memberSpread, originsFrom, profileOf, rollingErrors, type RollingErrors } from '../../src/forecast/calibrate.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
 import { normalQuantile } from '../../src/forecast/normal.js';
 
@@ -89,7 +89,7 @@ describe('rollingErrors', () => {
     const n = 3000;
     const y = new Float64Array(n);
     for (let t = 1; t < n; t++) y[t] = y[t - 1] + 2 * rng.normal();
-    const c = calibrate([{ structure: randomWalk, estimate: { active: [] }, share: 1 }], asSeries(y), 1, 6, [95], { smallSample: false });
+    const c = calibrate([{ structure: randomWalk, estimate: { active: [] }, share: 1 }], asSeries(y), 1, 6, [95], { smallSample: false, maxOrigins: 5000 });
     expect(c).not.toBeNull();
     expect(c!.scale).toBe('none');
     expect(c!.growth).toBeGreaterThan(0.85);
@@ -178,5 +178,24 @@ describe('forecastSeries with calibrated bands (the default)', () => {
     const run = forecastSeries(asSeries(y), { holdout: 0, horizon: 5, combine: false, intervals: { method: 'analytic' } });
     expect(run.forecast.paths.method).toBe('analytic');
     expect(run.forecast.paths.calibration).toBeUndefined();
+  });
+});
+
+describe('originsFrom / calibrationSubset', () => {
+  it('takes every origin when few, else an even spread that ends at the last', () => {
+    expect(originsFrom(5, 9, 10)).toEqual([5, 6, 7, 8]);
+    const o = originsFrom(10, 110, 24);
+    expect(o).toHaveLength(24);
+    expect(o[o.length - 1]).toBe(109);
+    expect(o[0]).toBeGreaterThanOrEqual(10);
+    for (let i = 1; i < o.length; i++) expect(o[i]).toBeGreaterThan(o[i - 1]);
+  });
+
+  it('keeps each group’s largest members and gives them the whole group’s share', () => {
+    const m = (share: number, group: string) => ({ structure: ar1Structure, estimate: { active: [true, true] }, share, group });
+    const kept = calibrationSubset([m(0.3, 'a'), m(0.15, 'a'), m(0.05, 'a'), m(0.4, 'b'), m(0.1, 'b')], 2, 0.9);
+    // Group a (0.5): 0.3 and 0.15 kept (0.45 = 90 %), scaled by 0.5/0.45; group b (0.5): 0.4 then 0.1 (80 % < 90 %).
+    expect(kept.map((k) => k.share)).toEqual([0.3 / 0.9, 0.15 / 0.9, 0.4, 0.1].map((x) => expect.closeTo(x, 12)));
+    expect(kept.reduce((s, k) => s + k.share, 0)).toBeCloseTo(1, 12);
   });
 });
