@@ -209,7 +209,7 @@ export function odeSummary(spec: OdeSpec, terms: string[], theta: Float64Array, 
 }
 
 /** A time τ base periods after the first time stamp, as a readable date and a decimal year. */
-function dateAt(series: Series, periods: number): { label: string; decimal: number } | null {
+export function dateAt(series: Series, periods: number): { label: string; decimal: number } | null {
   if (!Number.isFinite(periods) || Math.abs(periods) > 1e6) return null;
   const f = series.frequency;
   const t0 = series.time[0];

@@ -32,6 +32,7 @@ import type { Structure, StructureSpec, Transform } from './structure.js';
 import { arxFamily } from './arx.js';
 import { odeFamily } from './ode.js';
 import { dampedFamily } from './damped.js';
+import { pathFamily } from './growth-path.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -88,6 +89,7 @@ export const FAMILIES: readonly FamilyDefinition[] = [
   arxFamily,
   odeFamily,
   dampedFamily,
+  pathFamily,
 ];
 
 /** Names of the registered families, in registry order. */
