@@ -100,9 +100,12 @@ const RATE_GRID = [2, 4, 8, 16, 32];
 const MIDPOINT_GRID = [-0.25, 0, 0.25, 0.5, 0.75, 1, 1.25];
 /** Most tenfold increases of the damping λ within one Levenberg–Marquardt step. */
 const MAX_DAMPING = 8;
-/** Levenberg–Marquardt: most steps, and the relative fall of the RSS that ends it. */
-const MAX_STEPS = 100;
-const TOLERANCE = 1e-12;
+/**
+ * Levenberg–Marquardt: most steps, and the relative fall of the RSS that ends it (1e-7 of the
+ * RSS moves the log-likelihood by n·1e-7/2, far below any difference the criteria can see).
+ */
+const MAX_STEPS = 50;
+const TOLERANCE = 1e-7;
 
 /** Where each part of θ sits: K, r, τ_m at 0, 1, 2, then harmonics, then input gains. */
 const AT_K = 0;
@@ -225,6 +228,8 @@ export class PathStructure implements Structure {
     const u = this.columns(series);
     const y = series.values.subarray(lo, hi);
     let theta = this.start(y, lo, rows, origin, dt, u);
+    const first = (origin + lo) * dt;
+    const span = Math.max(1, rows - 1) * dt;
     const yhat = new Float64Array(rows);
     const jac = zeros(rows, p);
     const rssOf = (th: Float64Array) => {
@@ -260,6 +265,11 @@ export class PathStructure implements Structure {
         const trial = theta.map((v, j) => v + delta[j]);
         const trialRss = rssOf(trial);
         if (trialRss < rss) {
+          if (Math.abs(trial[AT_MID] - (first + span / 2)) > 1.5 * span) {
+            throw new ModelError('not-identified', `${this.label}: the path is flat over the sample (its midpoint moves more than a sample length outside it)`, {
+              expected: 'growth or decline within reach of the sample',
+            });
+          }
           const done = rss - trialRss <= TOLERANCE * rss;
           theta = trial;
           rss = trialRss;

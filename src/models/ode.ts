@@ -963,15 +963,15 @@ const LEVEL_SHAPES: [number[], OdeSelection][] = [
 ];
 /** The cumulative-state shapes offered (non-negative series only): Bass-type diffusion. */
 const CUMULATIVE_SHAPES: [number[], OdeSelection][] = [[[0, 1, 2], 'dense']];
-/** The shapes also offered with the inputs scaling the law: logistic growth and Bass diffusion. */
-const RATE_SHAPES = ['level:1,2', 'cumulative:0,1,2'];
+/** The shape also offered with the inputs scaling the law: Bass diffusion (the generalized Bass model). */
+const RATE_SHAPES = ['cumulative:0,1,2'];
 
 /**
  * The ODE candidate grid for a series within the search bounds, in a fixed order: for each
  * scoring transform, the level shapes above, then Bass-type diffusion in the cumulative state
  * when every value is ≥ 0 (and some > 0); each without inputs, then with all allowed inputs
- * as a forcing (not for exponential growth), then, for logistic growth and Bass diffusion, with
- * all allowed inputs scaling the law (the generalized Bass model's mapping function); each with
+ * as a forcing (not for exponential growth), then, for Bass diffusion, with all allowed inputs
+ * scaling the law (the generalized Bass model's mapping function); each with
  * every allowed number of harmonic pairs (not for exponential growth). A candidate is left out when the series gives fewer than (terms + 2)
  * increments, when the log transform meets a non-positive value, or when the time stamps are
  * not equally spaced. dt and periods per year are fixed in each spec from the series.
