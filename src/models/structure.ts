@@ -61,7 +61,12 @@ export interface Estimate {
   oneStep?: Float64Array;
 }
 
-/** A quantity a user reads off the fitted equation. */
+/**
+ * A quantity a user reads off the fitted equation. Quantities of one input are named
+ * `gain <input>` (steady-state change of y per unit), `delay <input>` (periods before it acts)
+ * and `rate effect <input>` (relative change of a law's rate per unit); input-effects.ts reads
+ * them by these names.
+ */
 export interface Derived {
   name: string;
   value: number | string | boolean;

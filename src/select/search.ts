@@ -6,7 +6,11 @@
  * 1. Resolve the bounds (every "auto" becomes the list of alternatives) and ask each family, in
  *    registry order, for its candidates (registry.ts). Grid order is fixed by the families.
  * 2. Common sample: rows t ∈ [from, n) with from = the largest `history` among all candidates
- *    (or a later `sampleStart`), so every candidate predicts the same observations.
+ *    and the `maxHistory` of every family that explores (or a later `sampleStart`), so every
+ *    candidate predicts the same observations. The grid's candidates are scored first; then
+ *    each exploring family tries further structures through a scorer that fits and scores them
+ *    on the same sample (the ARX family's guided search over each input's delay and lags with
+ *    two or more inputs, models/arx-inputs.ts); each key is fitted once.
  * 3. Each candidate is estimated on that sample (`estimate`), its one-step predictions of
  *    z_t = g(y_t) are formed (`oneStep`, or taken from the estimate when the structure returns
  *    them with it, `Estimate.oneStep`), and RSS = Σ (z_t − ẑ_t)² enters the Gaussian
