@@ -198,10 +198,12 @@ export function odeSummary(spec: OdeSpec, terms: string[], theta: Float64Array, 
   } else {
     // The law scaled by the rate inputs: (1 + Σ β_j·w_j)·(Σ c_p x^p) + the rest.
     const np = spec.powers.length;
-    const factor = `(1 ${sum(rateAt, terms.length, (k) => rates[k - rateAt]).replace(/^([^−])/, '+ $1').replace(/^−/, '− ')})`;
+    // A sum continued after a first summand: `+ a…` or `− a…`.
+    const then = (text: string) => (text.startsWith('−') ? `− ${text.slice(1)}` : `+ ${text}`);
+    const beta = sum(rateAt, terms.length, (k) => rates[k - rateAt]);
     const law = sum(0, np, (k) => terms[k]) || '0';
     const rest = sum(np, rateAt, (k) => terms[k]);
-    rhs = `${factor}·(${law})${rest ? ` ${/^−/.test(rest) ? `− ${rest.slice(1)}` : `+ ${rest}`}` : ''}`;
+    rhs = `(1${beta ? ` ${then(beta)}` : ''})·(${law})${rest ? ` ${then(rest)}` : ''}`;
   }
   const reading = readOde(spec, terms, theta);
   const note = reading.headline ? `   (${reading.headline})` : '';

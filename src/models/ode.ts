@@ -633,22 +633,7 @@ class OdeStructure implements Structure {
           if (steps === cachedSteps) byPhase.set(phase, sums);
         }
       }
-      if (nr > 0) {
-        // The law scaled by 1 + Σ β_j w_j, the rate inputs interpolated like the others.
-        if (forcing.length < nodes) forcing = new Float64Array(nodes);
-        if (scale.length < nodes) scale = new Float64Array(nodes);
-        for (let j = 0; j < nodes; j++) {
-          const s = (j * half) / dt;
-          let f = sums !== undefined ? sums[j] : 0;
-          for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
-          forcing[j] = f;
-          let m = 1;
-          for (let k = 0; k < nr; k++) m += theta[rate.at + k] * (ua[rate.first + k] + s * (ub[rate.first + k] - ua[rate.first + k]));
-          scale[j] = m;
-        }
-        return rk4ScaledPolynomial(c0, c1, c2, c3, scale, forcing, x0, dt, steps);
-      }
-      if (ni === 0) {
+      if (ni === 0 && nr === 0) {
         // The forcing is the harmonic part alone (read, not written, by the integration).
         if (sums !== undefined) return rk4Polynomial(c0, c1, c2, c3, sums, x0, dt, steps);
         if (none.length < nodes) none = new Float64Array(nodes);
@@ -660,6 +645,17 @@ class OdeStructure implements Structure {
         let f = sums !== undefined ? sums[j] : 0;
         for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
         forcing[j] = f;
+      }
+      if (nr > 0) {
+        // The law scaled by 1 + Σ β_j w_j, the rate inputs interpolated like the others.
+        if (scale.length < nodes) scale = new Float64Array(nodes);
+        for (let j = 0; j < nodes; j++) {
+          const s = (j * half) / dt;
+          let m = 1;
+          for (let k = 0; k < nr; k++) m += theta[rate.at + k] * (ua[rate.first + k] + s * (ub[rate.first + k] - ua[rate.first + k]));
+          scale[j] = m;
+        }
+        return rk4ScaledPolynomial(c0, c1, c2, c3, scale, forcing, x0, dt, steps);
       }
       return rk4Polynomial(c0, c1, c2, c3, forcing, x0, dt, steps);
     };
