@@ -27,7 +27,7 @@
  * Estimation: nonlinear least squares in θ = (K, r, τ_m, α, β, b). Start: for a grid of
  * (r, τ_m) the remaining coefficients enter linearly (K and K·α, K·β, b), so each grid point is
  * one least-squares fit (separable least squares, Golub & Pereyra, SIAM J. Numer. Anal. 10(2),
- * 1973); then Levenberg–Marquardt on all of θ with the analytic Jacobian and Marquardt's
+ * 1973), screened without the seasonal factor and the best few refitted with it; then Levenberg–Marquardt on all of θ with the analytic Jacobian and Marquardt's
  * diagonal scaling (Marquardt, J. SIAM 11(2), 1963), the damped step solved as the least-squares
  * problem [J; √λ·D]δ ≈ [e; 0]. The covariance is σ̂²(JᵀJ)⁻¹ at the optimum (Seber & Wild,
  * "Nonlinear Regression", 1989, §2.1 — section from memory). The structure is `linearized`:
@@ -98,6 +98,28 @@ export function validatePathSpec(spec: StructureSpec): PathSpec {
 /** Grid of the start (module comment): rates r·T and midpoints as fractions of the span T. */
 const RATE_GRID = [2, 4, 8, 16, 32];
 const MIDPOINT_GRID = [-0.25, 0, 0.25, 0.5, 0.75, 1, 1.25];
+/**
+ * The screening of the start grid (`PathStructure.start`) of the last sample seen: it depends
+ * only on the data, the sample and the inputs, not on the number of harmonics, so the
+ * candidates of one search that differ only there share it. Kept with copies of the data it was
+ * made from and used only while they are unchanged (arrays may be edited in place).
+ */
+let lastScreening: { y: Float64Array; u: Float64Array[]; key: string; fits: { rss: number; theta: Float64Array }[] } | null = null;
+
+function screening(y: Float64Array, t0: number, origin: number, dt: number, u: Float64Array[], make: () => { rss: number; theta: Float64Array }[]): { rss: number; theta: Float64Array }[] {
+  const key = `${t0}:${y.length}:${origin}:${dt}`;
+  const same = (a: ArrayLike<number>, b: ArrayLike<number>) => a.length === b.length && Array.prototype.every.call(a, (v: number, i: number) => v === b[i]);
+  const last = lastScreening;
+  if (last !== null && last.key === key && same(last.y, y) && last.u.length === u.length && last.u.every((c, j) => same(c, u[j]))) {
+    return last.fits.map((f) => ({ rss: f.rss, theta: f.theta.slice() }));
+  }
+  const fits = make();
+  lastScreening = { y: y.slice(), u: u.map((c) => c.slice()), key, fits: fits.map((f) => ({ rss: f.rss, theta: f.theta.slice() })) };
+  return fits;
+}
+
+/** Grid points of the screening fitted with the seasonal factor (`start`). */
+const SCREENED = 3;
 /** Most tenfold increases of the damping λ within one Levenberg–Marquardt step. */
 const MAX_DAMPING = 8;
 /**
@@ -302,52 +324,32 @@ export class PathStructure implements Structure {
     return est;
   }
 
-  /** The start of the fit: the best grid point of separable least squares (module comment). */
+  /**
+   * The start of the fit (module comment): every grid point is screened with the path and the
+   * inputs alone (no seasonal factor, the cheapest separable fit), and the `SCREENED` best are
+   * fitted with the seasonal factor too; the best of those starts Levenberg–Marquardt.
+   */
   private start(y: Float64Array, t0: number, rows: number, origin: number, dt: number, u: Float64Array[]): Float64Array {
-    const p = this.terms.length;
-    const nh = this.nh;
     const span = Math.max(1, rows - 1) * dt;
     const first = (origin + t0) * dt;
-    const h = new Float64Array(nh);
-    const q = p - 2;
-    const m = zeros(rows, q);
-    const storage = new Float64Array(rows * (q + 1));
-    const c = new Float64Array(rows);
-    const lin = new Float64Array(q);
     let yy = 0;
     for (let i = 0; i < rows; i++) yy += y[i] * y[i];
-    let best: { rss: number; theta: Float64Array } | null = null;
-    for (const rate of RATE_GRID) {
-      for (const at of MIDPOINT_GRID) {
-        const r = rate / span;
-        const mid = first + at * span;
-        for (let i = 0; i < rows; i++) {
-          const t = t0 + i;
-          const g = 1 / (1 + Math.exp(-r * ((origin + t) * dt - mid)));
-          this.fillSeason(origin + t, h, 0);
-          const o = i * q;
-          m.data[o] = g;
-          for (let k = 0; k < nh; k++) m.data[o + 1 + k] = g * h[k];
-          for (let j = 0; j < u.length; j++) m.data[o + 1 + nh + j] = u[j][t];
+    const screened = screening(y, t0, origin, dt, u, () => {
+      const fits: { rss: number; theta: Float64Array }[] = [];
+      for (const rate of RATE_GRID) {
+        for (const at of MIDPOINT_GRID) {
+          const fit = this.separableFit(y, yy, t0, rows, origin, dt, u, rate / span, first + at * span, false);
+          if (fit !== null) fits.push(fit);
         }
-        // The residual sum of squares is ‖y‖² − ‖(Qᵀy)[0:q]‖² (Golub & Van Loan 2013, §5.3.3).
-        c.set(y);
-        const f = tryQr(m, {}, storage, c);
-        if (f === undefined || f.rank < q) continue;
-        let fitted = 0;
-        for (let k = 0; k < q; k++) fitted += c[k] * c[k];
-        const rss = yy - fitted;
-        if (best !== null && !(rss < best.rss)) continue;
-        f.solveTransformedInto(c, lin);
-        if (!(lin[0] !== 0) || !lin.every(Number.isFinite)) continue;
-        const theta = new Float64Array(p);
-        theta[AT_K] = lin[0];
-        theta[AT_R] = r;
-        theta[AT_MID] = mid;
-        for (let k = 0; k < nh; k++) theta[AT_SEASON + k] = lin[1 + k] / lin[0];
-        for (let j = 0; j < u.length; j++) theta[AT_SEASON + nh + j] = lin[1 + nh + j];
-        best = { rss, theta };
       }
+      return fits.sort((a, b) => a.rss - b.rss);
+    });
+    // The screened points carry only their rate and midpoint over (their θ may come from a
+    // candidate with another number of harmonics).
+    let best: { rss: number; theta: Float64Array } | null = null;
+    for (const s of screened.slice(0, SCREENED)) {
+      const fit = this.separableFit(y, yy, t0, rows, origin, dt, u, s.theta[AT_R], s.theta[AT_MID], this.nh > 0);
+      if (fit !== null && (best === null || fit.rss < best.rss)) best = fit;
     }
     if (best === null) {
       throw new ModelError('rank-deficient', `${this.label}: no start of the fit separates the path from the inputs`, {
@@ -355,6 +357,55 @@ export class PathStructure implements Structure {
       });
     }
     return best.theta;
+  }
+
+  /**
+   * The least-squares fit of the coefficients that enter linearly (K, K·α, K·β, b) for a fixed
+   * rate and midpoint, with or without the seasonal factor; null when they cannot be told apart.
+   * The residual sum of squares is ‖y‖² − ‖(Qᵀy)[0:q]‖² (Golub & Van Loan 2013, §5.3.3).
+   */
+  private separableFit(
+    y: Float64Array,
+    yy: number,
+    t0: number,
+    rows: number,
+    origin: number,
+    dt: number,
+    u: Float64Array[],
+    r: number,
+    mid: number,
+    seasonal: boolean,
+  ): { rss: number; theta: Float64Array } | null {
+    const nh = seasonal ? this.nh : 0;
+    const q = 1 + nh + u.length;
+    const m = zeros(rows, q);
+    const h = new Float64Array(this.nh);
+    for (let i = 0; i < rows; i++) {
+      const t = t0 + i;
+      const g = 1 / (1 + Math.exp(-r * ((origin + t) * dt - mid)));
+      const o = i * q;
+      m.data[o] = g;
+      if (nh > 0) {
+        this.fillSeason(origin + t, h, 0);
+        for (let k = 0; k < nh; k++) m.data[o + 1 + k] = g * h[k];
+      }
+      for (let j = 0; j < u.length; j++) m.data[o + 1 + nh + j] = u[j][t];
+    }
+    const c = y.slice();
+    const f = tryQr(m, {}, undefined, c);
+    if (f === undefined || f.rank < q) return null;
+    let fitted = 0;
+    for (let k = 0; k < q; k++) fitted += c[k] * c[k];
+    const lin = new Float64Array(q);
+    f.solveTransformedInto(c, lin);
+    if (!(lin[0] !== 0) || !lin.every(Number.isFinite)) return null;
+    const theta = new Float64Array(this.terms.length);
+    theta[AT_K] = lin[0];
+    theta[AT_R] = r;
+    theta[AT_MID] = mid;
+    for (let k = 0; k < nh; k++) theta[AT_SEASON + k] = lin[1 + k] / lin[0];
+    for (let j = 0; j < u.length; j++) theta[AT_SEASON + this.nh + j] = lin[1 + nh + j];
+    return { rss: yy - fitted, theta };
   }
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
