@@ -795,7 +795,8 @@ class OdeStructure implements Structure {
         trialRss = residualSS(trialReg, trial);
       }
       if (!(trialRss <= rss)) break;
-      const done = rss - trialRss <= 1e-10 * rss;
+      // 1e-7 of the RSS moves the log-likelihood by n·1e-7/2, below anything the criteria see.
+      const done = rss - trialRss <= 1e-7 * rss;
       theta = trial;
       reg = trialReg;
       rss = trialRss;
