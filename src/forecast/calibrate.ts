@@ -181,9 +181,11 @@ export function rollingErrors(members: readonly CalibrationMember[], history: Se
     let total = 0;
     for (let i = 0; i < used.length; i++) {
       paths[i] = null;
+      // A member joins at its first origin; one whose fit cannot start there (too few rows for
+      // a nonlinear fit, say) tries again at the next origin.
       if (!started[i] && o >= starts[i]) {
-        started[i] = true;
-        learners[i] = startLearner(used[i], history, from, starts[i]);
+        learners[i] = startLearner(used[i], history, from, o);
+        started[i] = learners[i] !== null;
       }
       const learner = learners[i];
       if (learner === null) continue;
@@ -192,6 +194,7 @@ export function rollingErrors(members: readonly CalibrationMember[], history: Se
         if (learner.next < o) learner.learn(history, o);
       } catch {
         learners[i] = null;
+        started[i] = false;
         continue;
       }
       let f: Float64Array;

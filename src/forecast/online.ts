@@ -7,9 +7,14 @@
  * sparse fit switched off stay exactly zero: RLS runs on the active terms only. The learner
  * starts from the batch least-squares fit of the active terms on the estimation sample, so at
  * λ = 1 learning row by row ends exactly where a batch fit on all rows would (asserted in tests).
+ *
+ * A structure nonlinear in θ (`Structure.linearized`) gives its Gauss–Newton rows at a θ: the
+ * learner starts from the structure's own estimate on the sample (least squares on the rows at
+ * that θ returns it) and forms each new row at its current θ, so each step is a recursive
+ * Gauss–Newton step; at λ = 1 it ends near, not exactly at, a batch refit.
  */
 import type { Series } from '../data/series.js';
-import type { Structure } from '../models/structure.js';
+import type { Regression, Structure } from '../models/structure.js';
 import { lstsq } from '../linalg/lstsq.js';
 import { Rls, type RlsJson } from '../linalg/rls.js';
 import { zeros, type DesignMatrix } from '../linalg/matrix.js';
@@ -44,7 +49,8 @@ export class Learner {
    * continues with row `to`.
    */
   static start(structure: Structure, active: boolean[], series: Series, from: number, to: number, options: LearnerOptions = {}): Learner {
-    const reg = structure.regression(series, from, to);
+    const at = structure.linearized ? structure.estimate(series, from, to).theta : undefined;
+    const reg = structure.regression(series, from, to, at);
     const cols = activeColumns(active);
     const names = cols.map((j) => structure.terms[j]);
     const phi = selectColumns(reg.phi, cols);
@@ -98,19 +104,27 @@ export class Learner {
    */
   learn(series: Series, to: number = series.values.length): LearnStep[] {
     if (to <= this.next) return [];
-    const reg = this.structure.regression(series, this.next, to);
+    const steps: LearnStep[] = [];
+    if (!this.structure.linearized) {
+      this.learnRows(this.structure.regression(series, this.next, to), steps);
+    } else {
+      // Each row at the θ the previous step left.
+      for (let t = this.next; t < to; t++) this.learnRows(this.structure.regression(series, t, t + 1, this.theta), steps);
+    }
+    if (this.next < to) this.next = to;
+    return steps;
+  }
+
+  private learnRows(reg: Regression, steps: LearnStep[]): void {
     const cols = activeColumns(this.active);
     const p = reg.phi.cols;
     const phi = new Float64Array(cols.length);
-    const steps: LearnStep[] = [];
     for (let r = 0; r < reg.y.length; r++) {
       for (let a = 0; a < cols.length; a++) phi[a] = reg.phi.data[r * p + cols[a]];
       const s = this.rls.update(phi, reg.y[r]);
       steps.push({ t: reg.index[r], innovation: s.innovation, variance: s.innovationVariance });
       this.next = reg.index[r] + 1;
     }
-    if (this.next < to) this.next = to;
-    return steps;
   }
 }
 

@@ -413,7 +413,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   if (body.meta.equation !== undefined || structureChanged) {
     meta = { ...meta, key: model.structure.key, label: model.structure.label, equation: after.equation };
   }
-  const fields = learnerFields({ ...model, se: seAfter });
+  const fields = learnerFields({ ...model, se: seAfter }, ext);
   const policy: PolicyOutcome = {
     name: alarms.length === 0 ? 'continue' : policyName,
     note: notes.join('; ') || `learnt ${added} new row${added === 1 ? '' : 's'}`,

@@ -27,6 +27,7 @@ import { deterministicFiller, deterministicNames, deterministicRowsFiller, isHar
 import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
 import { linearEquation } from './equation.js';
+import { exploreInputs } from './arx-inputs.js';
 
 export interface ArxInputSpec {
   /** Input name, as in `series.inputs`. */
@@ -100,7 +101,7 @@ export function validateArxSpec(spec: StructureSpec): ArxSpec {
 }
 
 /** Differencing order D (0, 1 or s). */
-function diffOrder(spec: ArxSpec): number {
+export function diffOrder(spec: Pick<ArxSpec, 'differencing' | 'season'>): number {
   return spec.differencing === 'none' ? 0 : spec.differencing === 'first' ? 1 : (spec.season as number);
 }
 
@@ -109,7 +110,7 @@ function diffPrefix(spec: ArxSpec): string {
 }
 
 /** Differenced copy x_t − x_{t−D} (NaN for t < D); x itself when D = 0 (callers only read it). */
-function difference(x: Float64Array, D: number): Float64Array {
+export function difference(x: Float64Array, D: number): Float64Array {
   if (D === 0) return x;
   const w = new Float64Array(x.length);
   for (let t = 0; t < x.length; t++) w[t] = t >= D ? x[t] - x[t - D] : NaN;
@@ -535,42 +536,30 @@ export function arxLabel(spec: ArxSpec): string {
 }
 
 /**
- * The input configurations of the grid, in fixed order: none; then for each input subset (by
- * series order; every non-empty subset when at most 3 inputs, otherwise each input alone and
- * all together), every lag count q = 1…maxInputLags and delay d = 0…maxDelay shared by the
- * subset's inputs.
+ * The input configurations of the full grid for at most one input, in fixed order: none; then
+ * every lag count q = 1…maxInputLags and delay d = 0…maxDelay. With two or more inputs the
+ * product of every input's choices is too large to fit, and the family searches it guided
+ * instead (arx-inputs.ts).
  */
 function inputConfigs(bounds: CandidateBounds): ArxInputSpec[][] {
   const names = bounds.inputs;
   const configs: ArxInputSpec[][] = [[]];
-  if (names.length === 0 || bounds.maxInputLags < 1) return configs;
-  const subsets: string[][] = [];
-  if (names.length <= 3) {
-    for (let mask = 1; mask < 1 << names.length; mask++) subsets.push(names.filter((_, i) => mask & (1 << i)));
-    subsets.sort((a, b) => a.length - b.length);
-  } else {
-    for (const n of names) subsets.push([n]);
-    subsets.push([...names]);
-  }
-  for (const subset of subsets) {
-    for (let q = 1; q <= bounds.maxInputLags; q++) {
-      for (let d = 0; d <= bounds.maxDelay; d++) configs.push(subset.map((name) => ({ name, lags: q, delay: d })));
-    }
+  if (names.length !== 1 || bounds.maxInputLags < 1) return configs;
+  for (let q = 1; q <= bounds.maxInputLags; q++) {
+    for (let d = 0; d <= bounds.maxDelay; d++) configs.push([{ name: names[0], lags: q, delay: d }]);
   }
   return configs;
 }
 
 /**
- * The ARX candidate grid, in this fixed nesting order (outermost first): transform,
- * differencing, trend, seasonal lag, harmonics, AR lags p = 0…maxAr, input configuration.
- * Combinations that make no sense are left out: seasonal parts without a season, and harmonics
- * with seasonal differencing (which removes any fixed seasonal pattern).
+ * The structures of the ARX grid without inputs ("bases"), in this fixed nesting order
+ * (outermost first): transform, differencing, trend, seasonal lag, harmonics, AR lags
+ * p = 0…maxAr. Combinations that make no sense are left out: seasonal parts without a season,
+ * and harmonics with seasonal differencing (which removes any fixed seasonal pattern).
  */
-export function arxCandidates(series: Series, bounds: CandidateBounds): Structure[] {
-  void series;
-  const out: Structure[] = [];
+export function arxBases(bounds: CandidateBounds): ArxSpec[] {
+  const out: ArxSpec[] = [];
   const s = bounds.season;
-  const inputs = inputConfigs(bounds);
   for (const transform of bounds.transforms) {
     for (const differencing of bounds.differencing) {
       if (differencing === 'seasonal' && s === null) continue;
@@ -581,11 +570,7 @@ export function arxCandidates(series: Series, bounds: CandidateBounds): Structur
           for (const harmonics of Ks) {
             if (harmonics > 0 && differencing === 'seasonal') continue;
             for (let ar = 0; ar <= bounds.maxAr; ar++) {
-              for (const cfg of inputs) {
-                out.push(
-                  new ArxStructure({ family: 'arx', ar, inputs: cfg, trend, harmonics, season: s, seasonalLag, differencing, transform }),
-                );
-              }
+              out.push({ family: 'arx', ar, inputs: [], trend, harmonics, season: s, seasonalLag, differencing, transform });
             }
           }
         }
@@ -595,9 +580,47 @@ export function arxCandidates(series: Series, bounds: CandidateBounds): Structur
   return out;
 }
 
+/** True when the bounds leave the input choices to the guided search (two or more inputs). */
+function guided(bounds: CandidateBounds): boolean {
+  return bounds.inputs.length >= 2 && bounds.maxInputLags >= 1;
+}
+
+/**
+ * The ARX candidate grid: every base (`arxBases`) with each input configuration of
+ * `inputConfigs`, bases outermost. With two or more inputs only the bases without inputs; the
+ * input choices are then explored by `arxExplore`.
+ */
+export function arxCandidates(series: Series, bounds: CandidateBounds): Structure[] {
+  void series;
+  const configs = inputConfigs(bounds);
+  const out: Structure[] = [];
+  for (const base of arxBases(bounds)) for (const inputs of configs) out.push(new ArxStructure({ ...base, inputs }));
+  return out;
+}
+
+/**
+ * The longest history of any ARX structure within the bounds: the longest AR or seasonal lag,
+ * or the last input lag maxDelay + maxInputLags − 1, plus the differencing order.
+ */
+export function arxMaxHistory(series: Series, bounds: CandidateBounds): number {
+  void series;
+  let most = 0;
+  for (const base of arxBases(bounds)) {
+    let h = base.ar;
+    if (base.seasonalLag) h = Math.max(h, base.season as number);
+    if (bounds.inputs.length > 0 && bounds.maxInputLags >= 1) h = Math.max(h, bounds.maxDelay + bounds.maxInputLags - 1);
+    most = Math.max(most, h + diffOrder(base));
+  }
+  return most;
+}
+
 export const arxFamily: FamilyDefinition = {
   name: 'arx',
   candidates: arxCandidates,
+  explore: (series, bounds, scorer) => {
+    if (guided(bounds)) exploreInputs(series, bounds, arxBases(bounds), scorer, (spec) => new ArxStructure(spec));
+  },
+  maxHistory: arxMaxHistory,
   fromSpec: (spec) => new ArxStructure(spec),
   dynamicMask: (structure) => (structure as ArxStructure).dynamicMask(),
   stable: (structure, theta) => (structure as ArxStructure).isStable(theta),

@@ -178,23 +178,40 @@ export function readOde(spec: OdeSpec, terms: string[], theta: Float64Array): Od
 /** The fitted equation, e.g. `dy/dt = 0.0313·y − 1.59e-10·y²   (K = 197 million, r = 0.0313 per year)`. */
 export function odeSummary(spec: OdeSpec, terms: string[], theta: Float64Array, se?: Float64Array): string {
   const symbol = spec.state === 'level' ? 'y' : 'X';
-  const pieces: string[] = [];
-  terms.forEach((name, k) => {
-    const c = theta[k];
-    if (c === 0) return;
-    const pretty = name.replace('^2', '²').replace('^3', '³');
-    const mag = se ? `(${formatNumber(Math.abs(c))} ± ${formatNumber(se[k])})` : formatNumber(Math.abs(c));
-    const term = name === '1' ? mag : `${mag}·${pretty}`;
-    pieces.push(pieces.length === 0 ? (c < 0 ? `−${term}` : term) : `${c < 0 ? '−' : '+'} ${term}`);
-  });
-  const rhs = pieces.length > 0 ? pieces.join(' ') : '0';
+  const rates = spec.rateInputs ?? [];
+  const rateAt = terms.length - rates.length;
+  const sum = (from: number, to: number, name: (k: number) => string): string => {
+    const pieces: string[] = [];
+    for (let k = from; k < to; k++) {
+      const c = theta[k];
+      if (c === 0) continue;
+      const pretty = name(k).replace('^2', '²').replace('^3', '³');
+      const mag = se ? `(${formatNumber(Math.abs(c))} ± ${formatNumber(se[k])})` : formatNumber(Math.abs(c));
+      const term = pretty === '1' ? mag : `${mag}·${pretty}`;
+      pieces.push(pieces.length === 0 ? (c < 0 ? `−${term}` : term) : `${c < 0 ? '−' : '+'} ${term}`);
+    }
+    return pieces.join(' ');
+  };
+  let rhs: string;
+  if (rates.length === 0) {
+    rhs = sum(0, terms.length, (k) => terms[k]) || '0';
+  } else {
+    // The law scaled by the rate inputs: (1 + Σ β_j·w_j)·(Σ c_p x^p) + the rest.
+    const np = spec.powers.length;
+    // A sum continued after a first summand: `+ a…` or `− a…`.
+    const then = (text: string) => (text.startsWith('−') ? `− ${text.slice(1)}` : `+ ${text}`);
+    const beta = sum(rateAt, terms.length, (k) => rates[k - rateAt]);
+    const law = sum(0, np, (k) => terms[k]) || '0';
+    const rest = sum(np, rateAt, (k) => terms[k]);
+    rhs = `(1${beta ? ` ${then(beta)}` : ''})·(${law})${rest ? ` ${then(rest)}` : ''}`;
+  }
   const reading = readOde(spec, terms, theta);
   const note = reading.headline ? `   (${reading.headline})` : '';
   return `d${symbol}/dt = ${rhs}${note}`;
 }
 
 /** A time τ base periods after the first time stamp, as a readable date and a decimal year. */
-function dateAt(series: Series, periods: number): { label: string; decimal: number } | null {
+export function dateAt(series: Series, periods: number): { label: string; decimal: number } | null {
   if (!Number.isFinite(periods) || Math.abs(periods) > 1e6) return null;
   const f = series.frequency;
   const t0 = series.time[0];
@@ -215,6 +232,15 @@ export function odeDerived(spec: OdeSpec, terms: string[], theta: Float64Array, 
     ...reading.quantities,
   ];
   const warnings = [...reading.warnings];
+  (spec.rateInputs ?? []).forEach((name, j) => {
+    out.push({
+      name: `rate effect ${name}`,
+      value: theta[theta.length - (spec.rateInputs as string[]).length + j],
+      unit: `relative change of the rate per unit of ${name}`,
+      note: 'the law is scaled by 1 + β·input (generalized Bass model mapping function)',
+    });
+    out.push({ name: `delay ${name}`, value: 0, unit: 'periods' });
+  });
   const x = ctx.state;
   const n = x.length;
   const xMax = x.reduce((a, b) => Math.max(a, b), -Infinity);

@@ -1,10 +1,17 @@
 /**
- * The polynomial ODE family: dx/dτ = Σ_k θ_k·φ_k(τ, x, u), a first-order ODE whose right-hand
- * side is linear in θ over a library of terms:
+ * The polynomial ODE family: dx/dτ = (1 + Σ_j β_j w_j)·Σ_p c_p x^p + Σ_j c_j u_j + H(τ), a
+ * first-order ODE over a library of terms:
  *   - powers of the state x^p for chosen p ∈ {0, 1, 2, 3} (p = 0 is the constant term `1`);
- *   - inputs u_j entering linearly (term named after the input);
+ *   - inputs u_j entering linearly, as a forcing of the rate of change (term named after the
+ *     input);
+ *   - inputs w_j scaling the law itself, the mapping function of the generalized Bass model
+ *     x(t) = 1 + Σ β_j w_j(t) (Bass, Krishnan & Jain, "Why the Bass model fits without decision
+ *     variables", Marketing Science 13(3), 1994, 203–223: f(t)/(1 − F(t)) = (p + q·F(t))·x(t)):
+ *     a price or subsidy that speeds up or slows down adoption without changing the market it
+ *     saturates at (terms `β(name)`; absent in older specs, which read as none);
  *   - seasonal harmonic pairs sin(2π·k·τ/s), cos(2π·k·τ/s) (terms.ts conventions, except the
  *     sine is kept at k = s/2: `odeHarmonics`).
+ * Without rate inputs the right-hand side is linear in θ; with them it is bilinear in (c, β).
  *
  * The state x is either the series level (x_t = y_t, term names `y`, `y^2`, ...) or its
  * cumulative sum (x_t = X_0 + Σ_{s≤t} y_s, names `X`, `X^2`, ...), so per-period sales become the
@@ -33,7 +40,12 @@
  * integral form avoids differentiating noisy data (Dattner & Klaassen 2015, Electronic Journal
  * of Statistics 9:1939–1973 — volume and pages from memory — integral estimators for ODEs
  * linear in parameters). It is solved by
- * least squares, or by sequential thresholded least squares when `selection: 'sparse'`.
+ * least squares, or by sequential thresholded least squares when `selection: 'sparse'`. With
+ * rate inputs the same trapezoid residuals are minimised by Gauss–Newton from the fit with
+ * β = 0 (dense only): the model is linear in c for fixed β and in β for fixed c, so each step is
+ * one least-squares fit of the rows linearised at the current θ (`regression(…, at)`), halved
+ * while it does not lower the residual sum of squares (Seber & Wild, "Nonlinear Regression",
+ * 1989, §14.2.1, step halving — section from memory).
  *
  * Prediction. Inputs are linearly interpolated within a sampling interval (the same assumption
  * the trapezoid rule makes). `oneStep` integrates the fitted ODE from the observed x_{t−1} over
@@ -54,7 +66,7 @@ import { sparseRegression } from '../linalg/sparse.js';
 import { odeDerived, odeSummary } from './ode-derived.js';
 import { equilibria, polyValue } from './ode-roots.js';
 import type { CandidateBounds, FamilyDefinition, StateAt } from './registry.js';
-import { rk4Polynomial } from './rk4.js';
+import { rk4Polynomial, rk4ScaledPolynomial } from './rk4.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { maxHarmonics } from './terms.js';
 import { isStrictlyPositive } from './transforms.js';
@@ -70,6 +82,8 @@ export interface OdeSpec extends StructureSpec {
   powers: number[];
   /** Names of the inputs entering linearly, in series order. */
   inputs: string[];
+  /** Names of the inputs scaling the law (1 + Σ β_j w_j), in series order; absent = none. */
+  rateInputs?: string[];
   /** Number of seasonal harmonic pairs (0 = none). */
   harmonics: number;
   /** Season length in base periods (needed when harmonics > 0). */
@@ -98,6 +112,8 @@ export interface OdeOptions {
   state?: OdeState;
   /** Default none. */
   inputs?: string[];
+  /** Default none. */
+  rateInputs?: string[];
   /** Default 0. */
   harmonics?: number;
   /** Default null. */
@@ -117,12 +133,15 @@ export interface OdeOptions {
 }
 
 const DEFAULT_SUBSTEPS = 8;
+/** Most Gauss–Newton steps of a fit with rate inputs (a bound; fits converge in a handful). */
+const MAX_GAUSS_NEWTON = 30;
 
 const specSchema = z.object({
   family: z.literal('ode'),
   state: z.enum(['level', 'cumulative']),
   powers: z.array(z.number().int().min(0).max(3)).min(1),
   inputs: z.array(z.string().min(1)),
+  rateInputs: z.array(z.string().min(1)).optional(),
   harmonics: z.number().int().min(0),
   season: z.number().min(2).refine((v) => Number.isInteger(4 * v), 'a whole number of quarter periods').nullable(),
   transform: z.enum(['none', 'log']),
@@ -140,6 +159,7 @@ export function odeSpec(options: OdeOptions): OdeSpec {
     state: options.state ?? 'level',
     powers: [...new Set(options.powers)].sort((a, b) => a - b),
     inputs: [...(options.inputs ?? [])],
+    ...(options.rateInputs !== undefined && options.rateInputs.length > 0 ? { rateInputs: [...options.rateInputs] } : {}),
     harmonics: options.harmonics ?? 0,
     season: options.season ?? null,
     transform: options.transform ?? 'none',
@@ -165,6 +185,10 @@ function checkSpec(raw: unknown): OdeSpec {
   if (new Set(spec.powers).size !== spec.powers.length || spec.powers.some((p, i) => i > 0 && p <= spec.powers[i - 1])) {
     throw new UsageError('bad-ode-spec', 'ODE powers must be ascending and distinct', { found: JSON.stringify(spec.powers) });
   }
+  if (spec.rateInputs !== undefined && spec.rateInputs.length > 0 && spec.selection !== 'dense') {
+    throw new UsageError('bad-ode-spec', 'inputs scaling the law need dense estimation', { found: `selection ${spec.selection}`, expected: 'selection dense' });
+  }
+  if (spec.rateInputs !== undefined && spec.rateInputs.length === 0) delete spec.rateInputs;
   if (spec.harmonics > 0 && (spec.season === null || spec.harmonics > maxHarmonics(spec.season))) {
     throw new UsageError('bad-ode-spec', 'seasonal harmonics need a season length s with harmonics ≤ s/2', {
       found: `harmonics ${spec.harmonics}, season ${spec.season}`,
@@ -279,6 +303,11 @@ const nodeHarmonics = new Map<string, Map<number, Float64Array>>();
 /** Name of the state symbol in terms and equations. */
 export function stateSymbol(state: OdeState): string {
   return state === 'level' ? 'y' : 'X';
+}
+
+/** The term of an input scaling the law: `β(price)`. */
+function rateTermName(name: string): string {
+  return `β(${name})`;
 }
 
 function powerName(symbol: string, p: number): string {
@@ -419,6 +448,10 @@ class OdeStructure implements Structure {
   /** The regression and the dynamics are on the untransformed state whatever the scoring scale. */
   readonly equationScale: Transform = 'none';
   private readonly harmonicNames: string[];
+  /** The inputs scaling the law (OdeSpec.rateInputs), [] when none. */
+  private readonly rates: string[];
+  /** True with rate inputs: the equation is bilinear in θ (see the module comment). */
+  readonly linearized: boolean;
 
   /** Work shared with the grid's twin of another transform (odeCandidates), if any. */
   private readonly shared: SharedFit | undefined;
@@ -427,16 +460,20 @@ class OdeStructure implements Structure {
     this.spec = spec;
     this.shared = shared;
     this.transform = spec.transform;
+    this.rates = spec.rateInputs ?? [];
+    this.linearized = this.rates.length > 0;
     const symbol = stateSymbol(spec.state);
     this.harmonicNames = harmonicTermNames(spec.harmonics, spec.season);
-    this.terms = [...spec.powers.map((p) => powerName(symbol, p)), ...spec.inputs, ...this.harmonicNames];
+    this.terms = [...spec.powers.map((p) => powerName(symbol, p)), ...spec.inputs, ...this.harmonicNames, ...this.rates.map(rateTermName)];
     const parts = [`ode:${spec.state}:${shapeTag(spec.powers)}`];
     if (spec.inputs.length > 0) parts.push(`in(${spec.inputs.join(',')})`);
+    if (this.rates.length > 0) parts.push(`rate(${this.rates.join(',')})`);
     if (spec.harmonics > 0) parts.push(`h${spec.harmonics}`);
     if (spec.transform === 'log') parts.push('log');
     this.key = parts.join(':');
     const extra: string[] = [];
     if (spec.inputs.length > 0) extra.push(`input${spec.inputs.length > 1 ? 's' : ''} ${spec.inputs.join(', ')}`);
+    if (this.rates.length > 0) extra.push(`${this.rates.join(', ')} scaling the rate`);
     if (spec.harmonics > 0) extra.push(`${spec.harmonics} seasonal harmonic${spec.harmonics > 1 ? 's' : ''}`);
     if (spec.selection === 'sparse') extra.push('terms selected by thresholded least squares');
     if (spec.transform === 'log') extra.push('scored on log scale');
@@ -483,8 +520,9 @@ class OdeStructure implements Structure {
     return (origin + t + (this.spec.state === 'cumulative' ? 1 : 0)) * dt;
   }
 
+  /** The columns of the inputs the structure uses: forcing inputs first, then rate inputs. */
   private inputColumns(series: Series): Float64Array[] {
-    return this.spec.inputs.map((name) => {
+    return [...this.spec.inputs, ...this.rates].map((name) => {
       const input = series.inputs.find((u) => u.name === name);
       if (!input) {
         throw new UsageError('unknown-input', `the ODE uses input "${name}", which series "${series.name}" does not have`, {
@@ -502,15 +540,33 @@ class OdeStructure implements Structure {
    * real stability interval |hλ| < 2.78 (Hairer & Wanner, "Solving Ordinary Differential
    * Equations II", 2nd ed. 1996, §IV.2; section and the 2.78 from memory). Capped at 10 000 steps.
    */
-  private substeps(theta: Float64Array, x: number, dt: number): number {
+  private substeps(theta: Float64Array, x: number, dt: number, ua: ArrayLike<number>, ub: ArrayLike<number>): number {
     let slope = 0;
     const powers = this.spec.powers;
     for (let k = 0; k < powers.length; k++) {
       const p = powers[k];
       if (p >= 1) slope += p * theta[k] * x ** (p - 1);
     }
-    const need = Math.ceil(Math.abs(slope) * dt);
+    const need = Math.ceil(Math.abs(slope) * this.rateScale(theta, ua, ub) * dt);
     return Number.isFinite(need) ? Math.min(10_000, Math.max(this.spec.substeps, need)) : this.spec.substeps;
+  }
+
+  /** The largest |1 + Σ β_j w_j| over an interval whose rate inputs go from ua to ub (1 without rate inputs). */
+  private rateScale(theta: Float64Array, ua: ArrayLike<number>, ub: ArrayLike<number>): number {
+    if (this.rates.length === 0) return 1;
+    const { at, first } = this.rateLayout();
+    let a = 1;
+    let b = 1;
+    for (let k = 0; k < this.rates.length; k++) {
+      a += theta[at + k] * ua[first + k];
+      b += theta[at + k] * ub[first + k];
+    }
+    return Math.max(Math.abs(a), Math.abs(b));
+  }
+
+  /** Where the rate coefficients start in θ (`at`) and the rate inputs among the input columns (`first`). */
+  private rateLayout(): { at: number; first: number } {
+    return { at: this.spec.powers.length + this.spec.inputs.length + this.harmonicNames.length, first: this.spec.inputs.length };
   }
 
   /**
@@ -526,6 +582,9 @@ class OdeStructure implements Structure {
     const np = powers.length;
     const ni = this.spec.inputs.length;
     const nh = this.harmonicNames.length;
+    const nr = this.rates.length;
+    const rate = this.rateLayout();
+    let scale = new Float64Array(0);
     const poly = [0, 0, 0, 0];
     for (let k = 0; k < np; k++) poly[powers[k]] = theta[k];
     const [c0, c1, c2, c3] = poly;
@@ -574,7 +633,7 @@ class OdeStructure implements Structure {
           if (steps === cachedSteps) byPhase.set(phase, sums);
         }
       }
-      if (ni === 0) {
+      if (ni === 0 && nr === 0) {
         // The forcing is the harmonic part alone (read, not written, by the integration).
         if (sums !== undefined) return rk4Polynomial(c0, c1, c2, c3, sums, x0, dt, steps);
         if (none.length < nodes) none = new Float64Array(nodes);
@@ -587,11 +646,29 @@ class OdeStructure implements Structure {
         for (let k = 0; k < ni; k++) f += theta[np + k] * (ua[k] + s * (ub[k] - ua[k]));
         forcing[j] = f;
       }
+      if (nr > 0) {
+        // The law scaled by 1 + Σ β_j w_j, the rate inputs interpolated like the others.
+        if (scale.length < nodes) scale = new Float64Array(nodes);
+        for (let j = 0; j < nodes; j++) {
+          const s = (j * half) / dt;
+          let m = 1;
+          for (let k = 0; k < nr; k++) m += theta[rate.at + k] * (ua[rate.first + k] + s * (ub[rate.first + k] - ua[rate.first + k]));
+          scale[j] = m;
+        }
+        return rk4ScaledPolynomial(c0, c1, c2, c3, scale, forcing, x0, dt, steps);
+      }
       return rk4Polynomial(c0, c1, c2, c3, forcing, x0, dt, steps);
     };
   }
 
-  regression(series: Series, from: number, to: number): Regression {
+  /**
+   * The trapezoid rows of [from, to) (module comment). With rate inputs they are linearised at
+   * θ = `at` (0 when absent; `Structure.regression`): with m = 1 + Σ β_j w_j and P the state
+   * polynomial at `at`, the state columns are (dt/2)(m_a·x_a^p + m_b·x_b^p), the β_j columns
+   * (dt/2)(w_{j,a}·P(x_a) + w_{j,b}·P(x_b)), and the targets Δx + Σ_j β_j·(that column), so that
+   * targets − Φ·at are the trapezoid residuals at `at`.
+   */
+  regression(series: Series, from: number, to: number, at?: Float64Array): Regression {
     const x = this.state(series);
     const dt = this.dt(series);
     const cols = this.inputColumns(series);
@@ -605,8 +682,21 @@ class OdeStructure implements Structure {
     const origin = series.before?.count ?? 0;
     const powers = this.spec.powers;
     const np = powers.length;
-    const ni = cols.length;
+    const ni = this.spec.inputs.length;
     const nh = this.harmonicNames.length;
+    const nr = this.rates.length;
+    const rate = this.rateLayout();
+    const theta = at ?? new Float64Array(p);
+    const poly = (v: number) => {
+      let f = 0;
+      for (let k = 0; k < np; k++) f += theta[k] * statePower(v, powers[k]);
+      return f;
+    };
+    const scaleAt = (t: number) => {
+      let m = 1;
+      for (let k = 0; k < nr; k++) m += theta[rate.at + k] * cols[rate.first + k][t];
+      return m;
+    };
     const harm = harmonicFiller(this.spec.harmonics, this.spec.season, true);
     // Each state or input entry is (dt/2)·φ(start) + (dt/2)·φ(end); each harmonic entry is its
     // exact integral over the interval, H(end) − H(start) with H the antiderivative. The values
@@ -623,8 +713,10 @@ class OdeStructure implements Structure {
       y[r] = x[t] - x[t - 1];
       const xa = x[t - 1];
       const xb = x[t];
+      const ma = nr > 0 ? scaleAt(t - 1) : 1;
+      const mb = nr > 0 ? scaleAt(t) : 1;
       let j = r * p;
-      for (let k = 0; k < np; k++, j++) d[j] = w * statePower(xa, powers[k]) + w * statePower(xb, powers[k]);
+      for (let k = 0; k < np; k++, j++) d[j] = w * ma * statePower(xa, powers[k]) + w * mb * statePower(xb, powers[k]);
       for (let k = 0; k < ni; k++, j++) d[j] = w * cols[k][t - 1] + w * cols[k][t];
       if (nh > 0) {
         harm(this.tau(t, dt, origin), hb, 0);
@@ -632,6 +724,15 @@ class OdeStructure implements Structure {
         const next = ha;
         ha = hb;
         hb = next;
+      }
+      if (nr > 0) {
+        const pa = poly(xa);
+        const pb = poly(xb);
+        for (let k = 0; k < nr; k++, j++) {
+          const u = cols[rate.first + k];
+          d[j] = w * u[t - 1] * pa + w * u[t] * pb;
+          y[r] += theta[rate.at + k] * d[j];
+        }
       }
     }
     return { index, y, phi };
@@ -652,7 +753,56 @@ class OdeStructure implements Structure {
         hint: 'use a longer series or a structure with fewer terms',
       });
     }
-    return fitOde(this.spec.selection, reg, this.terms);
+    if (this.rates.length === 0) return fitOde(this.spec.selection, reg, this.terms);
+    return this.fitRates(series, from, to, reg);
+  }
+
+  /**
+   * Gauss–Newton on the trapezoid residuals with rate inputs (module comment): from the fit with
+   * β = 0, each step the least-squares fit of the rows linearised at the current θ, halved
+   * while the residual sum of squares does not fall; the estimate is the least-squares fit at
+   * the last θ, so its covariance is σ̂²(JᵀJ)⁻¹ of the linearised rows.
+   */
+  private fitRates(series: Series, from: number, to: number, start: Regression): Estimate {
+    const p = this.terms.length;
+    const rate = this.rateLayout().at;
+    const base = zeros(start.phi.rows, rate);
+    for (let r = 0; r < start.phi.rows; r++) for (let j = 0; j < rate; j++) base.data[r * rate + j] = start.phi.data[r * p + j];
+    let theta: Float64Array = new Float64Array(p);
+    theta.set(lstsq(base, start.y, this.terms.slice(0, rate), { onRankDeficient: 'throw' }).theta);
+    const residualSS = (reg: Regression, th: Float64Array) => {
+      let rss = 0;
+      for (let r = 0; r < reg.y.length; r++) {
+        let e = reg.y[r];
+        for (let j = 0; j < p; j++) e -= reg.phi.data[r * p + j] * th[j];
+        rss += e * e;
+      }
+      return rss;
+    };
+    // The rows at θ give both the next step and the residual sum of squares at θ.
+    let reg = this.regression(series, from, to, theta);
+    let rss = residualSS(reg, theta);
+    for (let it = 0; it < MAX_GAUSS_NEWTON; it++) {
+      const next = lstsq(reg.phi, reg.y, this.terms, { onRankDeficient: 'throw' }).theta;
+      let step = 1;
+      let trial = next;
+      let trialReg = this.regression(series, from, to, trial);
+      let trialRss = residualSS(trialReg, trial);
+      for (let h = 0; h < 20 && !(trialRss <= rss); h++) {
+        step /= 2;
+        trial = theta.map((v, j) => v + step * (next[j] - v));
+        trialReg = this.regression(series, from, to, trial);
+        trialRss = residualSS(trialReg, trial);
+      }
+      if (!(trialRss <= rss)) break;
+      // 1e-7 of the RSS moves the log-likelihood by n·1e-7/2, below anything the criteria see.
+      const done = rss - trialRss <= 1e-7 * rss;
+      theta = trial;
+      reg = trialReg;
+      rss = trialRss;
+      if (done) break;
+    }
+    return fitOde('dense', reg, this.terms);
   }
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {
@@ -683,7 +833,7 @@ class OdeStructure implements Structure {
         ub[k] = cols[k][t];
       }
       const tauA = this.tau(t - 1, dt, origin);
-      const next = step(tauA, x[t - 1], ua, ub, this.substeps(theta, x[t - 1], dt));
+      const next = step(tauA, x[t - 1], ua, ub, this.substeps(theta, x[t - 1], dt, ua, ub));
       out[t - from] = this.spec.state === 'level' ? next : next - x[t - 1];
     }
     return out;
@@ -695,7 +845,7 @@ class OdeStructure implements Structure {
     if (n < 1) throw new ModelError('series-too-short', 'cannot simulate from an empty series', { found: '0 observations' });
     const dt = this.dt(series);
     const cols = this.inputColumns(series);
-    const idx = this.spec.inputs.map((name) => series.inputs.findIndex((u) => u.name === name));
+    const idx = [...this.spec.inputs, ...this.rates].map((name) => series.inputs.findIndex((u) => u.name === name));
     for (const i of idx) {
       if (!future[i] || future[i].length < h) {
         throw new UsageError('missing-future-inputs', `simulating ${h} steps needs ${h} future values of input "${series.inputs[i].name}"`, {
@@ -715,7 +865,7 @@ class OdeStructure implements Structure {
     for (let j = 0; j < h; j++) {
       for (let k = 0; k < cols.length; k++) ub[k] = future[idx[k]][j];
       const tauA = this.tau(n - 1 + j, dt, origin);
-      const next = step(tauA, state, ua, ub, this.substeps(theta, state, dt));
+      const next = step(tauA, state, ua, ub, this.substeps(theta, state, dt, ua, ub));
       let yhat = this.spec.state === 'level' ? next : next - state;
       if (shocks) yhat = this.spec.transform === 'log' ? Math.exp(Math.log(yhat) + shocks[j]) : yhat + shocks[j];
       out[j] = yhat;
@@ -810,13 +960,16 @@ const LEVEL_SHAPES: [number[], OdeSelection][] = [
 ];
 /** The cumulative-state shapes offered (non-negative series only): Bass-type diffusion. */
 const CUMULATIVE_SHAPES: [number[], OdeSelection][] = [[[0, 1, 2], 'dense']];
+/** The shape also offered with the inputs scaling the law: Bass diffusion (the generalized Bass model). */
+const RATE_SHAPES = ['cumulative:0,1,2'];
 
 /**
  * The ODE candidate grid for a series within the search bounds, in a fixed order: for each
  * scoring transform, the level shapes above, then Bass-type diffusion in the cumulative state
  * when every value is ≥ 0 (and some > 0); each without inputs, then with all allowed inputs
- * (not for exponential growth); each with every allowed number of harmonic pairs (not for
- * exponential growth). A candidate is left out when the series gives fewer than (terms + 2)
+ * as a forcing (not for exponential growth), then, for Bass diffusion, with all allowed inputs
+ * scaling the law (the generalized Bass model's mapping function); each with
+ * every allowed number of harmonic pairs (not for exponential growth). A candidate is left out when the series gives fewer than (terms + 2)
  * increments, when the log transform meets a non-positive value, or when the time stamps are
  * not equally spaced. dt and periods per year are fixed in each spec from the series.
  */
@@ -832,8 +985,12 @@ export function odeCandidates(series: Series, bounds: CandidateBounds): Structur
   for (let i = 0; i < n; i++) if (!Number.isFinite(series.values[i])) return [];
   const nonNegative = series.values.every((v) => v >= 0) && series.values.some((v) => v > 0);
   const positive = isStrictlyPositive(series.values);
-  const inputSets: string[][] = [[]];
-  if (bounds.inputs.length > 0 && bounds.maxInputLags > 0) inputSets.push([...bounds.inputs]);
+  // Input roles: none, every input as a forcing, every input scaling the law.
+  const inputSets: { inputs: string[]; rateInputs: string[] }[] = [{ inputs: [], rateInputs: [] }];
+  if (bounds.inputs.length > 0 && bounds.maxInputLags > 0) {
+    inputSets.push({ inputs: [...bounds.inputs], rateInputs: [] });
+    inputSets.push({ inputs: [], rateInputs: [...bounds.inputs] });
+  }
   const harmonics = bounds.season !== null && bounds.harmonics.length > 0 ? bounds.harmonics : [0];
   const ppy = periodsPerYear(series.frequency);
   const out: Structure[] = [];
@@ -844,11 +1001,12 @@ export function odeCandidates(series: Series, bounds: CandidateBounds): Structur
     const shapes: [OdeState, number[], OdeSelection][] = LEVEL_SHAPES.map(([p, sel]) => ['level', p, sel]);
     if (nonNegative) for (const [p, sel] of CUMULATIVE_SHAPES) shapes.push(['cumulative', p, sel]);
     for (const [state, powers, selection] of shapes) {
-      for (const inputs of inputSets) {
-        if (inputs.length > 0 && powers.length === 1) continue;
+      for (const { inputs, rateInputs } of inputSets) {
+        if ((inputs.length > 0 || rateInputs.length > 0) && powers.length === 1) continue;
+        if (rateInputs.length > 0 && !RATE_SHAPES.includes(`${state}:${powers.join()}`)) continue;
         for (const k of harmonics) {
           if (k > 0 && powers.length === 1) continue;
-          const spec = odeSpec({ state, powers, inputs, harmonics: k, season: k > 0 ? (bounds.season as number) * dt : null, transform, dt, periodsPerYear: ppy, selection });
+          const spec = odeSpec({ state, powers, inputs, rateInputs, harmonics: k, season: k > 0 ? (bounds.season as number) * dt : null, transform, dt, periodsPerYear: ppy, selection });
           const twin = JSON.stringify({ ...spec, transform: null });
           let shared = twins.get(twin);
           if (shared === undefined) {

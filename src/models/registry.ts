@@ -12,7 +12,13 @@
  * - `stable(structure, θ, at)` (optional): false when the fitted dynamics are explosive (`at`,
  *   when given, is the series and the end of the estimation sample, for a check that depends
  *   on where the state is); the search then lists the candidate as failed, with the family's
- *   `unstableReason`. A family without it is never rejected on this ground.
+ *   `unstableReason`. A family without it is never rejected on this ground;
+ * - `explore(series, bounds, scorer)` (optional): further candidates found by scoring, for a
+ *   family whose full grid would be too large to fit (the ARX family's per-input delays and lag
+ *   counts). The scorer fits and scores a structure on the search's common sample, each key
+ *   once; every structure scored this way enters the ranking. `maxHistory(series, bounds)` is
+ *   then required: the longest history any structure `explore` may try needs, so the common
+ *   sample is fixed before the first score and every candidate is scored on it.
  *
  * Families are listed once in `FAMILIES` below (one line each, a fixed order), so the registry
  * holds no hidden mutable state. The search never branches on family names.
@@ -26,6 +32,7 @@ import type { Structure, StructureSpec, Transform } from './structure.js';
 import { arxFamily } from './arx.js';
 import { odeFamily } from './ode.js';
 import { dampedFamily } from './damped.js';
+import { pathFamily } from './growth-path.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -54,9 +61,22 @@ export interface CandidateBounds {
   differencing: Differencing[];
 }
 
+/** What a guided family (`FamilyDefinition.explore`) scores its structures with. */
+export interface CandidateScorer {
+  /**
+   * The ranking criterion of `structure` on the search's common sample (lower is better), or
+   * Infinity when it cannot be fitted. A key already scored is not fitted again.
+   */
+  score(structure: Structure): number;
+}
+
 export interface FamilyDefinition {
   readonly name: string;
   candidates(series: Series, bounds: CandidateBounds): Structure[];
+  /** Further candidates found by scoring (see the module comment); needs `maxHistory`. */
+  explore?(series: Series, bounds: CandidateBounds, scorer: CandidateScorer): void;
+  /** The longest `history` of any structure `candidates` or `explore` may offer within the bounds. */
+  maxHistory?(series: Series, bounds: CandidateBounds): number;
   fromSpec(spec: StructureSpec): Structure;
   dynamicMask?(structure: Structure): boolean[];
   stable?(structure: Structure, theta: Float64Array, at?: StateAt): boolean;
@@ -69,6 +89,7 @@ export const FAMILIES: readonly FamilyDefinition[] = [
   arxFamily,
   odeFamily,
   dampedFamily,
+  pathFamily,
 ];
 
 /** Names of the registered families, in registry order. */

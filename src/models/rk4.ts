@@ -71,3 +71,43 @@ export function rk4Polynomial(c0: number, c1: number, c2: number, c3: number, fo
   }
   return x;
 }
+
+/**
+ * The RK4 steps of {@link rk4Polynomial} for a cubic scaled by a known factor,
+ * f(τ, x) = S(τ)·(c₀ + c₁x + c₂x² + c₃x³) + F(τ), with S and F given at the same 2·substeps + 1
+ * half-step nodes (`scale`, `forcing`). This is the right-hand side of a law whose rate an input
+ * multiplies, the generalized Bass model's x(t) (models/ode.ts).
+ *
+ * @example rk4ScaledPolynomial(0, 0.1, 0, 0, new Float64Array(21).fill(2), new Float64Array(21), 1, 1, 10) ≈ e^{0.2}
+ */
+export function rk4ScaledPolynomial(
+  c0: number,
+  c1: number,
+  c2: number,
+  c3: number,
+  scale: Float64Array,
+  forcing: Float64Array,
+  x0: number,
+  span: number,
+  substeps: number,
+): number {
+  if (!Number.isInteger(substeps) || substeps < 1) throw new RangeError(`substeps must be a positive integer, got ${substeps}`);
+  if (forcing.length < 2 * substeps + 1 || scale.length < 2 * substeps + 1) throw new RangeError(`scale and forcing need ${2 * substeps + 1} nodes`);
+  const h = span / substeps;
+  let x = x0;
+  for (let i = 0; i < substeps; i++) {
+    const sa = scale[2 * i];
+    const sm = scale[2 * i + 1];
+    const sb = scale[2 * i + 2];
+    const k1 = sa * (c0 + x * (c1 + x * (c2 + x * c3))) + forcing[2 * i];
+    const x2 = x + (h * k1) / 2;
+    const k2 = sm * (c0 + x2 * (c1 + x2 * (c2 + x2 * c3))) + forcing[2 * i + 1];
+    const x3 = x + (h * k2) / 2;
+    const k3 = sm * (c0 + x3 * (c1 + x3 * (c2 + x3 * c3))) + forcing[2 * i + 1];
+    const x4 = x + h * k3;
+    const k4 = sb * (c0 + x4 * (c1 + x4 * (c2 + x4 * c3))) + forcing[2 * i + 2];
+    x += (h * (k1 + 2 * k2 + 2 * k3 + k4)) / 6;
+    if (!Number.isFinite(x)) return x;
+  }
+  return x;
+}

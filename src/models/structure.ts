@@ -61,7 +61,12 @@ export interface Estimate {
   oneStep?: Float64Array;
 }
 
-/** A quantity a user reads off the fitted equation. */
+/**
+ * A quantity a user reads off the fitted equation. Quantities of one input are named
+ * `gain <input>` (steady-state change of y per unit), `delay <input>` (periods before it acts)
+ * and `rate effect <input>` (relative change of a law's rate per unit); input-effects.ts reads
+ * them by these names.
+ */
 export interface Derived {
   name: string;
   value: number | string | boolean;
@@ -89,8 +94,23 @@ export interface Structure {
    */
   readonly equationScale?: Transform;
 
-  /** Regression rows for time indices t in [from, to) (those the structure can form). */
-  regression(series: Series, from: number, to: number): Regression;
+  /**
+   * True when the equation is nonlinear in θ (a closed-form growth path, an input that scales
+   * a rate): its regression rows are then the Gauss–Newton rows at a given θ (`regression`'s
+   * `at`). Absent: the rows are linear in θ and do not depend on it.
+   */
+  readonly linearized?: boolean;
+
+  /**
+   * Regression rows for time indices t in [from, to) (those the structure can form). For a
+   * `linearized` structure, the Gauss–Newton rows at θ = `at` (required there): Φ = ∂r̂/∂θ and
+   * targets r − r̂(at) + Φ·at, where r is the structure's regression target and r̂(θ) its
+   * prediction. At the fitted θ least squares on these rows returns θ itself (the normal
+   * equations Φᵀ(r − r̂) = 0 hold there), and recursive least squares on them is the recursive
+   * Gauss–Newton step of a prediction-error method (Ljung & Söderström, "Theory and Practice of
+   * Recursive Identification", 1983, §3.3 — section number from memory).
+   */
+  regression(series: Series, from: number, to: number, at?: Float64Array): Regression;
 
   /** Estimates θ on rows t in [from, to) (QR least squares, or sparse selection for ODEs). */
   estimate(series: Series, from: number, to: number): Estimate;

@@ -6,7 +6,11 @@
  * 1. Resolve the bounds (every "auto" becomes the list of alternatives) and ask each family, in
  *    registry order, for its candidates (registry.ts). Grid order is fixed by the families.
  * 2. Common sample: rows t ∈ [from, n) with from = the largest `history` among all candidates
- *    (or a later `sampleStart`), so every candidate predicts the same observations.
+ *    and the `maxHistory` of every family that explores (or a later `sampleStart`), so every
+ *    candidate predicts the same observations. The grid's candidates are scored first; then
+ *    each exploring family tries further structures through a scorer that fits and scores them
+ *    on the same sample (the ARX family's guided search over each input's delay and lags with
+ *    two or more inputs, models/arx-inputs.ts); each key is fitted once.
  * 3. Each candidate is estimated on that sample (`estimate`), its one-step predictions of
  *    z_t = g(y_t) are formed (`oneStep`, or taken from the estimate when the structure returns
  *    them with it, `Estimate.oneStep`), and RSS = Σ (z_t − ẑ_t)² enters the Gaussian
@@ -37,6 +41,7 @@ import {
   isStable,
   unstableReason,
   type CandidateBounds,
+  type CandidateScorer,
   type Differencing,
   type FamilyDefinition,
 } from '../models/registry.js';
@@ -389,7 +394,8 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
   const bounds = resolveBounds(series, options);
   const candidates: Structure[] = [];
   for (const f of families) candidates.push(...f.candidates(series, bounds));
-  if (candidates.length === 0) {
+  const guided = families.filter((f) => f.explore !== undefined);
+  if (candidates.length === 0 && guided.length === 0) {
     throw new UsageError('no-candidates', 'the search bounds leave no candidate structure', { expected: 'at least one family and valid bounds' });
   }
 
@@ -402,6 +408,10 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
     minTerms = Math.min(minTerms, s.terms.length);
     maxTerms = Math.max(maxTerms, s.terms.length);
   }
+  // A guided family's structures are not known before scoring: the sample starts after the
+  // longest history any of them may need.
+  for (const f of guided) maxHistory = Math.max(maxHistory, f.maxHistory ? f.maxHistory(series, bounds) : 0);
+  if (!Number.isFinite(minTerms)) minTerms = 1;
   let from = maxHistory;
   if (options.sampleStart !== undefined) {
     if (!Number.isInteger(options.sampleStart) || options.sampleStart < maxHistory) {
@@ -445,23 +455,16 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
     return z;
   };
   const rows = to - from;
-  const results: CandidateResult[] = [];
-  for (const s of candidates) {
-    options.onProgress?.(results.length, candidates.length);
+  /** Fits and scores one candidate on the common sample [from, to). */
+  const scoreOne = (s: Structure): CandidateResult => {
     let est: Estimate;
     try {
       est = s.estimate(series, from, to);
     } catch (e) {
-      if (e instanceof CertaError) {
-        results.push(failed(s, e.message, from, to, 'estimation'));
-        continue;
-      }
+      if (e instanceof CertaError) return failed(s, e.message, from, to, 'estimation');
       throw e;
     }
-    if (!isStable(s, est.theta, registry, { series, to })) {
-      results.push(failed(s, unstableReason(s, registry), from, to, 'explosive'));
-      continue;
-    }
+    if (!isStable(s, est.theta, registry, { series, to })) return failed(s, unstableReason(s, registry), from, to, 'explosive');
     // The fit's own one-step predictions when the structure gives them (Estimate.oneStep).
     const pred = est.oneStep !== undefined && est.oneStep.length === rows ? est.oneStep : s.oneStep(est.theta, series, from, to);
     const z = zOf(s.transform);
@@ -470,25 +473,18 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       const e = z[t] - pred[t - from];
       rss += e * e;
     }
-    if (!Number.isFinite(rss)) {
-      results.push(failed(s, 'non-finite one-step predictions', from, to, 'non-finite'));
-      continue;
-    }
+    if (!Number.isFinite(rss)) return failed(s, 'non-finite one-step predictions', from, to, 'non-finite');
     let active = 0;
     for (const a of est.active) if (a) active++;
     const k = active + 1;
-    if (rows - k - 1 <= 0) {
-      results.push(failed(s, `too short: ${rows} rows for ${k} parameters (AICc needs n − k − 1 > 0)`, from, to, 'estimation'));
-      continue;
-    }
+    if (rows - k - 1 <= 0) return failed(s, `too short: ${rows} rows for ${k} parameters (AICc needs n − k − 1 > 0)`, from, to, 'estimation');
     // An exact fit (up to rounding: RSS ≤ 1e−20 of the total sum of squares) makes log L
     // unbounded; it means an input restates the target, not that the structure is right.
     if (rss <= 1e-20 * (tssByTransform.get(s.transform) ?? 0)) {
-      results.push(failed(s, 'exact fit (zero one-step errors): the target is a deterministic function of its regressors', from, to, 'exact-fit'));
-      continue;
+      return failed(s, 'exact fit (zero one-step errors): the target is a deterministic function of its regressors', from, to, 'exact-fit');
     }
     const c = criteria(rss, rows, k, { logJacobian: jacByTransform.get(s.transform) ?? 0 });
-    results.push({
+    return {
       key: s.key,
       label: s.label,
       family: s.family,
@@ -509,14 +505,39 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       from,
       to,
       estimate: est,
-    });
+    };
+  };
+  // Every candidate is scored once, in the order it is first met (grid order, then the order
+  // guided families try theirs); a key met again returns its first result.
+  const results: CandidateResult[] = [];
+  const byKey = new Map<string, CandidateResult>();
+  let total = candidates.length;
+  const scorer: CandidateScorer = {
+    score(s: Structure): number {
+      let r = byKey.get(s.key);
+      if (r === undefined) {
+        options.onProgress?.(results.length, Math.max(total, results.length + 1));
+        r = scoreOne(s);
+        byKey.set(s.key, r);
+        results.push(r);
+      }
+      return r.status === 'fitted' ? r.score : Infinity;
+    },
+  };
+  for (const s of candidates) scorer.score(s);
+  for (const f of guided) {
+    total = results.length;
+    f.explore?.(series, bounds, scorer);
+  }
+  if (results.length === 0) {
+    throw new UsageError('no-candidates', 'the search bounds leave no candidate structure', { expected: 'at least one family and valid bounds' });
   }
 
   const fitted = results.filter((r) => r.status === 'fitted');
   const failures = results.filter((r) => r.status === 'failed');
   if (fitted.length === 0) {
     const reasons = [...new Set(failures.map((r) => r.reason))].slice(0, 3).join('; ');
-    throw new ModelError('no-fit', `none of the ${candidates.length} candidate structures could be fitted to "${series.name}"`, {
+    throw new ModelError('no-fit', `none of the ${results.length} candidate structures could be fitted to "${series.name}"`, {
       found: reasons,
       expected: 'at least one candidate fitted',
       hint: 'check the inputs for constant or duplicated columns, or widen the search bounds',
@@ -555,7 +576,7 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
   // otherwise usually points at the data (a constant or duplicated input, a transform they do not allow).
   const troubled = failures.filter((r) => r.failure !== 'explosive');
   if (troubled.length > 0) {
-    warnings.push(`${troubled.length} of ${candidates.length} candidates could not be estimated: ${setAsideWords(setAsideCounts(troubled))}; first reason: ${troubled[0].reason}`);
+    warnings.push(`${troubled.length} of ${results.length} candidates could not be estimated: ${setAsideWords(setAsideCounts(troubled))}; first reason: ${troubled[0].reason}`);
   }
 
   return {

@@ -12,6 +12,7 @@ import { formatTime } from '../data/calendar.js';
 import type { Criterion } from '../select/criteria.js';
 import type { Structure } from '../models/structure.js';
 import { structureFromSpec } from '../models/registry.js';
+import { inputEffects } from '../models/input-effects.js';
 import { Learner } from '../forecast/online.js';
 import type { CombinationMember } from '../forecast/combine.js';
 import { createDriftState, type DriftOptions } from '../forecast/drift.js';
@@ -49,7 +50,7 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
   const skipped = n - window.values.length;
   let skippedSum = 0;
   for (let i = 0; i < skipped; i++) skippedSum += series.values[i];
-  const fields = learnerFields(model);
+  const fields = learnerFields(model, series);
   return {
     ...fields.model,
     series: {
@@ -93,10 +94,10 @@ export function storedCombination(members: readonly Pick<CombinationMember, 'key
 /**
  * The body fields that describe the structure and its learner: spec, terms, θ, se, P (the RLS
  * matrix of the active terms embedded in the full p×p matrix, zero elsewhere), λ, σ², transform,
- * and the learner's entries of `state`. `modelBody` and online updates share it.
+ * the effects of the inputs of `series` at the learnt θ, and the learner's entries of `state`. `modelBody` and online updates share it.
  */
-export function learnerFields(model: AssertedState): {
-  model: Pick<ModelBody, 'structure' | 'terms' | 'theta' | 'se' | 'P' | 'lambda' | 'sigma2' | 'transform'>;
+export function learnerFields(model: AssertedState, series: Series): {
+  model: Pick<ModelBody, 'structure' | 'terms' | 'theta' | 'se' | 'P' | 'lambda' | 'sigma2' | 'transform' | 'effects'>;
   state: Record<string, number | number[]>;
 } {
   const { structure, learner } = model;
@@ -125,6 +126,7 @@ export function learnerFields(model: AssertedState): {
       lambda: rls.lambda,
       sigma2: learner.sigma2,
       transform: structure.transform,
+      effects: inputEffects(structure, th, series),
     },
     state: {
       active: active.map((a) => (a ? 1 : 0)),

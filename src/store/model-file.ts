@@ -2,10 +2,12 @@
  * The model file (`model.json`): everything needed to forecast with a fitted model and to keep
  * updating it online, in a versioned, checksummed envelope.
  *
- *   { "format": "certa-model", "version": 2, "checksum": "sha256:<hex>", "body": { … } }
+ *   { "format": "certa-model", "version": 3, "checksum": "sha256:<hex>", "body": { … } }
  *
- * Version 2 added the optional `combination` (the members of the delivered point forecast);
- * version 1 files, which never have it, read as they are.
+ * Version 3 added the optional `effects` (each input's role, delay, lags and gain) and structure
+ * specs of the new kinds (ARX inputs each with its own delay and lag count, ODE inputs scaling
+ * the law, growth paths); version 2 added the optional `combination` (the members of the
+ * delivered point forecast). Version 1 and 2 files, which have neither, read as they are.
  *
  * `checksum` is the SHA-256 (FIPS 180-4) of `canonicalJson(body)` (sorted keys, shortest
  * round-trip numbers; see canonical-json.ts), so it does not depend on the indentation or member
@@ -33,7 +35,7 @@ import { writeFileAtomic } from './atomic.js';
 import { canonicalJson, prettyJson } from './canonical-json.js';
 
 export const MODEL_FORMAT = 'certa-model';
-export const MODEL_VERSION = 2;
+export const MODEL_VERSION = 3;
 
 const finite = z.number();
 const isoTime = z.iso.datetime({ offset: true });
@@ -53,7 +55,18 @@ export const updateEntrySchema = z.strictObject({
 
 const numberArray = z.array(finite);
 
-/** The body of a model file (versions 1 and 2). */
+/** One input's effect under the asserted structure (models/input-effects.ts), as a model file keeps it. */
+const effectSchema = z.strictObject({
+  input: z.string(),
+  role: z.enum(['lags', 'level', 'rate', 'forcing', 'unused']),
+  delay: z.int().nonnegative().nullable(),
+  lags: z.int().nonnegative().nullable(),
+  gain: finite.nullable(),
+  rateEffect: finite.nullable(),
+  unit: z.string().nullable(),
+});
+
+/** The body of a model file (versions 1, 2 and 3). */
 export const modelBodySchema = z
   .strictObject({
     /** What the structure registry needs to rebuild the structure (StructureSpec). */
@@ -106,6 +119,8 @@ export const modelBodySchema = z
     drift: driftStateSchema,
     /** Free-form extra information (any JSON). */
     meta: z.record(z.string(), z.unknown()),
+    /** Each series input's role, delay, lags and gain under the structure and θ (version 3; recomputed by every update). */
+    effects: z.array(effectSchema).optional(),
     /**
      * The members of the point forecast (combine.ts), when it combines candidates: each with its
      * structure spec, the coefficients its forecast uses, its group and its Akaike weight there.
@@ -158,7 +173,7 @@ export const modelBodySchema = z
     }
   });
 
-/** The body of a model file (version 2). */
+/** The body of a model file (version 3). */
 export type ModelBody = z.infer<typeof modelBodySchema>;
 export type UpdateEntry = z.infer<typeof updateEntrySchema>;
 

@@ -34,10 +34,10 @@ function forecastBody(n: number, shift: { levelShift: number; shiftAt: number } 
 }
 
 describe('update with a saved combination', () => {
-  it('writes format version 2 with the used members, each with spec, coefficients, group and weight', () => {
+  it('writes the current format version (3) with the used members, each with spec, coefficients, group and weight', () => {
     const { body, run } = forecastBody(120);
     expect(JSON.parse(serializeModel(body)).version).toBe(MODEL_VERSION);
-    expect(MODEL_VERSION).toBe(2);
+    expect(MODEL_VERSION).toBe(3);
     const used = run.forecast.combination!.members.filter((m) => !m.excluded && m.weight > 0);
     expect(body.combination!.members.map((m) => m.key)).toEqual(used.map((m) => m.key));
     expect(body.combination!.members.some((m) => m.key === run.asserted.structure.key)).toBe(true);
