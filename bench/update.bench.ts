@@ -9,7 +9,7 @@
  *    building the new body. The case "body read afresh" passes a shallow copy of the body, so
  *    nothing is carried over and structure and learner are rebuilt from the body's spec and
  *    arrays (as after reading a model file). Measured without the forecast (`skipForecast`),
- *    with the forecast (12 steps, analytic intervals), and with serialization of the new body
+ *    with the forecast (12 steps; calibrated bands, the default, and the asserted equation's analytic ones), and with serialization of the new body
  *    (`serializeModel`: validation, canonical JSON, SHA-256 checksum, pretty text) as the CLI
  *    writes it. Each update continues from the previous one's body (a chain of single-row
  *    updates), timed over 2 000 updates after 200 of warm-up, best of 5 rounds.
@@ -84,7 +84,8 @@ console.log('library update, one row, ARX (p = 6), window 240'.padEnd(56), 'upda
 for (const [label, options, serialize, afresh] of [
   ['update, no forecast', { skipForecast: true }, false],
   ['update, no forecast, body read afresh', { skipForecast: true }, false, true],
-  ['update + forecast (12 steps, analytic intervals)', {}, false],
+  ['update + forecast (12 steps, calibrated bands)', {}, false],
+  ['update + forecast (12 steps, analytic bands)', { intervals: { method: 'analytic' } }, false],
   ['update, no forecast + serializeModel', { skipForecast: true }, true],
   ['update + forecast + serializeModel', {}, true],
 ] as [string, Omit<UpdateOptions, 'now'>, boolean, boolean?][]) {
@@ -95,7 +96,8 @@ const members = startCombined.combination?.members.length ?? 0;
 console.log(`the same series saved by the default forecast (${startCombined.structure.family} asserted, combination of ${members} members)`);
 for (const [label, options] of [
   ['update, no forecast', { skipForecast: true }],
-  ['update + combined forecast (12 steps, analytic intervals)', {}],
+  ['update + combined forecast (12 steps, calibrated bands)', {}],
+  ['update + combined forecast (12 steps, analytic bands)', { intervals: { method: 'analytic' } }],
 ] as [string, Omit<UpdateOptions, 'now'>][]) {
   const m = perSecond(options, false, false, startCombined);
   console.log(`  ${label}`.padEnd(56), m.rate.toFixed(0).padStart(9), m.us.toFixed(1).padStart(12));
