@@ -26,6 +26,7 @@ import type { Structure, StructureSpec, Transform } from './structure.js';
 import { arxFamily } from './arx.js';
 import { odeFamily } from './ode.js';
 import { dampedFamily } from './damped.js';
+import { smoothedFamily } from './smoothed.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -69,6 +70,7 @@ export const FAMILIES: readonly FamilyDefinition[] = [
   arxFamily,
   odeFamily,
   dampedFamily,
+  smoothedFamily,
 ];
 
 /** Names of the registered families, in registry order. */
