@@ -49,6 +49,11 @@ export interface CandidateBounds {
   transforms: Transform[];
   /** Trend term alternatives to try ([false], [true] or [false, true]). */
   trend: boolean[];
+  /**
+   * Trend alternatives for level structures on the log scale, where a trend is an exponential
+   * line (absent: as `trend`).
+   */
+  logTrend?: boolean[];
   /** Seasonal-lag alternatives to try. */
   seasonalLag: boolean[];
   /** Differencing alternatives to try. */
