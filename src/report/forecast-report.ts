@@ -314,14 +314,16 @@ export function describePoint(c: Combination | null, assertedKey: string): strin
   const own = used.find((m) => m.key === assertedKey);
   const share = `the asserted equation's share ${((own?.share ?? 0) * 100).toFixed(0)} %`;
   if (c.groups > 1 && used.every((m) => m.group !== 'all')) {
-    return `point = equal-weight mean over ${c.groups} groups (family and scale), each the Akaike-weighted mean of its candidates (${used.length} in all), ${share}`;
+    const equal = used.every((m) => m.groupWeight === used[0].groupWeight);
+    const across = equal ? 'equal-weight mean' : 'mean, weighted by their tempered evidence,';
+    return `point = ${across} over ${c.groups} groups (family and scale), each the Akaike-weighted mean of its candidates (${used.length} in all), ${share}`;
   }
   return `point = Akaike-weighted mean of ${used.length} candidates' forecasts, ${share}`;
 }
 
 /** The members of a combination as summary.json lists them. */
 export function combinationJson(c: Combination | null): Record<string, unknown>[] | null {
-  return c ? c.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, share: m.share, excluded: m.excluded ?? null })) : null;
+  return c ? c.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, groupWeight: m.groupWeight, share: m.share, excluded: m.excluded ?? null })) : null;
 }
 
 function pad(cells: string[], widths: number[]): string {
