@@ -249,18 +249,36 @@ export class SmoothedStructure implements Structure {
     return out;
   }
 
+  /**
+   * The smoothed level ℓ_{n−1} = z_{n−1} − β·e_{n−1} at the end of `series` under θ. Simulations
+   * for bootstrap intervals repeat the same history and θ many times, so the last result is kept
+   * with a copy of what it was computed from and reused while both are unchanged.
+   */
+  private endLevel(theta: Float64Array, series: Series): number {
+    const values = series.values;
+    const origin = series.before?.count ?? 0;
+    const m = this.lastLevel;
+    if (m !== null && m.values === values && m.origin === origin && sameValues(m.theta, theta) && sameValues(m.copy, values)) return m.level;
+    const n = values.length;
+    const z = this.scale(series);
+    const e = this.errors(theta, series, z, n);
+    const level = z[n - 1] - this.beta * e[n - 2];
+    this.lastLevel = { values, copy: values.slice(), origin, theta: theta.slice(), level };
+    return level;
+  }
+
+  private lastLevel: { values: Float64Array; copy: Float64Array; origin: number; theta: Float64Array; level: number } | null = null;
+
   simulate(theta: Float64Array, series: Series, future: Float64Array[], h: number, shocks?: Float64Array): Float64Array {
     void future;
     const n = series.values.length;
     if (n < 2) {
       throw new ModelError('too-short', `${this.label} needs 2 past points to simulate; the series has ${n}`, { expected: 'at least 2 points' });
     }
-    const z = this.scale(series);
-    const e = this.errors(theta, series, z, n);
+    let level = this.endLevel(theta, series);
     const d = this.change(theta);
     const origin = series.before?.count ?? 0;
     const alpha = this.spec.alpha;
-    let level = z[n - 1] - this.beta * e[n - 2];
     const out = new Float64Array(h);
     for (let k = 0; k < h; k++) {
       const predicted = level + d(origin + n + k);
@@ -297,6 +315,13 @@ export class SmoothedStructure implements Structure {
     }
     return out;
   }
+}
+
+/** True when two arrays hold the same values. */
+function sameValues(a: ArrayLike<number>, b: ArrayLike<number>): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
 }
 
 /**

@@ -84,6 +84,18 @@ describe('SmoothedStructure without drift or harmonics', () => {
     expect(f[2]).toBeCloseTo(level + 0.4 - 2, 12);
   });
 
+  it('forecasts afresh when the history or θ changes between calls (the kept end level is checked)', () => {
+    const y = Float64Array.of(10, 12, 11, 13);
+    const h = series(y);
+    const drift = new SmoothedStructure({ family: 'smoothed', alpha: 0.4, drift: true, transform: 'none' });
+    const first = drift.simulate(Float64Array.of(1), h, [], 1)[0];
+    expect(drift.simulate(Float64Array.of(1), h, [], 1)[0]).toBe(first);
+    expect(drift.simulate(Float64Array.of(2), h, [], 1)[0]).not.toBe(first);
+    h.values[3] = 20;
+    expect(drift.simulate(Float64Array.of(1), h, [], 1)[0]).not.toBe(first);
+    expect(drift.simulate(Float64Array.of(1), series([10, 12, 11, 20]), [], 1)[0]).toBe(drift.simulate(Float64Array.of(1), h, [], 1)[0]);
+  });
+
   it('says what it is: smoothing weight, memory half-life and the equation with its moving-average term', () => {
     const d = st.derived(new Float64Array(0), s);
     expect(d.find((x) => x.name === 'smoothing weight')?.value).toBe(0.4);
