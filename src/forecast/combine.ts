@@ -47,12 +47,18 @@
  * evidence gives them, and a forecast under user-given future inputs would answer them only in
  * part.
  *
- * A member whose simulated path is not finite, explodes, or falls to zero or below on a series
- * that has always been positive (`leavesPositive`) is left out and the others in its group
+ * A member whose simulated path is not finite, explodes, falls to zero or below on a series
+ * that has always been positive (`leavesPositive`), or on such a series leaves its record range
+ * by more than a factor `recordFactor` (default 2: above twice the largest value observed or
+ * below half the smallest, `leavesRecord`) is left out and the others in its group
  * renormalised; a group left without members drops out of the mean and the other groups'
  * weights are renormalised. Explodes: |F_{n+k} − y_n| > k·R for some step k, with R the range
  * (max − min) of the history — a path that moves, per step, more than the series has moved in
- * all its history (`isExplosivePath`).
+ * all its history (`isExplosivePath`). The record check is the restraint on extrapolated
+ * growth: a compounding rate (a trend or drift on the log scale, an exponential ODE) carried over
+ * a long horizon doubles the record of a series that never did so in its history; such a path is
+ * not averaged in, while the members that stay within the factor are. When no member stays, the
+ * asserted structure's own path is delivered (`replacesOwn`).
  *
  * Cost: one simulation of h steps per member.
  */
@@ -76,9 +82,11 @@ export interface CombineOptions {
   temper?: number;
   /** A group whose best candidate is more than this far (Δ criterion) behind the overall best is left out (default: no limit). */
   maxDelta?: number;
+  /** On an always-positive series, a member whose path leaves [min/f, f·max] of the history is left out (default f = 2; Infinity: no check). */
+  recordFactor?: number;
 }
 
-export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'tempered', temper: 10, maxDelta: Infinity } as const;
+export const COMBINE_DEFAULTS = { mass: 0.99, maxMembers: 30, across: 'tempered', temper: 10, maxDelta: Infinity, recordFactor: 2 } as const;
 
 export interface CombinationMember {
   key: string;
@@ -183,11 +191,14 @@ export function combineForecasts(
   h: number,
   simulate: (structure: Structure, estimate: Estimate) => Float64Array,
   history?: ArrayLike<number>,
+  options: Pick<CombineOptions, 'recordFactor'> = {},
 ): Combination {
   const used: CombinationMember[] = [];
   const totals = new Map<string, number>();
   const groupWeights = new Map<string, number>();
   const summary = history ? summarise(history) : null;
+  const factor = options.recordFactor ?? COMBINE_DEFAULTS.recordFactor;
+  if (!(factor >= 1)) throw new RangeError(`combineForecasts: recordFactor must be ≥ 1, got ${factor}`);
   for (const m of members) {
     let forecast: Float64Array;
     let excluded: string | undefined;
@@ -197,6 +208,7 @@ export function combineForecasts(
       if (!forecast.every(Number.isFinite)) excluded = 'non-finite forecast';
       else if (summary && explodes(summary, forecast)) excluded = 'explosive simulated path';
       else if (summary && turnsNonPositive(summary, forecast)) excluded = 'path falls to zero or below on a series that has always been positive';
+      else if (summary && outsideRecord(summary, forecast, factor)) excluded = `path leaves ${factor === 2 ? 'half the smallest to twice the largest value' : `the record range widened by a factor ${factor}`} of a series that has always been positive`;
     } catch (e) {
       forecast = new Float64Array(h).fill(NaN);
       excluded = e instanceof Error ? e.message : String(e);
@@ -251,7 +263,7 @@ export function combinedPaths(own: ForecastPaths, combination: Combination, asse
 /** Convenience: the combination of a ranking's members simulated from `history`, inputs held at their last values. */
 export function combineRanking(ranking: readonly CandidateResult[], history: Series, h: number, options: CombineOptions = {}): Combination {
   const future = history.inputs.map((i) => new Float64Array(h).fill(i.values[i.values.length - 1]));
-  return combineForecasts(combinationMembers(ranking, options), h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
+  return combineForecasts(combinationMembers(ranking, options), h, (s, e) => s.simulate(e.theta, history, future, h), history.values, options);
 }
 
 /**
@@ -276,10 +288,22 @@ export function leavesPositive(history: ArrayLike<number>, forecast: ArrayLike<n
   return turnsNonPositive(summarise(history), forecast);
 }
 
+/**
+ * True when a forecast path leaves [min/f, f·max] of a history whose every value is positive
+ * (f = `factor`, default 2): it more than doubles the largest value ever observed, or falls below
+ * half the smallest. Histories with a zero or negative value are never refused by this check.
+ * @example leavesRecord([4, 5, 8], [9, 17]) === true; leavesRecord([4, 5, 8], [9, 15]) === false; leavesRecord([4, 5, 8], [1.9]) === true
+ */
+export function leavesRecord(history: ArrayLike<number>, forecast: ArrayLike<number>, factor = COMBINE_DEFAULTS.recordFactor): boolean {
+  return outsideRecord(summarise(history), forecast, factor);
+}
+
 /** What the path checks need of a history, computed once for all the members continuing it. */
 interface HistorySummary {
   length: number;
   last: number;
+  min: number;
+  max: number;
   /** max − min. */
   range: number;
   /** Every value > 0. */
@@ -297,7 +321,7 @@ function summarise(history: ArrayLike<number>): HistorySummary {
     if (v > max) max = v;
     if (!(v > 0)) positive = false;
   }
-  return { length: n, last: n > 0 ? history[n - 1] : NaN, range: max - min, positive };
+  return { length: n, last: n > 0 ? history[n - 1] : NaN, min, max, range: max - min, positive };
 }
 
 function explodes(h: HistorySummary, forecast: ArrayLike<number>): boolean {
@@ -309,5 +333,13 @@ function explodes(h: HistorySummary, forecast: ArrayLike<number>): boolean {
 function turnsNonPositive(h: HistorySummary, forecast: ArrayLike<number>): boolean {
   if (!h.positive) return false;
   for (let k = 0; k < forecast.length; k++) if (!(forecast[k] > 0)) return true;
+  return false;
+}
+
+function outsideRecord(h: HistorySummary, forecast: ArrayLike<number>, factor: number): boolean {
+  if (!h.positive || h.length === 0 || factor === Infinity) return false;
+  const low = h.min / factor;
+  const high = h.max * factor;
+  for (let k = 0; k < forecast.length; k++) if (!(forecast[k] >= low && forecast[k] <= high)) return true;
   return false;
 }

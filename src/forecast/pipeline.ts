@@ -228,7 +228,7 @@ function deliveredForecast(
       return { ...m, failure: e instanceof Error ? e.message : String(e) };
     }
   });
-  const combination = combineForecasts(members, h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
+  const combination = combineForecasts(members, h, (s, e) => s.simulate(e.theta, history, future, h), history.values, combine);
   const moved = combinedPaths(own, combination, structure.key);
   return moved ? { paths: moved, alone: own, combination } : { paths: own, alone: null, combination };
 }

@@ -4,7 +4,7 @@ import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { search } from '../../src/select/search.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { combinationMembers, combineForecasts, combineRanking, groupOf, isExplosivePath, leavesPositive, usesInputs } from '../../src/forecast/combine.js';
+import { combinationMembers, combineForecasts, combineRanking, groupOf, isExplosivePath, leavesPositive, leavesRecord, usesInputs } from '../../src/forecast/combine.js';
 import { akaikeWeights } from '../../src/select/criteria.js';
 
 function series(values: number[]): Series {
@@ -47,6 +47,34 @@ describe('leavesPositive', () => {
     expect(c.members[1].excluded).toMatch(/zero or below/);
     expect(c.members[1].share).toBe(0);
     for (const v of c.point) expect(v).toBeCloseTo(6, 12);
+  });
+});
+
+describe('leavesRecord', () => {
+  it('refuses a path beyond twice the largest or below half the smallest value of a positive history', () => {
+    expect(leavesRecord([4, 5, 8], [9, 16])).toBe(false);
+    expect(leavesRecord([4, 5, 8], [9, 16.01])).toBe(true);
+    expect(leavesRecord([4, 5, 8], [2])).toBe(false);
+    expect(leavesRecord([4, 5, 8], [1.99])).toBe(true);
+    expect(leavesRecord([4, 5, 8], [30], 4)).toBe(false);
+    expect(leavesRecord([4, 5, 8], [1e9], Infinity)).toBe(false);
+    // A history with a value ≤ 0 has no record range on the ratio scale.
+    expect(leavesRecord([4, 0, 8], [100])).toBe(false);
+  });
+
+  it('leaves such a member out of the combination unless the factor allows it', () => {
+    const found = search(noisy, { families: ['arx'], transform: 'none' });
+    const members = combinationMembers(found.ranking, { maxMembers: 3 });
+    const bad = members[1].key;
+    // Range 15, so the bad path (41 > 2·20) does not explode (|41 − 19| ≤ 2·15) but leaves the record.
+    const history = [5, 20, 18, 19];
+    const path = (s: { key: string }) => (s.key === bad ? Float64Array.of(33, 41) : Float64Array.of(15, 15));
+    const c = combineForecasts(members, 2, path, history);
+    expect(c.members[1].excluded).toMatch(/twice the largest/);
+    for (const v of c.point) expect(v).toBeCloseTo(15, 12);
+    const wide = combineForecasts(members, 2, path, history, { recordFactor: 3 });
+    expect(wide.members[1].excluded).toBeUndefined();
+    expect(() => combineForecasts(members, 2, path, history, { recordFactor: 0.5 })).toThrow(RangeError);
   });
 });
 
