@@ -294,7 +294,7 @@ export function leavesPositive(history: ArrayLike<number>, forecast: ArrayLike<n
  * half the smallest. Histories with a zero or negative value are never refused by this check.
  * @example leavesRecord([4, 5, 8], [9, 17]) === true; leavesRecord([4, 5, 8], [9, 15]) === false; leavesRecord([4, 5, 8], [1.9]) === true
  */
-export function leavesRecord(history: ArrayLike<number>, forecast: ArrayLike<number>, factor = COMBINE_DEFAULTS.recordFactor): boolean {
+export function leavesRecord(history: ArrayLike<number>, forecast: ArrayLike<number>, factor: number = COMBINE_DEFAULTS.recordFactor): boolean {
   return outsideRecord(summarise(history), forecast, factor);
 }
 

@@ -182,12 +182,15 @@ describe('the smoothed-level family', () => {
     expect(() => new SmoothedStructure({ family: 'smoothed', alpha: 0.5, harmonics: 7, season: 12, transform: 'none' })).toThrow(/harmonics/);
   });
 
-  it('offers each transform, harmonic count, drift alternative and smoothing weight', () => {
+  it('offers each transform, no or the full harmonics, each drift alternative and smoothing weight', () => {
     const s = series(Array.from({ length: 48 }, (_, t) => 20 + t + (t % 12)), 12);
     const bounds = resolveBounds(s);
     const list = smoothedCandidates(s, bounds);
-    expect(list.length).toBe(bounds.transforms.length * bounds.harmonics.length * bounds.trend.length * SMOOTHING_WEIGHTS.length);
+    expect(list.length).toBe(bounds.transforms.length * 2 * bounds.trend.length * SMOOTHING_WEIGHTS.length);
     expect(new Set(list.map((x) => x.key)).size).toBe(list.length);
+    expect(new Set(list.map((x) => (x.spec as { harmonics?: number }).harmonics ?? 0))).toEqual(new Set([0, 6]));
+    // Without a season: no harmonics at all.
+    expect(smoothedCandidates(series(s.values), resolveBounds(series(s.values))).every((x) => !('harmonics' in x.spec))).toBe(true);
   });
 
   it('wins the search on a random walk observed with noise, among the change structures', () => {
