@@ -14,9 +14,9 @@ const read = (file: string, f: M3Category, every: number): M3Item[] =>
 
 /** Series in the subset, measured sMAPE of this subset + 0.3, and the failures allowed (scored with Naive2). */
 const CEILING: Record<M3Category, { series: number; smape: number; failures: number }> = {
-  yearly: { series: 65, smape: 14.37 + 0.3, failures: 0 },
-  quarterly: { series: 76, smape: 9.17 + 0.3, failures: 0 },
-  monthly: { series: 72, smape: 12.58 + 0.3, failures: 0 },
+  yearly: { series: 65, smape: 14.36 + 0.3, failures: 0 },
+  quarterly: { series: 76, smape: 9.16 + 0.3, failures: 0 },
+  monthly: { series: 72, smape: 12.53 + 0.3, failures: 0 },
   other: { series: 29, smape: 4.24 + 0.3, failures: 0 },
 };
 
