@@ -3,7 +3,7 @@
  * and quarterly (756, horizon 8) series of the M3 competition and on the development halves of
  * its monthly (714, horizon 18) and "other" (87, horizon 8) files (datasets/m3), scored as in the
  * competition (src/evaluate/m3.ts). Prints a point-accuracy table per category and overall beside
- * the published reference scores, an interval table (coverage of each band over all steps, at
+ * the published reference scores (with the mean wall time per series), an interval table (coverage of each band over all steps, at
  * the first and the last step, and the MSIS of the 95 % band, beside the seasonal-naive Gaussian
  * reference interval), and writes one row per series to output/bench/m3.csv.
  * `--categories yearly,monthly` scores only those files.
@@ -103,8 +103,20 @@ function pad(s: string, w: number, right = false): string {
   return right ? s.padEnd(w) : s.padStart(w);
 }
 
-function table(summaries: M3Summary[]): string {
-  const head = ['category', 'series', 'sMAPE', 'MASE', 'beats Naive2', 'Naive2 sMAPE', 'Naive2 MASE', 'pub. Naive2', 'pub. Theta', 'pub. B-J auto', 'failures'];
+/** Mean forecaster wall time per series (ms) of each category and of all results. */
+function msPerSeries(results: readonly M3Result[]): Map<string, number> {
+  const out = new Map<string, number>();
+  const mean = (list: readonly M3Result[]) => list.reduce((a, r) => a + r.ms, 0) / Math.max(1, list.length);
+  for (const c of M3_CATEGORIES) {
+    const part = results.filter((r) => r.frequency === c);
+    if (part.length > 0) out.set(c, mean(part));
+  }
+  out.set('all', mean(results));
+  return out;
+}
+
+function table(summaries: M3Summary[], ms: Map<string, number>): string {
+  const head = ['category', 'series', 'sMAPE', 'MASE', 'beats Naive2', 'Naive2 sMAPE', 'Naive2 MASE', 'pub. Naive2', 'pub. Theta', 'pub. B-J auto', 'failures', 'ms/series'];
   const rows = summaries.map((s) => {
     const pub = s.group in M3_PUBLISHED ? M3_PUBLISHED[s.group as M3Category] : null;
     return [
@@ -119,6 +131,7 @@ function table(summaries: M3Summary[]): string {
       pub ? pub.theta.toFixed(2) : '',
       pub ? pub.boxJenkins.toFixed(2) : '',
       String(s.failures),
+      (ms.get(s.group) ?? NaN).toFixed(1),
     ];
   });
   return layout(head, rows);
@@ -217,10 +230,11 @@ async function main(): Promise<void> {
   const summaries = summariseM3ByFrequency(results);
   const variant = Object.keys(options).length > 0 ? `, options ${JSON.stringify(options)}` : ' default pipeline';
   process.stdout.write(`M3 accuracy, certa${variant}${every > 1 ? ` (every ${every}th series)` : ''}\n\n`);
-  process.stdout.write(`${table(summaries)}\n\n`);
+  process.stdout.write(`${table(summaries, msPerSeries(results))}\n\n`);
   process.stdout.write('sMAPE in percent (mean over horizons, then series); MASE scale: in-sample naive (yearly, other), seasonal naive m = 4 (quarterly), m = 12 (monthly).\n');
   process.stdout.write('"beats Naive2": share of series with a strictly lower sMAPE than Naive2. Published: Makridakis & Hibon (2000), via Oreshkin et al. (2020) Table 14;\n');
-  process.stdout.write('monthly and other are development halves (every 2nd series), so their published whole-category values are a yardstick only.\n\n');
+  process.stdout.write('monthly and other are development halves (every 2nd series), so their published whole-category values are a yardstick only.\n');
+  process.stdout.write('ms/series: wall time of the whole forecast (search, combination, intervals) per series in a worker; compare ratios within one run.\n\n');
   process.stdout.write(`Prediction intervals\n\n${intervalTable(summaries)}\n\n`);
   process.stdout.write('Coverage in percent: over all test steps, at step 1 (@1) and at the last step (@h). MSIS: interval score of the 95 % band scaled by the MASE scale\n');
   process.stdout.write('(Makridakis, Spiliotis & Assimakopoulos 2020, IJF 36(1)); lower is better. ref: the seasonal naive forecast with Gaussian bands (seasonal random walk variance).\n');

@@ -15,11 +15,11 @@ export function addSearchOptions(command: Command): Command {
     .option('--max-ar <n>', `largest number of AR lags (default: min(${d.maxAr}, n/10), at least 1, for a series of n points; 0 also drops damping from the change family)`)
     .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
     .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
-    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap})`)
+    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: 0, 1 and the full set s/2 for seasons up to ${d.autoFullSeasonCap} periods, 0 to 2 for longer ones)`)
     .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
     .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
     .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')
-    .option('--trend <how>', 'linear trend term (in the change family: drift): on, off or auto (default auto: with and without)')
+    .option('--trend <how>', 'linear trend term (in the change families: drift): on, off or auto (default auto: with and without; on the log scale a level structure has no trend unless on)')
     .option('--seasonal-lag <how>', 'seasonal lag y[t-s]: on, off or auto (default off)')
     .option('--differencing <how>', 'none, first, seasonal or auto (default none)');
 }

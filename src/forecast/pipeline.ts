@@ -7,9 +7,9 @@
  * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
  * 80 and 95 %; forgetting λ = 1; future inputs repeat their last season (seasonal series) or
  * are held at their last values, unless given; the point forecast combines the leading
- * candidates, by Akaike weights within each group (a family on one scale) and with equal weights
- * across the groups the evidence has not ruled out (combine.ts; `combine: false` keeps the
- * asserted structure's own path).
+ * candidates, by Akaike weights within each group (a family on one scale) and by tempered
+ * weights of the groups' best criterion values across groups (combine.ts; `combine: false` keeps
+ * the asserted structure's own path).
  *
  * Combination. The asserted structure stays the single winner (its equation, refit, online
  * learner and holdout evaluation are unchanged); only the final point forecast is the combined
@@ -248,7 +248,7 @@ function deliveredForecast(
         return { ...m, failure: e instanceof Error ? e.message : String(e) };
       }
     });
-    combination = combineForecasts(candidates, h, (s, e) => s.simulate(e.theta, history, future, h), history.values);
+    combination = combineForecasts(candidates, h, (s, e) => s.simulate(e.theta, history, future, h), history.values, combine);
     if (replacesOwn(combination, structure.key)) {
       point = Float64Array.from(combination.point);
       const shares = new Map(combination.members.map((m) => [m.key, m.share]));

@@ -729,13 +729,15 @@ function storedMembers(stored: NonNullable<ModelBody['combination']>, model: Ass
     const theta = asserted ? model.learner.theta : Float64Array.from(m.theta);
     const estimate = { theta, se: new Float64Array(0), cov: new Float64Array(0), active: structure.terms.map(() => true), sigma2: 0, rank: theta.length, condition: 1, warnings: [] };
     const failure = theta.length !== structure.terms.length ? `member ${m.key}: ${theta.length} saved coefficients for ${structure.terms.length} terms` : undefined;
-    return { key: m.key, structure, estimate, group: m.group, weight: m.weight, ...(failure ? { failure } : {}) };
+    return { key: m.key, structure, estimate, group: m.group, weight: m.weight, groupWeight: m.groupWeight ?? 1, ...(failure ? { failure } : {}) };
   });
 }
 
 /** The members a re-search hands to the model file: its combination members with their window estimates. */
 function searchedCombination(ranking: SearchResult['ranking']): ModelBody['combination'] {
-  return storedCombination(combinationMembers(ranking).map((m) => ({ key: m.key, spec: m.structure.spec, theta: m.estimate.theta, group: m.group, weight: m.weight })));
+  return storedCombination(
+    combinationMembers(ranking).map((m) => ({ key: m.key, spec: m.structure.spec, theta: m.estimate.theta, group: m.group, weight: m.weight, groupWeight: m.groupWeight ?? 1 })),
+  );
 }
 
 /** One-step residuals z_t − ẑ_t of θ over the window (scoring scale), t ≥ history. */

@@ -553,7 +553,7 @@ function inputConfigs(bounds: CandidateBounds): ArxInputSpec[][] {
 
 /**
  * The structures of the ARX grid without inputs ("bases"), in this fixed nesting order
- * (outermost first): transform, differencing, trend, seasonal lag, harmonics, AR lags
+ * (outermost first): transform, differencing, trend (on the log scale the bounds' `logTrend`), seasonal lag, harmonics, AR lags
  * p = 0…maxAr. Combinations that make no sense are left out: seasonal parts without a season,
  * and harmonics with seasonal differencing (which removes any fixed seasonal pattern).
  */
@@ -563,7 +563,7 @@ export function arxBases(bounds: CandidateBounds): ArxSpec[] {
   for (const transform of bounds.transforms) {
     for (const differencing of bounds.differencing) {
       if (differencing === 'seasonal' && s === null) continue;
-      for (const trend of bounds.trend) {
+      for (const trend of transform === 'log' ? (bounds.logTrend ?? bounds.trend) : bounds.trend) {
         for (const seasonalLag of bounds.seasonalLag) {
           if (seasonalLag && s === null) continue;
           const Ks = s === null ? [0] : bounds.harmonics.length > 0 ? bounds.harmonics : [0];

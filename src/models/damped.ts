@@ -122,13 +122,18 @@ export class DampedStructure implements Structure {
   }
 
   private scale(series: Series, values: Float64Array): Float64Array {
+    this.checkScale(series, values);
+    return forward(this.transform, values);
+  }
+
+  /** Refuses a series the log transform cannot take (ModelError). */
+  private checkScale(series: Series, values: Float64Array): void {
     if (this.transform === 'log' && !isStrictlyPositive(values)) {
       throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
         expected: 'all values > 0',
         hint: 'use --transform none',
       });
     }
-    return forward(this.transform, values);
   }
 
   regression(series: Series, from: number, to: number): Regression {
@@ -219,13 +224,17 @@ export class DampedStructure implements Structure {
         expected: `at least ${this.history} points`,
       });
     }
-    const z = this.scale(series, series.values);
+    // Only the last p + 1 values enter the forecast: transform just those (bootstrap intervals
+    // simulate the same history many times).
+    this.checkScale(series, series.values);
+    const tail = forward(this.transform, series.values.subarray(n - this.history));
+    const z = (t: number) => tail[t - (n - this.history)];
     const det = this.deterministicChange(theta);
     const origin = series.before?.count ?? 0;
     const p = this.lags;
     // recent[i] = the change i + 1 periods back, newest first.
-    const recent = Float64Array.from({ length: p }, (_, i) => z[n - 1 - i] - z[n - 2 - i]);
-    let level = z[n - 1];
+    const recent = Float64Array.from({ length: p }, (_, i) => z(n - 1 - i) - z(n - 2 - i));
+    let level = z(n - 1);
     const out = new Float64Array(h);
     for (let k = 0; k < h; k++) {
       let change = det(origin + n + k) + (shocks ? shocks[k] : 0);

@@ -33,6 +33,7 @@ import { arxFamily } from './arx.js';
 import { odeFamily } from './ode.js';
 import { dampedFamily } from './damped.js';
 import { pathFamily } from './growth-path.js';
+import { smoothedFamily } from './smoothed.js';
 
 /** Differencing applied to the scoring-scale target before regression. */
 export type Differencing = 'none' | 'first' | 'seasonal';
@@ -55,6 +56,11 @@ export interface CandidateBounds {
   transforms: Transform[];
   /** Trend term alternatives to try ([false], [true] or [false, true]). */
   trend: boolean[];
+  /**
+   * Trend alternatives for level structures on the log scale, where a trend is an exponential
+   * line (absent: as `trend`).
+   */
+  logTrend?: boolean[];
   /** Seasonal-lag alternatives to try. */
   seasonalLag: boolean[];
   /** Differencing alternatives to try. */
@@ -89,6 +95,7 @@ export const FAMILIES: readonly FamilyDefinition[] = [
   arxFamily,
   odeFamily,
   dampedFamily,
+  smoothedFamily,
   pathFamily,
 ];
 

@@ -347,7 +347,7 @@ export function forecastTableLines(f: Frequency, times: Float64Array, paths: For
 
 /** The members of a combination as summary.json lists them. */
 export function combinationJson(c: Combination | null): Record<string, unknown>[] | null {
-  return c ? c.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, share: m.share, excluded: m.excluded ?? null })) : null;
+  return c ? c.members.map((m) => ({ key: m.key, group: m.group, weight: m.weight, groupWeight: m.groupWeight, share: m.share, excluded: m.excluded ?? null })) : null;
 }
 
 function pad(cells: string[], widths: number[]): string {

@@ -24,7 +24,7 @@ export interface PointStory {
   kind: 'combined' | 'asserted';
   /** The asserted equation's share of the point (1 when it is the point alone). */
   assertedShare: number;
-  /** Groups (family and scale) averaged with equal weights, when combined. */
+  /** Groups (family and scale) averaged, when combined (equal weights, or tempered by their evidence). */
   groups: number;
   /** The members used, largest share first (ties by key); the asserted equation alone when not combined. */
   members: PointMember[];
@@ -58,7 +58,10 @@ export function pointStory(c: Combination | null, asserted: { key: string; label
     .map((m) => ({ key: m.key, label: m.label, group: m.group, share: m.share, asserted: m.key === asserted.key }))
     .sort((a, b) => b.share - a.share || (a.key < b.key ? -1 : a.key > b.key ? 1 : 0));
   const own = members.find((m) => m.asserted)?.share ?? 0;
-  const across = c.groups > 1 && members.every((m) => m.group !== 'all') ? `, ${c.groups} groups (family and scale) weighted equally, Akaike weights within each` : ', by Akaike weights';
+  const used = c.members.filter((m) => !m.excluded && m.share > 0);
+  const equal = used.every((m) => m.groupWeight === used[0].groupWeight);
+  const between = equal ? 'weighted equally' : 'weighted by their tempered evidence';
+  const across = c.groups > 1 && members.every((m) => m.group !== 'all') ? `, ${c.groups} groups (family and scale) ${between}, Akaike weights within each` : ', by Akaike weights';
   return {
     kind: 'combined',
     assertedShare: own,

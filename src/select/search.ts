@@ -24,10 +24,12 @@
  *    residuals get a Ljung–Box whiteness check (whiteness.ts).
  *
  * Defaults (small enough for interactive use: 336 ARX candidates on a positive monthly series
- * with one input; see bench/search.bench.ts): maxAr 3 (max(1, ⌊n/10⌋) below 30 points, `defaultMaxAr`), maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0…min(2, ⌊s/2⌋) when
- * the series has a season), transform 'auto' (ln tried only for strictly positive series),
- * trend 'auto' (with and without), seasonalLag 'off', differencing 'none', criterion 'aicc',
- * all registered families and all inputs of the series.
+ * with one input; see bench/search.bench.ts): maxAr 3 (max(1, ⌊n/10⌋) below 30 points, `defaultMaxAr`), maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0, 1 and ⌊s/2⌋ for
+ * seasons up to 12 periods, 0…2 for longer ones, `autoHarmonics`, when the series has a season),
+ * transform 'auto' (ln tried only for strictly positive series), trend 'auto' (with and without;
+ * on the log scale, where a level structure's trend is an exponential line that its forecast
+ * returns to and compounds over the horizon, without: `logTrend`), seasonalLag 'off',
+ * differencing 'none', criterion 'aicc', all registered families and all inputs of the series.
  */
 import type { Series } from '../data/series.js';
 import { CertaError, DataError, ModelError, UsageError } from '../data/errors.js';
@@ -62,7 +64,7 @@ export interface SearchOptions {
   maxInputLags?: number;
   /** Largest input delay (default 2). */
   maxDelay?: number;
-  /** Largest number of harmonic pairs, or 'auto' = min(2, ⌊s/2⌋) (default 'auto'). */
+  /** Largest number of harmonic pairs, or 'auto' = 0, 1 and ⌊s/2⌋ pairs (`autoHarmonics`; default 'auto'). */
   harmonics?: number | 'auto';
   /** Season length for seasonal terms (default `series.season`; null switches them off). */
   season?: number | null;
@@ -75,6 +77,11 @@ export interface SearchOptions {
   transform?: 'auto' | 'none' | 'log';
   /** Linear trend term (default 'auto': with and without). */
   trend?: Switch;
+  /**
+   * Linear trend term of level structures on the log scale, an exponential line (default: 'off'
+   * when `trend` is 'auto', else as `trend`).
+   */
+  logTrend?: Switch;
   /** Seasonal lag y[t−s] (default 'off'). */
   seasonalLag?: Switch;
   /** Differencing (default 'none'; 'auto' tries none, first and, with a season, seasonal). */
@@ -98,7 +105,7 @@ export const SEARCH_DEFAULTS = {
   maxInputLags: 2,
   maxDelay: 2,
   harmonics: 'auto' as const,
-  autoHarmonicsCap: 2,
+  autoFullSeasonCap: 12,
   transform: 'auto' as const,
   trend: 'auto' as const,
   seasonalLag: 'off' as const,
@@ -289,6 +296,19 @@ export function defaultMaxAr(n: number): number {
   return Math.min(SEARCH_DEFAULTS.maxAr, Math.max(1, Math.floor(n / 10)));
 }
 
+/**
+ * The harmonic counts 'auto' tries for season s: none, one pair (the fundamental wave) and the
+ * full set ⌊s/2⌋, which spans every periodic pattern (terms.ts), when that takes at most
+ * `autoFullSeasonCap` (12) periods, i.e. at most 11 seasonal columns; for longer seasons none,
+ * one and two pairs. So quarterly data try K = 0, 1, 2 and monthly data K = 0, 1, 6.
+ * @example autoHarmonics(12) → [0, 1, 6]; autoHarmonics(4) → [0, 1, 2]; autoHarmonics(52) → [0, 1, 2]
+ */
+export function autoHarmonics(s: number): number[] {
+  const full = maxHarmonics(s);
+  const list = s <= SEARCH_DEFAULTS.autoFullSeasonCap ? [0, 1, full] : [0, 1, 2];
+  return [...new Set(list.map((k) => Math.min(k, full)))];
+}
+
 /** Resolves options to explicit bounds. */
 export function resolveBounds(series: Series, options: SearchOptions = {}): CandidateBounds {
   const maxAr = checkInt('maxAr', options.maxAr ?? defaultMaxAr(series.values.length), 0, 24);
@@ -303,8 +323,7 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
   let harmonics: number[] = [];
   if (season !== null) {
     const h = options.harmonics ?? SEARCH_DEFAULTS.harmonics;
-    const top = h === 'auto' ? Math.min(SEARCH_DEFAULTS.autoHarmonicsCap, maxHarmonics(season)) : checkInt('harmonics', h, 0, maxHarmonics(season));
-    harmonics = Array.from({ length: top + 1 }, (_, k) => k);
+    harmonics = h === 'auto' ? autoHarmonics(season) : Array.from({ length: checkInt('harmonics', h, 0, maxHarmonics(season)) + 1 }, (_, k) => k);
   } else if (typeof options.harmonics === 'number' && options.harmonics > 0) {
     throw new UsageError('no-season', `harmonics need a season; series "${series.name}" has none`, {
       found: `harmonics ${options.harmonics}`,
@@ -341,6 +360,7 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
     throw new UsageError('no-season', `seasonal differencing needs a season; series "${series.name}" has none`, { expected: 'a season length' });
   }
   const seasonalLag = !whole ? [false] : switchValues(options.seasonalLag ?? SEARCH_DEFAULTS.seasonalLag);
+  const trend = options.trend ?? SEARCH_DEFAULTS.trend;
   return {
     maxAr,
     maxInputLags,
@@ -349,7 +369,8 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
     harmonics,
     season,
     transforms,
-    trend: switchValues(options.trend ?? SEARCH_DEFAULTS.trend),
+    trend: switchValues(trend),
+    logTrend: switchValues(options.logTrend ?? (trend === 'auto' ? 'off' : trend)),
     seasonalLag,
     differencing,
   };

@@ -81,13 +81,16 @@ export function modelBody(model: AssertedState, series: Series, options: BodyOpt
 
 /**
  * What a model file keeps of a combination: its members that were used (not left out), with
- * spec, coefficients, group and within-group weight. Undefined when no member was used.
+ * spec, coefficients, group, within-group weight and the group's weight across groups.
+ * Undefined when no member was used.
  */
-export function storedCombination(members: readonly Pick<CombinationMember, 'key' | 'spec' | 'theta' | 'group' | 'weight' | 'excluded'>[]): ModelBody['combination'] {
+export function storedCombination(
+  members: readonly Pick<CombinationMember, 'key' | 'spec' | 'theta' | 'group' | 'weight' | 'groupWeight' | 'excluded'>[],
+): ModelBody['combination'] {
   const used = members.filter((m) => !m.excluded && m.weight > 0);
   if (used.length === 0) return undefined;
   return {
-    members: used.map((m) => ({ key: m.key, structure: m.spec, theta: Array.from(m.theta), group: m.group, weight: m.weight })),
+    members: used.map((m) => ({ key: m.key, structure: m.spec, theta: Array.from(m.theta), group: m.group, weight: m.weight, groupWeight: m.groupWeight })),
   };
 }
 

@@ -123,9 +123,10 @@ export const modelBodySchema = z
     effects: z.array(effectSchema).optional(),
     /**
      * The members of the point forecast (combine.ts), when it combines candidates: each with its
-     * structure spec, the coefficients its forecast uses, its group and its Akaike weight there.
-     * The asserted structure's member (same key) forecasts with the learnt θ instead. Absent:
-     * the point is the asserted equation's own.
+     * structure spec, the coefficients its forecast uses, its group, its Akaike weight there and
+     * its group's weight across groups (absent: 1, the equal weights of files written before
+     * groups were weighted by their evidence). The asserted structure's member (same key)
+     * forecasts with the learnt θ instead. Absent: the point is the asserted equation's own.
      */
     combination: z
       .strictObject({
@@ -137,6 +138,7 @@ export const modelBodySchema = z
               theta: numberArray,
               group: z.string().min(1),
               weight: finite.nonnegative(),
+              groupWeight: finite.positive().optional(),
             }),
           )
           .min(1),

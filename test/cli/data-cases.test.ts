@@ -175,7 +175,11 @@ describe('the yearly cycle of daily data', () => {
     expect(doc.winner.spec.season).toBe(365.25);
     expect(doc.winner.terms).toContain('cos(2π·1·t/365.25)');
     const text = runCli(['search', SEATTLE, '--series', 'temp_max', '--out', join(dir, 'seattle')]).stdout;
-    expect(text).toMatch(/^season: the data support the yearly cycle \(365\.25 days, by harmonics\): its best candidate is [\d.]+ AICc below the best with no seasonal terms, and [\d.]+ AICc below the best with the weekly season \(7 days\)$/m);
+    // The alternatives are listed closest first; which of the two is closer depends on the families searched.
+    const line = text.split('\n').find((l) => l.startsWith('season: ')) ?? '';
+    expect(line).toMatch(/^season: the data support the yearly cycle \(365\.25 days, by harmonics\): its best candidate is [\d.]+ AICc below the best with (no seasonal terms|the weekly season \(7 days\)), and [\d.]+ AICc below the best with (no seasonal terms|the weekly season \(7 days\))$/);
+    expect(line).toContain('no seasonal terms');
+    expect(line).toContain('the weekly season (7 days)');
     expect(runCli(['inspect', SEATTLE]).stdout).toContain('yearly cycle: the search also tries the yearly cycle (365.25 days) by harmonics');
   });
 

@@ -1,6 +1,10 @@
 /**
  * Mauna Loa CO2, monthly (vega-datasets `co2-concentration.csv`, NOAA Global Monitoring
  * Laboratory record as shipped by the package): the last 24 months held out, default options.
+ * Measured fixed-origin MASE 1.04 (MAE 1.6 ppm); the naive, drift and seasonal naive forecasts
+ * score 1.54, 1.32 and 2.43. The ceiling was 0.9 while level structures on the log scale had an
+ * exponential trend by default (0.86 then): this accelerating series is one an exponential line
+ * suits, which the M3 benchmark's 2,202 series on average are not (README, accuracy section).
  */
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -10,7 +14,7 @@ import { forecastSeries } from '../../src/forecast/pipeline.js';
 const file = join(process.cwd(), 'node_modules/vega-datasets/data/co2-concentration.csv');
 
 describe('forecastSeries on Mauna Loa CO2', () => {
-  it('fixed-origin MASE below 0.9 and sMAPE below the seasonal naive forecast', async () => {
+  it('fixed-origin MASE below 1.15 and below every baseline, sMAPE below the seasonal naive forecast', async () => {
     const { series } = await loadSeries(file, { series: 'CO2' });
     expect(series).toHaveLength(1);
     const run = forecastSeries(series[0], { holdout: 24 });
@@ -18,7 +22,10 @@ describe('forecastSeries on Mauna Loa CO2', () => {
     const model = rows.find((r) => r.method === 'model')!;
     const snaive = rows.find((r) => r.method === 'seasonal-naive')!;
     expect(model.metrics.n).toBe(24);
-    expect(model.metrics.mase).toBeLessThan(0.9);
+    expect(model.metrics.mase).toBeLessThan(1.15);
     expect(model.metrics.smape).toBeLessThan(snaive.metrics.smape);
+    for (const baseline of ['naive', 'drift', 'seasonal-naive']) {
+      expect(model.metrics.mase).toBeLessThan(rows.find((r) => r.method === baseline)!.metrics.mase);
+    }
   });
 });

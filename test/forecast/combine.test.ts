@@ -4,7 +4,7 @@ import type { Series } from '../../src/data/series.js';
 import { createRng } from '../../src/linalg/random.js';
 import { search } from '../../src/select/search.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { combinationMembers, combineForecasts, combineRanking, groupOf, isExplosivePath, leavesPositive, usesInputs } from '../../src/forecast/combine.js';
+import { combinationMembers, combineForecasts, combineRanking, groupOf, isExplosivePath, leavesPositive, leavesRecord, usesInputs } from '../../src/forecast/combine.js';
 import { akaikeWeights } from '../../src/select/criteria.js';
 
 function series(values: number[]): Series {
@@ -47,6 +47,34 @@ describe('leavesPositive', () => {
     expect(c.members[1].excluded).toMatch(/zero or below/);
     expect(c.members[1].share).toBe(0);
     for (const v of c.point) expect(v).toBeCloseTo(6, 12);
+  });
+});
+
+describe('leavesRecord', () => {
+  it('refuses a path beyond twice the largest or below half the smallest value of a positive history', () => {
+    expect(leavesRecord([4, 5, 8], [9, 16])).toBe(false);
+    expect(leavesRecord([4, 5, 8], [9, 16.01])).toBe(true);
+    expect(leavesRecord([4, 5, 8], [2])).toBe(false);
+    expect(leavesRecord([4, 5, 8], [1.99])).toBe(true);
+    expect(leavesRecord([4, 5, 8], [30], 4)).toBe(false);
+    expect(leavesRecord([4, 5, 8], [1e9], Infinity)).toBe(false);
+    // A history with a value ≤ 0 has no record range on the ratio scale.
+    expect(leavesRecord([4, 0, 8], [100])).toBe(false);
+  });
+
+  it('leaves such a member out of the combination unless the factor allows it', () => {
+    const found = search(noisy, { families: ['arx'], transform: 'none' });
+    const members = combinationMembers(found.ranking, { maxMembers: 3 });
+    const bad = members[1].key;
+    // Range 15, so the bad path (41 > 2·20) does not explode (|41 − 19| ≤ 2·15) but leaves the record.
+    const history = [5, 20, 18, 19];
+    const path = (s: { key: string }) => (s.key === bad ? Float64Array.of(33, 41) : Float64Array.of(15, 15));
+    const c = combineForecasts(members, 2, path, history);
+    expect(c.members[1].excluded).toMatch(/twice the largest/);
+    for (const v of c.point) expect(v).toBeCloseTo(15, 12);
+    const wide = combineForecasts(members, 2, path, history, { recordFactor: 3 });
+    expect(wide.members[1].excluded).toBeUndefined();
+    expect(() => combineForecasts(members, 2, path, history, { recordFactor: 0.5 })).toThrow(RangeError);
   });
 });
 
@@ -99,7 +127,7 @@ describe('combineForecasts', () => {
   });
 });
 
-describe('two-level weights: Akaike weights within a group, equal weights across groups', () => {
+describe('two-level weights: Akaike weights within a group, tempered weights across groups', () => {
   const found = search(noisy, { families: ['arx', 'damped'] });
   const groups = ['arx', 'arx|log', 'damped', 'damped|log'];
 
@@ -126,31 +154,51 @@ describe('two-level weights: Akaike weights within a group, equal weights across
     }
   });
 
-  it('gives each group an equal share, so the point is the mean of the group forecasts', () => {
-    const c = combineRanking(found.ranking, noisy, 3, { maxDelta: Infinity });
+  /** The distance of each group's best candidate to the overall best. */
+  const groupBest = new Map<string, number>();
+  for (const r of found.ranking) if (r.status === 'fitted' && !groupBest.has(groupOf(r.structure))) groupBest.set(groupOf(r.structure), r.delta);
+  const groupPoints = groups.map((group) => {
+    const own = combineRanking(found.ranking.filter((r) => groupOf(r.structure) === group), noisy, 3);
+    expect(own.groups).toBe(1);
+    return own.point;
+  });
+
+  it('with across: equal gives each group an equal share, so the point is the mean of the group forecasts', () => {
+    const c = combineRanking(found.ranking, noisy, 3, { across: 'equal' });
     expect(c.groups).toBe(groups.length);
-    const points = groups.map((group) => {
-      const own = combineRanking(found.ranking.filter((r) => groupOf(r.structure) === group), noisy, 3);
-      expect(own.groups).toBe(1);
-      return own.point;
-    });
-    for (let k = 0; k < 3; k++) expect(c.point[k]).toBeCloseTo(points.reduce((a, p) => a + p[k], 0) / groups.length, 10);
+    for (let k = 0; k < 3; k++) expect(c.point[k]).toBeCloseTo(groupPoints.reduce((a, p) => a + p[k], 0) / groups.length, 10);
     for (const group of groups) {
       expect(c.members.filter((m) => m.group === group).reduce((a, m) => a + m.share, 0)).toBeCloseTo(1 / groups.length, 12);
     }
   });
 
+  // The tempered weights written out by hand: v_g ∝ exp(−Δ_g/(2τ)) over the groups' best Δ.
+  it('by default weights group g by exp(−Δ_g/20), Δ_g its best candidate behind the overall best', () => {
+    const c = combineRanking(found.ranking, noisy, 3);
+    expect(c.groups).toBe(groups.length);
+    const raw = groups.map((g) => Math.exp(-(groupBest.get(g) as number) / 20));
+    const total = raw.reduce((a, v) => a + v, 0);
+    groups.forEach((group, i) => {
+      expect(c.members.filter((m) => m.group === group).reduce((a, m) => a + m.share, 0)).toBeCloseTo(raw[i] / total, 12);
+      for (const m of c.members.filter((x) => x.group === group)) expect(m.groupWeight).toBeCloseTo(raw[i], 12);
+    });
+    for (let k = 0; k < 3; k++) expect(c.point[k]).toBeCloseTo(groupPoints.reduce((a, p, i) => a + (raw[i] / total) * p[k], 0), 10);
+    // A stronger tempering moves the weights towards equal ones.
+    const flat = combineRanking(found.ranking, noisy, 3, { temper: 1e12 });
+    for (const group of groups) expect(flat.members.filter((m) => m.group === group).reduce((a, m) => a + m.share, 0)).toBeCloseTo(1 / groups.length, 9);
+    expect(() => combinationMembers(found.ranking, { temper: 0.5 })).toThrow(RangeError);
+  });
+
   it('leaves out the groups whose best candidate is more than maxDelta behind the overall best', () => {
-    const groupBest = new Map<string, number>();
-    for (const r of found.ranking) if (r.status === 'fitted' && !groupBest.has(groupOf(r.structure))) groupBest.set(groupOf(r.structure), r.delta);
     for (const maxDelta of [0, 10, Infinity]) {
       const kept = new Set(combinationMembers(found.ranking, { maxDelta }).map((m) => m.group));
       const want = [...groupBest].filter(([, d]) => d <= maxDelta).map(([g]) => g);
       expect([...kept].sort()).toEqual(want.sort());
     }
     expect(new Set(combinationMembers(found.ranking, { maxDelta: 0 }).map((m) => m.group))).toEqual(new Set([groupOf(found.winner.structure)]));
-    // The default keeps the groups within 10 and this series rules at least one out.
-    expect(new Set(combinationMembers(found.ranking).map((m) => m.group)).size).toBeLessThan(groupBest.size);
+    // The default keeps every group (with its tempered weight), and this series has one more than 10 behind.
+    expect(new Set(combinationMembers(found.ranking).map((m) => m.group)).size).toBe(groupBest.size);
+    expect([...groupBest.values()].some((d) => d > 10)).toBe(true);
   });
 
   it('with across: evidence uses one Akaike weighting over all candidates', () => {
@@ -161,10 +209,13 @@ describe('two-level weights: Akaike weights within a group, equal weights across
   });
 
   it('drops a group whose every member is left out, and the others share its weight', () => {
-    const members = combinationMembers(found.ranking, { maxDelta: Infinity });
+    const members = combinationMembers(found.ranking);
     const c = combineForecasts(members, 2, (s, e) => (s.family === 'damped' ? Float64Array.of(NaN, NaN) : s.simulate(e.theta, noisy, [], 2)), noisy.values);
     expect(c.groups).toBe(2);
-    expect(c.members.filter((m) => m.group === 'arx').reduce((a, m) => a + m.share, 0)).toBeCloseTo(0.5, 12);
+    const arx = Math.exp(-(groupBest.get('arx') as number) / 20);
+    const log = Math.exp(-(groupBest.get('arx|log') as number) / 20);
+    expect(c.members.filter((m) => m.group === 'arx').reduce((a, m) => a + m.share, 0)).toBeCloseTo(arx / (arx + log), 12);
+    expect(c.members.filter((m) => m.group.startsWith('damped')).every((m) => m.share === 0)).toBe(true);
   });
 
   it('when the winner uses inputs, combines only candidates that use inputs', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { defaultMaxAr, search } from '../../src/select/search.js';
+import { autoHarmonics, defaultMaxAr, resolveBounds, search } from '../../src/select/search.js';
 import { criteria } from '../../src/select/criteria.js';
 import { DataError, ModelError, UsageError } from '../../src/data/errors.js';
 import type { ArxSpec } from '../../src/models/arx.js';
@@ -41,6 +41,30 @@ describe('search: recovery of simulated structures (known truth)', () => {
     expect(specOf(r).trend).toBe(false);
     expect(r.criterion).toBe('bic');
     expect(r.winner.result.score).toBe(r.winner.result.bic);
+  });
+});
+
+describe('search bounds: harmonics and trends by default', () => {
+  it("'auto' harmonics are none, one pair and the full set for seasons up to 12 periods", () => {
+    expect(autoHarmonics(12)).toEqual([0, 1, 6]);
+    expect(autoHarmonics(4)).toEqual([0, 1, 2]);
+    expect(autoHarmonics(7)).toEqual([0, 1, 3]);
+    expect(autoHarmonics(2)).toEqual([0, 1]);
+    expect(autoHarmonics(52)).toEqual([0, 1, 2]);
+    expect(resolveBounds(makeSeries(Array.from({ length: 48 }, (_, t) => 10 + (t % 12)))).harmonics).toEqual([0, 1, 6]);
+    expect(resolveBounds(makeSeries(Array.from({ length: 48 }, (_, t) => 10 + (t % 12))), { harmonics: 2 }).harmonics).toEqual([0, 1, 2]);
+  });
+
+  it('offers level structures on the log scale a trend only when the trend is asked for', () => {
+    const s = makeSeries(Array.from({ length: 60 }, (_, t) => 10 * Math.exp(0.02 * t) * (1 + 0.01 * Math.sin(t))), {}, { frequency: 'index', season: null });
+    const keys = (o: Parameters<typeof search>[1]) => search(s, { families: ['arx'], ...o }).ranking.map((r) => r.key);
+    const auto = keys({});
+    expect(auto.some((k) => k.includes('trend') && !k.endsWith('log'))).toBe(true);
+    expect(auto.some((k) => k.includes('trend') && k.endsWith('log'))).toBe(false);
+    expect(keys({ trend: 'on' }).filter((k) => k.endsWith('log')).every((k) => k.includes('trend'))).toBe(true);
+    expect(keys({ logTrend: 'auto' }).some((k) => k.includes('trend') && k.endsWith('log'))).toBe(true);
+    expect(resolveBounds(s).logTrend).toEqual([false]);
+    expect(resolveBounds(s, { trend: 'off' }).logTrend).toEqual([false]);
   });
 });
 
