@@ -15,7 +15,7 @@ export function addSearchOptions(command: Command): Command {
     .option('--max-ar <n>', `largest number of AR lags (default: min(${d.maxAr}, n/10), at least 1, for a series of n points; 0 also drops damping from the change family)`)
     .option('--max-input-lags <n>', `largest number of lags per input, 0 = no inputs (default ${d.maxInputLags})`)
     .option('--max-delay <n>', `largest input delay in periods (default ${d.maxDelay})`)
-    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: 0, 1 and the full set s/2 for seasons up to ${d.autoFullSeasonCap} periods, 0 to 2 for longer ones)`)
+    .option('--harmonics <n|auto>', `largest number of seasonal harmonic pairs (default auto: up to ${d.autoHarmonicsCap}; for structures of the change 0, 1 and the full set s/2 for seasons up to ${d.autoFullSeasonCap} periods)`)
     .option('--families <list>', `model families to search, comma-separated (default ${familyNames().join(',')})`)
     .option('--transform <how>', 'auto, none or log (default auto: log also tried for positive series)')
     .option('--criterion <name>', 'ranking criterion: aicc, aic or bic (default aicc)')

@@ -288,14 +288,15 @@ export class DampedStructure implements Structure {
 
 /**
  * The change-family candidates, in a fixed order: for each scoring transform, each number of
- * harmonic pairs the bounds allow, each drift alternative (the bounds' trend alternatives: the
- * drift is this family's trend), the random walk and then the damped forms with 1 … maxAr AR
- * lags of the change.
+ * harmonic pairs the bounds allow the change (`changeHarmonics`), each drift alternative (the
+ * bounds' trend alternatives: the drift is this family's trend), the random walk and then the
+ * damped forms with 1 … maxAr AR lags of the change.
  */
 export function dampedCandidates(series: Series, bounds: CandidateBounds): Structure[] {
   const positive = isStrictlyPositive(series.values);
   const out: Structure[] = [];
-  const harmonics = bounds.season !== null && bounds.harmonics.length > 0 ? bounds.harmonics : [0];
+  const allowed = bounds.changeHarmonics ?? bounds.harmonics;
+  const harmonics = bounds.season !== null && allowed.length > 0 ? allowed : [0];
   for (const transform of bounds.transforms) {
     if (transform === 'log' && !positive) continue;
     for (const K of harmonics) {

@@ -50,6 +50,11 @@ export interface CandidateBounds {
   inputs: string[];
   /** Numbers of seasonal harmonic pairs to try, ascending (0 = none); empty when no season. */
   harmonics: number[];
+  /**
+   * Numbers of harmonic pairs of the change for the structures of the change (damped, smoothed),
+   * ascending; empty when no season (absent: as `harmonics`).
+   */
+  changeHarmonics?: number[];
   /** Season length used by harmonics, seasonal lag and seasonal differencing (null = none). */
   season: number | null;
   /** Scoring-scale transforms to try, in this order. */

@@ -339,16 +339,16 @@ function sameValues(a: ArrayLike<number>, b: ArrayLike<number>): boolean {
 
 /**
  * The smoothed-level candidates, in a fixed order: for each scoring transform, no harmonics and
- * the largest number of harmonic pairs the bounds allow (the seasonal pattern of the change whole
- * or not at all; the counts in between scored no better on the accuracy benchmark), each drift
- * alternative (the bounds' trend alternatives: the drift is this family's trend), each smoothing
- * weight of `SMOOTHING_WEIGHTS`.
+ * the largest number of harmonic pairs the bounds allow the change (`changeHarmonics`: the
+ * seasonal pattern of the change whole or not at all; the counts in between scored no better on
+ * the accuracy benchmark), each drift alternative (the bounds' trend alternatives: the drift is
+ * this family's trend), each smoothing weight of `SMOOTHING_WEIGHTS`.
  */
 export function smoothedCandidates(series: Series, bounds: CandidateBounds): Structure[] {
   const positive = isStrictlyPositive(series.values);
   const out: Structure[] = [];
-  const top = bounds.season !== null && bounds.harmonics.length > 0 ? Math.max(...bounds.harmonics) : 0;
-  const harmonics = [...new Set([Math.min(...(bounds.harmonics.length > 0 ? bounds.harmonics : [0])), top])];
+  const allowed = bounds.season !== null && (bounds.changeHarmonics ?? bounds.harmonics).length > 0 ? (bounds.changeHarmonics ?? bounds.harmonics) : [0];
+  const harmonics = [...new Set([Math.min(...allowed), Math.max(...allowed)])];
   for (const transform of bounds.transforms) {
     if (transform === 'log' && !positive) continue;
     for (const K of harmonics) {

@@ -24,8 +24,9 @@
  *    residuals get a Ljung–Box whiteness check (whiteness.ts).
  *
  * Defaults (small enough for interactive use: 336 ARX candidates on a positive monthly series
- * with one input; see bench/search.bench.ts): maxAr 3 (max(1, ⌊n/10⌋) below 30 points, `defaultMaxAr`), maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0, 1 and ⌊s/2⌋ for
- * seasons up to 12 periods, 0…2 for longer ones, `autoHarmonics`, when the series has a season),
+ * with one input; see bench/search.bench.ts): maxAr 3 (max(1, ⌊n/10⌋) below 30 points, `defaultMaxAr`), maxInputLags 2, maxDelay 2, harmonics 'auto' (K = 0…min(2, ⌊s/2⌋) when
+ * the series has a season; for the structures of the change K = 0, 1 and ⌊s/2⌋ for seasons up to
+ * 12 periods, `autoChangeHarmonics`),
  * transform 'auto' (ln tried only for strictly positive series), trend 'auto' (with and without;
  * on the log scale, where a level structure's trend is an exponential line that its forecast
  * returns to and compounds over the horizon, without: `logTrend`), seasonalLag 'off',
@@ -64,7 +65,10 @@ export interface SearchOptions {
   maxInputLags?: number;
   /** Largest input delay (default 2). */
   maxDelay?: number;
-  /** Largest number of harmonic pairs, or 'auto' = 0, 1 and ⌊s/2⌋ pairs (`autoHarmonics`; default 'auto'). */
+  /**
+   * Largest number of harmonic pairs, or 'auto' = min(2, ⌊s/2⌋), and for the structures of the
+   * change 0, 1 and ⌊s/2⌋ pairs (`autoChangeHarmonics`) (default 'auto').
+   */
   harmonics?: number | 'auto';
   /** Season length for seasonal terms (default `series.season`; null switches them off). */
   season?: number | null;
@@ -105,6 +109,7 @@ export const SEARCH_DEFAULTS = {
   maxInputLags: 2,
   maxDelay: 2,
   harmonics: 'auto' as const,
+  autoHarmonicsCap: 2,
   autoFullSeasonCap: 12,
   transform: 'auto' as const,
   trend: 'auto' as const,
@@ -297,16 +302,28 @@ export function defaultMaxAr(n: number): number {
 }
 
 /**
- * The harmonic counts 'auto' tries for season s: none, one pair (the fundamental wave) and the
- * full set ⌊s/2⌋, which spans every periodic pattern (terms.ts), when that takes at most
- * `autoFullSeasonCap` (12) periods, i.e. at most 11 seasonal columns; for longer seasons none,
- * one and two pairs. So quarterly data try K = 0, 1, 2 and monthly data K = 0, 1, 6.
- * @example autoHarmonics(12) → [0, 1, 6]; autoHarmonics(4) → [0, 1, 2]; autoHarmonics(52) → [0, 1, 2]
+ * The harmonic counts 'auto' tries for season s in level structures (ARX, ODE): 0 … min(2, ⌊s/2⌋).
+ * @example autoHarmonics(12) → [0, 1, 2]; autoHarmonics(2) → [0, 1]
  */
 export function autoHarmonics(s: number): number[] {
+  return Array.from({ length: Math.min(SEARCH_DEFAULTS.autoHarmonicsCap, maxHarmonics(s)) + 1 }, (_, k) => k);
+}
+
+/**
+ * The harmonic counts 'auto' tries for season s in the structures of the change (the change and
+ * smoothed-level families): none, one pair (the fundamental wave) and the full set ⌊s/2⌋, which
+ * spans every periodic pattern (terms.ts), when that takes at most `autoFullSeasonCap` (12)
+ * periods, i.e. at most 11 seasonal columns; for longer seasons as `autoHarmonics`. So quarterly
+ * data try K = 0, 1, 2 and monthly data K = 0, 1, 6. These structures carry the series on from
+ * its end, and the harmonics of the change are all the seasonal memory they have; on the
+ * accuracy benchmark's monthly data the full set improved them (README), while level structures
+ * scored the same with it at about twice their cost per candidate.
+ * @example autoChangeHarmonics(12) → [0, 1, 6]; autoChangeHarmonics(4) → [0, 1, 2]; autoChangeHarmonics(52) → [0, 1, 2]
+ */
+export function autoChangeHarmonics(s: number): number[] {
   const full = maxHarmonics(s);
-  const list = s <= SEARCH_DEFAULTS.autoFullSeasonCap ? [0, 1, full] : [0, 1, 2];
-  return [...new Set(list.map((k) => Math.min(k, full)))];
+  if (s > SEARCH_DEFAULTS.autoFullSeasonCap) return autoHarmonics(s);
+  return [...new Set([0, 1, full].map((k) => Math.min(k, full)))];
 }
 
 /** Resolves options to explicit bounds. */
@@ -321,9 +338,11 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
   // A season of whole quarter periods (365.25 days) serves harmonics only: no seasonal lag or differences.
   const whole = season !== null && Number.isInteger(season);
   let harmonics: number[] = [];
+  let changeHarmonics: number[] = [];
   if (season !== null) {
     const h = options.harmonics ?? SEARCH_DEFAULTS.harmonics;
     harmonics = h === 'auto' ? autoHarmonics(season) : Array.from({ length: checkInt('harmonics', h, 0, maxHarmonics(season)) + 1 }, (_, k) => k);
+    changeHarmonics = h === 'auto' ? autoChangeHarmonics(season) : harmonics;
   } else if (typeof options.harmonics === 'number' && options.harmonics > 0) {
     throw new UsageError('no-season', `harmonics need a season; series "${series.name}" has none`, {
       found: `harmonics ${options.harmonics}`,
@@ -367,6 +386,7 @@ export function resolveBounds(series: Series, options: SearchOptions = {}): Cand
     maxDelay,
     inputs: known.filter((n) => inputs.includes(n)),
     harmonics,
+    changeHarmonics,
     season,
     transforms,
     trend: switchValues(trend),

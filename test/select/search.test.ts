@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { autoHarmonics, defaultMaxAr, resolveBounds, search } from '../../src/select/search.js';
+import { autoChangeHarmonics, autoHarmonics, defaultMaxAr, resolveBounds, search } from '../../src/select/search.js';
 import { criteria } from '../../src/select/criteria.js';
 import { DataError, ModelError, UsageError } from '../../src/data/errors.js';
 import type { ArxSpec } from '../../src/models/arx.js';
@@ -45,14 +45,21 @@ describe('search: recovery of simulated structures (known truth)', () => {
 });
 
 describe('search bounds: harmonics and trends by default', () => {
-  it("'auto' harmonics are none, one pair and the full set for seasons up to 12 periods", () => {
-    expect(autoHarmonics(12)).toEqual([0, 1, 6]);
-    expect(autoHarmonics(4)).toEqual([0, 1, 2]);
-    expect(autoHarmonics(7)).toEqual([0, 1, 3]);
+  it("'auto' harmonics are 0 to 2 pairs, and for structures of the change none, one and the full set for seasons up to 12", () => {
+    expect(autoHarmonics(12)).toEqual([0, 1, 2]);
     expect(autoHarmonics(2)).toEqual([0, 1]);
-    expect(autoHarmonics(52)).toEqual([0, 1, 2]);
-    expect(resolveBounds(makeSeries(Array.from({ length: 48 }, (_, t) => 10 + (t % 12)))).harmonics).toEqual([0, 1, 6]);
-    expect(resolveBounds(makeSeries(Array.from({ length: 48 }, (_, t) => 10 + (t % 12))), { harmonics: 2 }).harmonics).toEqual([0, 1, 2]);
+    expect(autoChangeHarmonics(12)).toEqual([0, 1, 6]);
+    expect(autoChangeHarmonics(4)).toEqual([0, 1, 2]);
+    expect(autoChangeHarmonics(7)).toEqual([0, 1, 3]);
+    expect(autoChangeHarmonics(2)).toEqual([0, 1]);
+    expect(autoChangeHarmonics(52)).toEqual([0, 1, 2]);
+    const monthly = makeSeries(Array.from({ length: 48 }, (_, t) => 10 + (t % 12)));
+    expect(resolveBounds(monthly).harmonics).toEqual([0, 1, 2]);
+    expect(resolveBounds(monthly).changeHarmonics).toEqual([0, 1, 6]);
+    expect(resolveBounds(monthly, { harmonics: 3 }).changeHarmonics).toEqual([0, 1, 2, 3]);
+    const keys = search(monthly, { families: ['arx', 'damped'] }).ranking.map((r) => r.key);
+    expect(keys.some((k) => k.startsWith('damped') && k.includes('K6s12'))).toBe(true);
+    expect(keys.some((k) => k.startsWith('arx') && k.includes('K6s12'))).toBe(false);
   });
 
   it('offers level structures on the log scale a trend only when the trend is asked for', () => {
