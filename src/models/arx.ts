@@ -23,7 +23,7 @@ import type { DesignMatrix } from '../linalg/matrix.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, deterministicRowsFiller, isHarmonicSeason, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { deterministicFiller, deterministicNames, deterministicRowsFiller, isHarmonicSeason, maxHarmonics, specFieldError, type DeterministicTerms } from './terms.js';
 import { characteristicRoots, isStableRecursion, modulus } from './roots.js';
 import type { CandidateBounds, Differencing, FamilyDefinition } from './registry.js';
 import { linearEquation } from './equation.js';
@@ -61,12 +61,7 @@ function isNonNegInt(x: unknown): x is number {
 /** Checks a spec (from a search grid or a saved file); UsageError naming the bad field. */
 export function validateArxSpec(spec: StructureSpec): ArxSpec {
   const s = spec as Partial<ArxSpec>;
-  const bad = (field: string, expected: string): never => {
-    throw new UsageError('bad-arx-spec', `ARX spec field "${field}" is invalid`, {
-      found: JSON.stringify((spec as Record<string, unknown>)[field]),
-      expected,
-    });
-  };
+  const bad = specFieldError(spec, 'bad-arx-spec', 'ARX');
   if (s.family !== 'arx') bad('family', '"arx"');
   if (!isNonNegInt(s.ar)) bad('ar', 'a whole number ≥ 0');
   if (!Array.isArray(s.inputs)) bad('inputs', 'a list of {name, lags, delay}');

@@ -30,59 +30,38 @@
  * stored windows.
  */
 import type { Series } from '../data/series.js';
-import { ModelError, UsageError } from '../data/errors.js';
+import { ModelError } from '../data/errors.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, isHarmonicSeason, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { checkChangeTerms, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
 import { linearEquation } from './equation.js';
 import { isStableRecursion, spectralRadius } from './roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 
-export interface DampedSpec extends StructureSpec {
+export interface DampedSpec extends StructureSpec, ChangeTerms {
   family: 'damped';
   /** Carry the last changes on: estimate AR coefficients of the change (true), or none (false). */
   damped: boolean;
   /** Number p of AR lags of the change when damped (absent = 1). */
   lags?: number;
-  /** A constant change per period (absent = false). */
-  drift?: boolean;
-  /** Harmonic pairs K of the change (absent = 0); needs `season`. */
-  harmonics?: number;
-  /** Season length s of the harmonics (present exactly when harmonics > 0). */
-  season?: number;
   transform: Transform;
 }
 
 /** Checks a spec (from the grid or a saved file); UsageError naming the bad field. */
 export function validateDampedSpec(spec: StructureSpec): DampedSpec {
   const s = spec as Partial<DampedSpec>;
-  const bad = (field: string, expected: string): never => {
-    throw new UsageError('bad-damped-spec', `change-family spec field "${field}" is invalid`, {
-      found: JSON.stringify((spec as Record<string, unknown>)[field]),
-      expected,
-    });
-  };
+  const bad = specFieldError(spec, 'bad-damped-spec', 'change-family');
   if (s.family !== 'damped') bad('family', '"damped"');
   if (typeof s.damped !== 'boolean') bad('damped', 'true or false');
-  if (s.drift !== undefined && typeof s.drift !== 'boolean') bad('drift', 'true or false');
   const lags = s.lags ?? 1;
   if (!Number.isInteger(lags) || lags < 1 || lags > 24) bad('lags', 'a whole number from 1 to 24');
   if (s.lags !== undefined && s.damped !== true) bad('lags', 'absent unless damped is true');
   if (s.transform !== 'none' && s.transform !== 'log') bad('transform', 'none or log');
-  const K = s.harmonics ?? 0;
-  if (!Number.isInteger(K) || K < 0) bad('harmonics', 'a whole number ≥ 0');
   const out: DampedSpec = { family: 'damped', damped: s.damped as boolean, transform: s.transform as Transform };
   if (s.damped === true && lags > 1) out.lags = lags;
-  if (s.drift === true) out.drift = true;
-  if (K > 0) {
-    const season = s.season;
-    if (typeof season !== 'number' || !isHarmonicSeason(season)) bad('season', 'a whole number ≥ 2 (or a multiple of 1/4, e.g. 365.25) when harmonics > 0');
-    if (K > maxHarmonics(season as number)) bad('harmonics', `at most ⌊s/2⌋ = ${maxHarmonics(season as number)}`);
-    out.harmonics = K;
-    out.season = season as number;
-  }
+  checkChangeTerms(s, bad, out);
   return out;
 }
 

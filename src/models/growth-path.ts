@@ -47,7 +47,7 @@ import { dateAt } from './ode-derived.js';
 import { samplingInterval } from './ode.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
-import { deterministicFiller, deterministicNames, maxHarmonics } from './terms.js';
+import { deterministicFiller, deterministicNames, maxHarmonics, specFieldError } from './terms.js';
 
 export interface PathSpec extends StructureSpec {
   family: 'path';
@@ -68,12 +68,7 @@ export interface PathSpec extends StructureSpec {
 /** Checks a spec (from the grid or a saved file); UsageError naming the bad field. */
 export function validatePathSpec(spec: StructureSpec): PathSpec {
   const s = spec as Partial<PathSpec>;
-  const bad = (field: string, expected: string): never => {
-    throw new UsageError('bad-path-spec', `growth-path spec field "${field}" is invalid`, {
-      found: JSON.stringify((spec as Record<string, unknown>)[field]),
-      expected,
-    });
-  };
+  const bad = specFieldError(spec, 'bad-path-spec', 'growth-path');
   if (s.family !== 'path') bad('family', '"path"');
   if (s.law !== 'logistic') bad('law', '"logistic"');
   if (!Array.isArray(s.inputs) || !s.inputs.every((i) => typeof i === 'string' && i.length > 0)) bad('inputs', 'a list of input names');

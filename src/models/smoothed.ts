@@ -36,12 +36,12 @@
  * observation ever seen (terms.ts), so harmonics continue across stored windows.
  */
 import type { Series } from '../data/series.js';
-import { ModelError, UsageError } from '../data/errors.js';
+import { ModelError } from '../data/errors.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { deterministicFiller, deterministicNames, isHarmonicSeason, maxHarmonics, type DeterministicTerms } from './terms.js';
+import { checkChangeTerms, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
 import { formatCoefficient, linearEquation } from './equation.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 
@@ -53,43 +53,22 @@ import type { CandidateBounds, FamilyDefinition } from './registry.js';
  */
 export const SMOOTHING_WEIGHTS: readonly number[] = [0.2, 0.5, 0.8];
 
-export interface SmoothedSpec extends StructureSpec {
+export interface SmoothedSpec extends StructureSpec, ChangeTerms {
   family: 'smoothed';
   /** Smoothing weight α ∈ (0, 1): the share of each one-step surprise the level takes in (β = 1 − α). */
   alpha: number;
-  /** A constant change per period (absent = false). */
-  drift?: boolean;
-  /** Harmonic pairs K of the change (absent = 0); needs `season`. */
-  harmonics?: number;
-  /** Season length s of the harmonics (present exactly when harmonics > 0). */
-  season?: number;
   transform: Transform;
 }
 
 /** Checks a spec (from the grid or a saved file); UsageError naming the bad field. */
 export function validateSmoothedSpec(spec: StructureSpec): SmoothedSpec {
   const s = spec as Partial<SmoothedSpec>;
-  const bad = (field: string, expected: string): never => {
-    throw new UsageError('bad-smoothed-spec', `smoothed-level spec field "${field}" is invalid`, {
-      found: JSON.stringify((spec as Record<string, unknown>)[field]),
-      expected,
-    });
-  };
+  const bad = specFieldError(spec, 'bad-smoothed-spec', 'smoothed-level');
   if (s.family !== 'smoothed') bad('family', '"smoothed"');
   if (typeof s.alpha !== 'number' || !(s.alpha > 0 && s.alpha < 1)) bad('alpha', 'a number strictly between 0 and 1');
-  if (s.drift !== undefined && typeof s.drift !== 'boolean') bad('drift', 'true or false');
   if (s.transform !== 'none' && s.transform !== 'log') bad('transform', 'none or log');
-  const K = s.harmonics ?? 0;
-  if (!Number.isInteger(K) || K < 0) bad('harmonics', 'a whole number ≥ 0');
   const out: SmoothedSpec = { family: 'smoothed', alpha: s.alpha as number, transform: s.transform as Transform };
-  if (s.drift === true) out.drift = true;
-  if (K > 0) {
-    const season = s.season;
-    if (typeof season !== 'number' || !isHarmonicSeason(season)) bad('season', 'a whole number ≥ 2 (or a multiple of 1/4, e.g. 365.25) when harmonics > 0');
-    if (K > maxHarmonics(season as number)) bad('harmonics', `at most ⌊s/2⌋ = ${maxHarmonics(season as number)}`);
-    out.harmonics = K;
-    out.season = season as number;
-  }
+  checkChangeTerms(s, bad, out);
   return out;
 }
 

@@ -13,6 +13,7 @@
  * quarter periods (the yearly cycle of daily data, s = 365.25 days): their values repeat every
  * q·s samples for the least q ∈ {1, 2, 4} that makes q·s whole, and are tabulated over that span.
  */
+import { UsageError } from '../data/errors.js';
 
 export interface DeterministicTerms {
   intercept: boolean;
@@ -148,4 +149,45 @@ export function deterministicRowsFiller(d: DeterministicTerms): (t0: number, row
       }
     }
   };
+}
+
+/**
+ * The thrower of a family's spec validator: `bad(field, expected)` raises one UsageError with
+ * code `code`, naming the field of `spec` and what it held.
+ */
+export function specFieldError(spec: object, code: string, what: string): (field: string, expected: string) => never {
+  return (field, expected) => {
+    throw new UsageError(code, `${what} spec field "${field}" is invalid`, {
+      found: JSON.stringify((spec as Record<string, unknown>)[field]),
+      expected,
+    });
+  };
+}
+
+/** The terms of the change that the change and smoothed-level families share. */
+export interface ChangeTerms {
+  /** A constant change per period (absent = false). */
+  drift?: boolean;
+  /** Harmonic pairs K of the change (absent = 0); needs `season`. */
+  harmonics?: number;
+  /** Season length s of the harmonics (present exactly when harmonics > 0). */
+  season?: number;
+}
+
+/**
+ * Checks the shared change terms of `s` (drift, harmonics with their season) and copies them,
+ * in their canonical form (absent when off), into `out`.
+ */
+export function checkChangeTerms(s: ChangeTerms, bad: (field: string, expected: string) => never, out: ChangeTerms): void {
+  if (s.drift !== undefined && typeof s.drift !== 'boolean') bad('drift', 'true or false');
+  const K = s.harmonics ?? 0;
+  if (!Number.isInteger(K) || K < 0) bad('harmonics', 'a whole number ≥ 0');
+  if (s.drift === true) out.drift = true;
+  if (K > 0) {
+    const season = s.season;
+    if (typeof season !== 'number' || !isHarmonicSeason(season)) bad('season', 'a whole number ≥ 2 (or a multiple of 1/4, e.g. 365.25) when harmonics > 0');
+    if (K > maxHarmonics(season as number)) bad('harmonics', `at most ⌊s/2⌋ = ${maxHarmonics(season as number)}`);
+    out.harmonics = K;
+    out.season = season as number;
+  }
 }
