@@ -8,6 +8,7 @@ import { existsSync, rmSync } from 'node:fs';
 import { isCertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { forecastTable } from '../report/forecast-report.js';
+import { summaryDocument } from '../report/result-json.js';
 import { parseForecastOptions, runForecast } from '../cli/forecast.js';
 import type { CliIO } from '../cli/main.js';
 import { forecastsColumns, forecastsRecords, type BatchRow } from './batch-table.js';
@@ -26,7 +27,7 @@ export interface JobSettings {
   opts: Record<string, unknown>;
   /** Notes from loading the file (each series' summary lists them, as for one series). */
   loadNotes: string[];
-  /** Keep the summary document for --json. */
+  /** Keep the summary document (as summary.json holds it) for --json. */
   keepSummary: boolean;
 }
 
@@ -99,7 +100,7 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
       },
       forecasts: forecastsRecords(columns, rows),
       columns,
-      summary: settings.keepSummary ? summary : null,
+      summary: settings.keepSummary ? summaryDocument('forecast', summary) : null,
       error: null,
     };
   } catch (e) {

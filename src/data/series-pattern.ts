@@ -46,7 +46,7 @@ export function unescapeItem(item: string): string {
   return item.replace(/\\(.)/gsu, '$1');
 }
 
-const escapeRegex = (s: string): string => s.replace(/[.*+?^${}()|[\]\\/-]/g, '\\$&');
+const escapeRegex = (s: string): string => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 /** A glob item as an anchored regular expression. */
 export function globRegex(item: string): RegExp {
