@@ -14,6 +14,7 @@ const COMMANDS: ReadonlyArray<readonly [string, () => Promise<{ register: Regist
   ['search', () => import('./search.js')],
   ['forecast', () => import('./forecast.js')],
   ['update', () => import('./update.js')],
+  ['merge', () => import('./merge.js')],
 ];
 
 /** Registers the command `argv` names, or every command when it names none of them. */

@@ -28,7 +28,7 @@ export function addDataOptions(command: Command): Command {
     .option('--value <column>', 'the value column (long layout), or the one series column to keep (wide layout)')
     .option('--inputs <columns>', 'exogenous input columns, comma-separated, e.g. price,promo')
     .option('--id <column>', 'the series id column: selects long layout')
-    .option('--series <name>', 'keep only this series (a column name, or an id in long layout)')
+    .option('--series <list>', 'keep only these series: names (columns, or ids in long layout) and globs, comma-separated, e.g. north*,south-2 (\\, for a comma inside a name)')
     .option('--date-format <form>', `how to read times: ${DATE_FORMATS.join(', ')} (default: auto)`)
     .option('--freq <frequency>', `aggregate to this coarser frequency: ${FREQUENCIES.filter((f) => f !== 'index').join(', ')}`)
     .option('--aggregate <how>', `how --freq combines periods: ${AGGREGATOR_NAMES.join(', ')} (default: sum)`)

@@ -21,6 +21,9 @@ import { addSearchOptions, parseSearchOptions } from './search-options.js';
 import { outputFolder, runClock, writeFiles } from './output.js';
 import type { CliIO } from './main.js';
 import { ProgressReporter } from './progress.js';
+import { resultDocument, summaryDocument } from '../report/result-json.js';
+import { toJson } from '../report/tables.js';
+import { addBatchOptions, parseBatchOptions, runForecastBatch } from './batch.js';
 
 export function addForecastOptions(command: Command): Command {
   return command
@@ -36,7 +39,7 @@ export function addForecastOptions(command: Command): Command {
     .option('--draws <n>', 'paths of simulation intervals (default 1000)')
     .option('--parameter-uncertainty', 'simulation intervals also draw the coefficients from their estimated covariance')
     .option('--window <n>', 'raw observations kept in model.json for later re-searches (default 240)')
-    .option('--out <folder>', 'output folder (default output/<series>)')
+    .option('--out <folder>', 'output folder: of the series when the file holds one (default output/<series>); of the batch when it holds several, one folder per series inside (default output)')
     .option('--no-charts', 'do not render PNG charts')
     .option('--json', 'print summary.json instead of the text summary');
 }
@@ -114,7 +117,15 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
 }
 
 /** Runs the main job on one loaded series and writes its outputs; returns the summary. */
-export async function runForecast(series: Series, cli: CliForecastOptions, folder: string, opts: Record<string, unknown>, io: CliIO, loadWarnings: string[] = []): Promise<{ run: ForecastRun; summary: Record<string, unknown>; text: string }> {
+export async function runForecast(
+  series: Series,
+  cli: CliForecastOptions,
+  folder: string,
+  opts: Record<string, unknown>,
+  io: CliIO,
+  loadWarnings: string[] = [],
+  shownFolder: string = folder,
+): Promise<{ run: ForecastRun; summary: Record<string, unknown>; text: string }> {
   let futureSeries: Series | undefined;
   if (cli.future !== undefined) futureSeries = await loadFuture(cli.future, series, opts, io);
   const progress = new ProgressReporter(io, `searching ${series.name}`);
@@ -131,8 +142,8 @@ export async function runForecast(series: Series, cli: CliForecastOptions, folde
   const files: Record<string, string | Uint8Array> = { ...forecastFiles(run) };
   if (cli.charts) Object.assign(files, forecastCharts(run));
   const names = [...Object.keys(files), 'model.json', 'summary.json'].sort();
-  const summary = forecastSummary(run, { files: names, outDir: folder, source: series.source, warnings: loadWarnings });
-  files['summary.json'] = summaryJson(summary);
+  const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
+  files['summary.json'] = summaryJson(summaryDocument('forecast', summary));
   await writeFiles(folder, files);
   const a = run.asserted;
   const story = runStory(run);
@@ -165,18 +176,21 @@ export function register(program: Command, io: CliIO): void {
   addForecastOptions(command);
   addSearchOptions(command);
   addDataOptions(command);
+  addBatchOptions(command);
   command.action(async (file: string, opts: Record<string, unknown>) => {
     const cli = parseForecastOptions(opts);
+    const batch = parseBatchOptions(opts);
     const { series, report } = await loadSeriesFromCli(file, opts, io);
-    const docs: Record<string, unknown>[] = [];
-    const texts: string[] = [];
-    for (const s of series) {
-      const folder = outputFolder(s, series.length, cli.out);
+    if (series.length === 1 && batch.shard === null) {
+      const s = series[0];
+      const folder = outputFolder(s, cli.out);
       const { summary, text } = await runForecast(s, cli, folder, opts, io, report.notes);
-      docs.push(summary);
-      texts.push(text);
+      const entry = { series: s.name, status: 'ok' as const, folder, reason: null, detail: summaryDocument('forecast', summary) };
+      if (cli.json) io.out(toJson(resultDocument('forecast', [entry])));
+      else if (!batch.quiet) io.out(text);
+      return;
     }
-    io.out(cli.json ? summaryJson(docs.length === 1 ? docs[0] : { series: docs }) : texts.join('\n'));
+    await runForecastBatch(series, report.notes, cli, batch, opts, io);
   });
   program.addHelpText('after', '\nForecast a series (the main job):\n  certa forecast datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
 }

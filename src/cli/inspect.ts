@@ -15,6 +15,7 @@ import { summaryStats, type SeriesStats } from '../data/regularise.js';
 import type { Series } from '../data/series.js';
 import { addDataOptions, loadSeriesFromCli } from './data-options.js';
 import type { CliIO } from './main.js';
+import { resultDocument } from '../report/result-json.js';
 
 export function register(program: Command, io: CliIO): void {
   const command = program
@@ -26,7 +27,7 @@ export function register(program: Command, io: CliIO): void {
   command.action(async (file: string, opts: Record<string, unknown>) => {
     const { series, report } = await loadSeriesFromCli(file, opts, io);
     const doc = inspectDocument(series, report);
-    io.out(opts.json ? `${JSON.stringify(doc, null, 2)}\n` : renderText(doc));
+    io.out(opts.json ? `${JSON.stringify(inspectResult(doc), null, 2)}\n` : renderText(doc));
   });
   program.addHelpText('after', '\nFirst look at a file:\n  certa inspect datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
 }
@@ -116,6 +117,16 @@ export function inspectDocument(series: Series[], report: LoadReport): InspectDo
     })),
     notes: report.notes,
   };
+}
+
+/** The inspect document as the one result shape: the file's facts, one entry per series. */
+export function inspectResult(doc: InspectDocument): Record<string, unknown> {
+  const { series, ...file } = doc;
+  return resultDocument(
+    'inspect',
+    series.map((s) => ({ series: s.name, status: 'ok', folder: null, reason: null, detail: s })),
+    { file },
+  );
 }
 
 /** What the search does about the yearly cycle of a daily series (select/seasons.ts), or null. */

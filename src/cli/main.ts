@@ -3,12 +3,23 @@
  * (`inspect.ts`, `search.ts`, ...) exporting `register(program, io)`. Commands never print errors
  * or exit: they throw, and only `main` turns an error into a message and an exit code.
  *
- * Exit codes: 0 success; 2 a user-caused error (bad file, bad option, unfit data); 3 a condition
- * a scheduler asked to fail on (drift with --fail-on-drift); 1 a bug (stack only with --debug).
+ * Exit codes (EXIT_CODES, also in --help and the README): 0 success; 1 a bug (stack only with
+ * --debug); 2 a user-caused error (bad file, bad option, unfit data); 3 a condition a scheduler
+ * asked to fail on (drift with --fail-on-drift); 4 a batch in which some series could not be
+ * forecast (the others were completed, the failures listed in batch.csv and on stderr).
  */
 import { Command, CommanderError } from 'commander';
 import { isCertaError } from '../data/errors.js';
 import { registerCommands } from './commands.js';
+
+/** Every exit code of certa with its meaning, as --help prints them. */
+export const EXIT_CODES: ReadonlyArray<readonly [number, string]> = [
+  [0, 'success'],
+  [1, 'a bug in certa (rerun with --debug for the stack trace)'],
+  [2, 'a user-caused error: bad file, bad option, data no model can be fitted to'],
+  [3, 'a condition asked to fail on: a drift alarm with certa update --fail-on-drift'],
+  [4, 'a batch in which some series failed: the others were completed; see batch.csv and stderr'],
+];
 
 /** Where commands write; tests pass their own to capture output. */
 export interface CliIO {
@@ -42,7 +53,8 @@ export async function buildProgram(io: CliIO, argv: string[] = []): Promise<Comm
       'Identify the equation behind a time series, assert it, forecast with it and keep it learning.\n' +
         'Start with:  certa inspect <file>   (what certa reads in your file)',
     )
-    .option('--debug', 'print stack traces of internal errors');
+    .option('--debug', 'print stack traces of internal errors')
+    .addHelpText('after', `\nExit codes:\n${EXIT_CODES.map(([c, t]) => `  ${c}  ${t}`).join('\n')}\n`);
   await registerCommands(program, io, argv);
   configureTree(program, io);
   return program;

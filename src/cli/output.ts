@@ -5,12 +5,22 @@
 import { join } from 'node:path';
 import type { Series } from '../data/series.js';
 import { writeFileAtomic } from '../store/atomic.js';
+import { folderNames } from '../batch/folder-names.js';
 
-/** `output/<series>` unless the user gave `--out`; with several series, one folder each inside. */
-export function outputFolder(series: Series, count: number, out: string | undefined): string {
-  const safe = series.name.replace(/[^\p{L}\p{N}._-]+/gu, '_') || 'series';
-  if (out === undefined) return join('output', safe);
-  return count > 1 ? join(out, safe) : out;
+/**
+ * The folder of each series: with one series `--out` itself (default `output/<folder name>`);
+ * with several, `<--out or output>/<folder name>`, folder names by the rule of
+ * batch/folder-names.ts (injective, never outside the folder).
+ */
+export function outputFolders(series: readonly Series[], out: string | undefined): string[] {
+  const names = folderNames(series.map((s) => s.name));
+  if (series.length === 1 && out !== undefined) return [out];
+  return names.map((n) => join(out ?? 'output', n));
+}
+
+/** The folder of a file's only series (see outputFolders). */
+export function outputFolder(series: Series, out: string | undefined): string {
+  return outputFolders([series], out)[0];
 }
 
 /** Writes each named file into `dir` (created if missing), atomically, in name order. */

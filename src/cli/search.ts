@@ -23,8 +23,11 @@ import { modelBody } from '../store/asserted.js';
 import { Learner } from '../forecast/online.js';
 import { addDataOptions, loadSeriesFromCli } from './data-options.js';
 import { addSearchOptions, parseSearchOptions } from './search-options.js';
-import { outputFolder, runClock } from './output.js';
-import type { CliIO } from './main.js';
+import { outputFolders, runClock } from './output.js';
+import { ExitRequest, type CliIO } from './main.js';
+import { isCertaError } from '../data/errors.js';
+import { resultDocument, type ResultEntry } from '../report/result-json.js';
+import { EXIT_SOME_FAILED } from './batch.js';
 
 interface CliSearchOptions {
   search: SearchOptions;
@@ -59,17 +62,28 @@ export function register(program: Command, io: CliIO): void {
   command.action(async (file: string, opts: Record<string, unknown>) => {
     const cli = parseCommandOptions(opts);
     const { series } = await loadSeriesFromCli(file, opts, io);
-    const docs: SearchDocument[] = [];
+    const folders = outputFolders(series, cli.out);
+    const entries: ResultEntry[] = [];
     const texts: string[] = [];
-    for (const s of series) {
-      const result = searchSeasons(s, cli.search);
-      const folder = outputFolder(s, series.length, cli.out);
-      const written = await writeOutputs(result, s, folder);
-      const doc = searchDocument(result, cli.top, written);
-      docs.push(doc);
-      texts.push(renderText(doc));
+    for (let i = 0; i < series.length; i++) {
+      const s = series[i];
+      try {
+        const result = searchSeasons(s, cli.search);
+        const written = await writeOutputs(result, s, folders[i]);
+        const doc = searchDocument(result, cli.top, written);
+        entries.push({ series: s.name, status: 'ok', folder: folders[i], reason: null, detail: doc });
+        texts.push(renderText(doc));
+      } catch (e) {
+        // One series: its error is the command's. Several: report it and go on (exit code 4).
+        if (series.length === 1 || !isCertaError(e)) throw e;
+        const line = e.line().includes(`series "${s.name}"`) ? e.line() : `series "${s.name}": ${e.line()}`;
+        io.err(`certa: ${line}\n`);
+        entries.push({ series: s.name, status: 'failed', folder: null, reason: line, detail: null });
+        texts.push(`series "${s.name}": failed: ${e.line()}\n`);
+      }
     }
-    io.out(cli.json ? `${JSON.stringify(docs.length === 1 ? docs[0] : docs, null, 2)}\n` : texts.join('\n'));
+    io.out(cli.json ? `${JSON.stringify(resultDocument('search', entries), null, 2)}\n` : texts.join('\n'));
+    if (entries.some((e) => e.status === 'failed')) throw new ExitRequest(EXIT_SOME_FAILED);
   });
   program.addHelpText('after', '\nFind the equation behind a series:\n  certa search datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
 }

@@ -21,6 +21,8 @@ import { ExitRequest, type CliIO } from './main.js';
 import { runClock, writeFiles } from './output.js';
 import { BANDS_HELP, parseBands } from './forecast.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
+import { resultDocument, summaryDocument } from '../report/result-json.js';
+import { toJson } from '../report/tables.js';
 
 export interface CliUpdateOptions {
   onDrift: DriftPolicy;
@@ -120,7 +122,7 @@ export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpd
       const modelName = join(folder, 'model.json') === modelPath ? ['model.json'] : [];
       const names = [...Object.keys(files), 'summary.json', ...modelName].sort();
       const summary = updateSummary(result, { model: modelPath, data: dataFile, files: names, outDir: folder, warnings });
-      files['summary.json'] = updateSummaryJson(summary);
+      files['summary.json'] = updateSummaryJson(summaryDocument('update', summary));
       await writeFiles(folder, files);
       const written = await writeModelFile(modelPath, result.body);
       if (written.note) warnings.push(written.note);
@@ -152,7 +154,9 @@ export function register(program: Command, io: CliIO): void {
   command.action(async (model: string, file: string, opts: Record<string, unknown>) => {
     const cli = parseUpdateOptions(opts);
     const { result, summary, text } = await runUpdate(model, file, cli, opts, io);
-    io.out(cli.json ? updateSummaryJson(summary) : text);
+    const folder = cli.out ?? dirname(model);
+    const name = (result.body.series as { name: string }).name;
+    io.out(cli.json ? toJson(resultDocument('update', [{ series: name, status: 'ok', folder, reason: null, detail: summaryDocument('update', summary) }])) : text);
     if (cli.failOnDrift && result.alarms.length > 0) throw new ExitRequest(3);
   });
   program.addHelpText('after', '\nUpdate a saved model with new data:\n  certa update output/sales/model.json sales-2024.csv --on-drift adapt\n');

@@ -21,6 +21,7 @@ import { regularise, sortAndResolveDuplicates, type DuplicatePolicyName, type Pa
 import type { AggregatorName } from './aggregators.js';
 import type { GapPolicyName } from './gaps.js';
 import type { Series } from './series.js';
+import { selectSeries, type SeriesPatternMiss } from './series-pattern.js';
 import { decodeText, readSource, sniffFormat, type TableSource } from './source.js';
 import { offsetText, snapToMidnight, type SnapReport } from './snap.js';
 import { parseTimeColumn } from './time-column.js';
@@ -49,7 +50,7 @@ export interface LoadOptions extends TableOptions {
   value?: string;
   inputs?: string[];
   id?: string;
-  /** Keep only this series (a column name in wide layout, an id in long layout). */
+  /** Keep only these series: names (columns in wide layout, ids in long layout) and globs, comma-separated (series-pattern.ts). */
   series?: string;
   dateFormat?: DateFormat;
   /** Aggregate to this (coarser) frequency. */
@@ -187,8 +188,9 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     const rows = Int32Array.from(idx, (r) => table.rows[r]);
     let names = layout.values;
     if (options.series !== undefined) {
-      if (!names.includes(options.series)) throw unknownSeries(file, options.series, names, 'column');
-      names = [options.series];
+      const picked = selectSeries(options.series, names);
+      if ('miss' in picked) throw unknownSeries(file, picked.miss, names, 'column');
+      names = picked.indices.map((i) => names[i]);
     }
     const inputs = layout.inputs.map((name) => ({ name, values: numbers(name, idx) }));
     raws = names.map((name) => ({ name, times: t, values: numbers(name, idx), inputs, rows }));
@@ -264,11 +266,11 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
   return { series, report };
 }
 
-function unknownSeries(file: string, name: string, names: string[], what: 'column' | 'id'): UsageError {
+function unknownSeries(file: string, miss: SeriesPatternMiss, names: string[], what: 'column' | 'id'): UsageError {
   const shown = names.slice(0, 10).map((n) => `"${n}"`).join(', ') + (names.length > 10 ? `, … (${names.length} in all)` : '');
-  return new UsageError('series-unknown', `no series named "${name}"`, {
+  return new UsageError('series-unknown', miss.glob ? `no series matches the pattern "${miss.item}"` : `no series named "${miss.item}"`, {
     file,
-    found: name,
+    found: miss.item,
     expected: `a series ${what === 'column' ? 'column' : 'id'}: ${shown}`,
   });
 }
@@ -321,9 +323,9 @@ function groupLong(
   }
   let wanted: number[] = names.map((_, g) => g);
   if (only !== undefined) {
-    const g = groupIndex.get(only);
-    if (g === undefined) throw unknownSeries(table.source, only, names, 'id');
-    wanted = [g];
+    const picked = selectSeries(only, names);
+    if ('miss' in picked) throw unknownSeries(table.source, picked.miss, names, 'id');
+    wanted = picked.indices;
   }
   const offsets = new Int32Array(names.length + 1);
   for (let g = 0; g < names.length; g++) offsets[g + 1] = offsets[g] + counts[g];

@@ -17,6 +17,7 @@ import { join } from 'node:path';
 import ExcelJS from 'exceljs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ensureBuilt, runCli } from './run-cli.js';
+import { parseResult } from './result.js';
 import { expectPearlReedNeighbourhood } from '../external/census-neighbourhood.js';
 
 const CENSUS = 'test/fixtures/population/us_census_1790_1950.csv';
@@ -32,8 +33,10 @@ const file = (name: string, content: string | Buffer): string => {
 const json = (args: string[]) => {
   const r = runCli(args);
   expect(r.code, r.stderr).toBe(0);
-  return JSON.parse(r.stdout);
+  return parseResult(r.stdout);
 };
+/** The detail of the only series of a result document. */
+const only = (args: string[]) => json(args).results[0].detail;
 const derived = (doc: { winner: { derived: { name: string; value: unknown }[] } }, name: string) => doc.winner.derived.find((d) => d.name === name)?.value as number;
 
 beforeAll(() => {
@@ -48,14 +51,14 @@ describe('a decennial census (every 10 years)', () => {
     expect(r.stdout).toContain('frequency  every 10 years: 16 of 16 steps are 10 years');
     expect(r.stdout).toContain('span       1790 to 1950 (17 observations, every 10 years)');
     const doc = json(['inspect', CENSUS, '--json']);
-    expect(doc.frequency).toMatchObject({ name: 'yearly', step: 10, cadence: 'every 10 years' });
+    expect(doc.file.frequency).toMatchObject({ name: 'yearly', step: 10, cadence: 'every 10 years' });
   });
 
   it('search gives the logistic law with K and r in the published neighbourhood (Pearl & Reed 1920), on 1790–1910 and on the whole file', () => {
     const lines = readFileSync(CENSUS, 'utf8').trim().split('\n');
     const to1910 = file('census-1910.csv', `${['year,population', ...lines.slice(1).filter((l) => Number(l.split(',')[0]) <= 1910).map((l) => l.split(',').slice(0, 2).join(','))].join('\n')}\n`);
     for (const args of [[to1910], [CENSUS, '--series', POP]]) {
-      const doc = json(['search', ...args, '--json', '--out', join(dir, 'census-search')]);
+      const doc = only(['search', ...args, '--json', '--out', join(dir, 'census-search')]);
       expect(doc.series).toMatchObject({ frequency: 'yearly', step: 10 });
       expect(doc.winner.structure).toMatch(/^ODE in level, quadratic \(logistic-type\)/);
       expect(derived(doc, 'sampling interval')).toBe(10);
@@ -97,7 +100,7 @@ describe('time stamps exported as instants of local midnights', () => {
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toContain('times      date-times; 36 instants at +7:00 to +8:00 h from midnight snapped to it');
     expect(r.stdout).toContain('frequency  monthly: 35 of 35 steps are 1 month');
-    expect(json(['inspect', p, '--json']).time_snapped).toEqual({ moved: 36, min_offset_minutes: 420, max_offset_minutes: 480 });
+    expect(json(['inspect', p, '--json']).file.time_snapped).toEqual({ moved: 36, min_offset_minutes: 420, max_offset_minutes: 480 });
     const f = runCli(['forecast', p, '--out', join(dir, 'orders'), '--no-charts', '--horizon', '2']);
     expect(f.code, f.stderr).toBe(0);
     expect(f.stdout).toMatch(/^2024-01 /m);
@@ -130,8 +133,8 @@ describe('aggregation to a coarser frequency', () => {
     expect(r.stdout).toContain('partial    2020 (6 of 12, dropped), 2023 (10 of 12, dropped)');
     expect(r.stdout).toContain('warning: series "sales": dropped incomplete periods at the ends: 2020 (6 of 12), 2023 (10 of 12)');
     const kept = json(['inspect', p, '--freq', 'yearly', '--partial', 'keep', '--json']);
-    expect(kept.series[0]).toMatchObject({ start: '2020', end: '2023', length: 4 });
-    expect(kept.series[0].partial_periods.map((x: { dropped: boolean }) => x.dropped)).toEqual([false, false]);
+    expect(kept.results[0].detail).toMatchObject({ start: '2020', end: '2023', length: 4 });
+    expect(kept.results[0].detail.partial_periods.map((x: { dropped: boolean }) => x.dropped)).toEqual([false, false]);
   });
 });
 
@@ -168,7 +171,7 @@ describe('--season: one setting for every stage', () => {
 
 describe('the yearly cycle of daily data', () => {
   it('Seattle daily maximum temperature: the yearly cycle (365.25 days) is supported over the weekly season', () => {
-    const doc = json(['search', SEATTLE, '--series', 'temp_max', '--json', '--out', join(dir, 'seattle')]);
+    const doc = only(['search', SEATTLE, '--series', 'temp_max', '--json', '--out', join(dir, 'seattle')]);
     expect(doc.seasons.supported).toBe('yearly');
     expect(doc.seasons.kinds.map((k: { kind: string }) => k.kind)[0]).toBe('yearly');
     expect(doc.seasons.kinds.map((k: { kind: string }) => k.kind).sort()).toEqual(['none', 'season', 'yearly']);
@@ -191,10 +194,10 @@ describe('the yearly cycle of daily data', () => {
       return `${day.toISOString().slice(0, 10)},${400 + weekend + ((i * 37) % 5) * 3}`;
     });
     const p = file('museum-visits.csv', `date,visits\n${rows.join('\n')}\n`);
-    const doc = json(['search', p, '--json', '--out', join(dir, 'museum'), '--families', 'arx']);
+    const doc = only(['search', p, '--json', '--out', join(dir, 'museum'), '--families', 'arx']);
     expect(doc.seasons.supported).toBe('season');
     expect(doc.seasons.kinds.map((k: { kind: string }) => k.kind)).toContain('yearly');
-    expect(doc.seasons.yearlySkipped).toBeNull();
+    expect(doc.seasons.yearly_skipped).toBeNull();
     expect(doc.winner.spec.season).toBe(7);
   });
 });
@@ -213,8 +216,8 @@ describe('decimal commas', () => {
     expect(refused.stderr).toMatch(/column "price" holds decimal commas \(found "3,5"/);
     expect(refused.stderr).toContain('hint: pass --decimal , to read "," as the decimal point');
     const read = json(['inspect', tab, '--decimal', ',', '--json']);
-    expect(read.decimal).toEqual({ mark: ',', source: 'option', columns: [] });
-    expect(read.series[0].stats).toMatchObject({ min: 3.5, max: 3.75 });
+    expect(read.file.decimal).toEqual({ mark: ',', source: 'option', columns: [] });
+    expect(read.results[0].detail.stats).toMatchObject({ min: 3.5, max: 3.75 });
   });
 });
 

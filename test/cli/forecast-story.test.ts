@@ -27,7 +27,7 @@ function run(extra: string[]): { stdout: string; summary: Record<string, any>; m
 describe('certa forecast: the headline is what is forecast', () => {
   it('says when the model beat every baseline, without a warning', () => {
     const { stdout, summary } = run([]);
-    expect(summary.evaluation.beatenByBaseline).toBe(false);
+    expect(summary.evaluation.beaten_by_baseline).toBe(false);
     expect(stdout).toMatch(/^Verdict: the model beat every baseline on the holdout \(MASE /m);
     expect(summary.warnings.some((w: string) => /baseline beat the model/.test(w))).toBe(false);
   });
@@ -41,7 +41,7 @@ describe('certa forecast: the headline is what is forecast', () => {
     expect(point.kind).toBe('combined');
     const total = point.members.reduce((s: number, m: { share: number }) => s + m.share, 0);
     expect(total).toBeCloseTo(1, 9);
-    expect(point.members.find((m: { asserted: boolean }) => m.asserted).share).toBeCloseTo(point.assertedShare, 12);
+    expect(point.members.find((m: { asserted: boolean }) => m.asserted).share).toBeCloseTo(point.asserted_share, 12);
     expect(summary.forecast.bands.method).toBe('calibrated');
     expect(summary.forecast.bands.calibration.origins).toBeGreaterThan(10);
     expect(model.body.meta.point.kind).toBe('combined');
@@ -53,7 +53,7 @@ describe('certa forecast: the headline is what is forecast', () => {
     expect(stdout).toMatch(/^Point forecast: the asserted equation’s own path\./m);
     expect(stdout).not.toMatch(/Point forecast members/);
     expect(summary.forecast.point.kind).toBe('asserted');
-    expect(summary.forecast.point.assertedShare).toBe(1);
+    expect(summary.forecast.point.asserted_share).toBe(1);
     expect(model.body.combination).toBeUndefined();
   });
 
@@ -69,9 +69,9 @@ describe('certa forecast: the headline is what is forecast', () => {
     // With the ARX family alone, the demo's linear trend overshoots the saturating data and the
     // seasonal naive forecast wins the 24-month holdout.
     const { stdout, summary } = run(['--families', 'arx']);
-    expect(summary.evaluation.beatenByBaseline).toBe(true);
-    expect(summary.evaluation.bestBaseline.name).toBe('seasonal-naive');
-    expect(summary.evaluation.bestBaseline.mase).toBeLessThan(summary.evaluation.modelMase);
+    expect(summary.evaluation.beaten_by_baseline).toBe(true);
+    expect(summary.evaluation.best_baseline.name).toBe('seasonal-naive');
+    expect(summary.evaluation.best_baseline.mase).toBeLessThan(summary.evaluation.model_mase);
     expect(summary.warnings.some((w: string) => /^the seasonal-naive baseline beat the model on the holdout: MASE \d/.test(w))).toBe(true);
     expect(stdout).toMatch(/^Verdict: the seasonal-naive baseline beat the model on the holdout/m);
   });

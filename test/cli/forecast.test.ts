@@ -6,6 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ensureBuilt, runCli } from './run-cli.js';
+import { parseResult } from './result.js';
 import { parseModel } from '../../src/store/model-file.js';
 
 const demo = 'datasets/demo/vallmark-heatpumps.csv';
@@ -72,14 +73,16 @@ describe('certa forecast', () => {
     expect(summary.caution).toMatch(/statistical extrapolations/);
   });
 
-  it('--json prints summary.json', () => {
+  it('--json prints the one result document, whose detail is summary.json', () => {
     const out = join(tmp(), 'j');
     const r = runCli(['forecast', ...demoArgs, '--out', out, '--no-charts', '--json', '--holdout', '0', '--horizon', '6']);
     expect(r.code, r.stderr).toBe(0);
-    const doc = JSON.parse(r.stdout);
-    expect(doc.evaluation).toBeNull();
-    expect(doc.forecast.rows.length).toBe(6);
-    expect(r.stdout).toBe(readFileSync(join(out, 'summary.json'), 'utf8'));
+    const doc = parseResult(r.stdout);
+    expect(doc.totals).toEqual({ series: 1, succeeded: 1, failed: 0 });
+    const detail = doc.results[0].detail;
+    expect(detail.evaluation).toBeNull();
+    expect(detail.forecast.rows.length).toBe(6);
+    expect(detail).toEqual(JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8')));
   });
 
   it('takes future inputs from a file and says so', () => {

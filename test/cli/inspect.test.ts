@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ensureBuilt, runCli } from './run-cli.js';
+import { parseResult } from './result.js';
 
 const CO2 = 'node_modules/vega-datasets/data/co2-concentration.csv';
 const DEMO = 'datasets/demo/vallmark-heatpumps.csv';
@@ -20,8 +21,10 @@ describe('certa inspect', () => {
   it('--json gives a stable key order and the same facts', () => {
     const r = runCli(['inspect', CO2, '--json']);
     expect(r.code, r.stderr).toBe(0);
-    const doc = JSON.parse(r.stdout);
-    expect(Object.keys(doc)).toEqual(['file', 'format', 'delimiter', 'sheet', 'sheets', 'decimal', 'rows', 'columns', 'layout', 'time_form', 'time_snapped', 'frequency', 'season', 'aggregated', 'series', 'notes']);
+    const result = parseResult(r.stdout);
+    expect(Object.keys(result)).toEqual(['format', 'version', 'command', 'totals', 'file', 'results']);
+    expect(Object.keys(result.file)).toEqual(['file', 'format', 'delimiter', 'sheet', 'sheets', 'decimal', 'rows', 'columns', 'layout', 'time_form', 'time_snapped', 'frequency', 'season', 'aggregated', 'notes']);
+    const doc = { ...result.file, series: result.results.map((e: { detail: unknown }) => e.detail) };
     expect(Object.keys(doc.series[0])).toEqual(['name', 'start', 'end', 'length', 'observations', 'missing', 'trimmed', 'duplicates', 'filled', 'partial_periods', 'stats', 'inputs']);
     expect(doc.series.map((s: { name: string }) => s.name)).toEqual(['CO2', 'adjusted CO2']);
     expect(doc.series[0].filled.map((p: { time: string }) => p.time)).toEqual(['1958-06', '1958-10', '1964-02', '1964-03', '1964-04']);
@@ -32,7 +35,8 @@ describe('certa inspect', () => {
   it('reads standard input with -', () => {
     const r = runCli(['inspect', '-', '--json', '--inputs', 'subsidy,frost_index'], { stdin: readFileSync(join(process.cwd(), DEMO)) });
     expect(r.code, r.stderr).toBe(0);
-    const doc = JSON.parse(r.stdout);
+    const result = parseResult(r.stdout);
+    const doc = { ...result.file, series: result.results.map((e: { detail: unknown }) => e.detail) };
     expect(doc.file).toBe('-');
     expect(doc.series[0]).toMatchObject({ name: 'installations', start: '2015-01', end: '2024-12', length: 120 });
     expect(doc.series[0].inputs.map((x: { name: string }) => x.name)).toEqual(['subsidy', 'frost_index']);
@@ -41,7 +45,8 @@ describe('certa inspect', () => {
     const { mean, std, min, max } = await import('mathjs');
     const lines = readFileSync(join(process.cwd(), DEMO), 'utf8').trim().split('\n').slice(1);
     const y = lines.map((l) => Number(l.split(',')[1]));
-    const doc = JSON.parse(runCli(['inspect', DEMO, '--json', '--inputs', 'subsidy,frost_index']).stdout);
+    const result = parseResult(runCli(['inspect', DEMO, '--json', '--inputs', 'subsidy,frost_index']).stdout);
+    const doc = { series: result.results.map((e: { detail: unknown }) => e.detail) };
     const s = doc.series[0].stats;
     expect(s.min).toBe(min(y));
     expect(s.max).toBe(max(y));

@@ -3,6 +3,7 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync, readdirSync } fro
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { main, type CliIO } from '../../src/cli/main.js';
+import { parseResult } from './result.js';
 import { readModelFile } from '../../src/store/model-file.js';
 import { structureFromSpec } from '../../src/models/registry.js';
 import { noise, simulateArx } from '../models/arx-fixtures.js';
@@ -68,7 +69,7 @@ describe('certa search', () => {
     const c = capture();
     const code = await main(['node', 'certa', 'search', file, '--inputs', 'price', '--families', 'arx', '--json', '--criterion', 'bic', '--trend', 'off', '--out', join(dir, 'o')], c.io);
     expect(code).toBe(0);
-    const doc = JSON.parse(c.out());
+    const doc = parseResult(c.out()).results[0].detail;
     expect(doc.criterion).toBe('bic');
     expect(doc.ranking.length).toBe(10);
     expect(doc.ranking[0].rank).toBe(1);

@@ -11,6 +11,7 @@ import { acquireLock } from '../../src/store/lock.js';
 import { parseModel, serializeModel } from '../../src/store/model-file.js';
 import { bodyOn, simulateArx } from '../forecast/update-fixtures.js';
 import { ensureBuilt, runCli } from './run-cli.js';
+import { parseResult } from './result.js';
 import { csvRows } from './update-data.js';
 
 let work: string;
@@ -61,7 +62,7 @@ describe('certa update', () => {
     expect(csv[0]).toBe('series,time,kind,value,point,rolling_point,lower_80,upper_80,lower_95,upper_95');
     expect(csv.filter((l) => l.includes(',forecast,'))).toHaveLength(12);
     const summary = JSON.parse(readFileSync(join(dir, 'summary.json'), 'utf8'));
-    expect(summary.update.rowsAdded).toBe(12);
+    expect(summary.update.rows_added).toBe(12);
     expect(summary.files).toEqual(['forecast.csv', 'model.json', 'summary.json']);
 
     const bytes = readFileSync(model, 'utf8');
@@ -85,9 +86,9 @@ describe('certa update', () => {
     expect(readFileSync(model, 'utf8')).toBe(initial);
     const ok = runCli(['update', model, data, '--accept-revisions', '--no-charts', '--json']);
     expect(ok.code).toBe(0);
-    const summary = JSON.parse(ok.stdout);
+    const summary = parseResult(ok.stdout).results[0].detail;
     expect(summary.update.revisions).toEqual([{ time: '2008-02', column: 'sales', found: sim.series.values[97] + 1, expected: sim.series.values[97] }]);
-    expect(summary.update.rowsAdded).toBe(5);
+    expect(summary.update.rows_added).toBe(5);
   });
 
   it('refuses a gap after the model and a file without the model input', () => {

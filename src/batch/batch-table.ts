@@ -1,0 +1,68 @@
+/**
+ * The tables at the top of a batch folder, built from per-series rows:
+ *
+ * - `batch.csv`: one row per series of the run, in the order of the file — its position in the
+ *   file, name, folder (relative to the batch folder; empty when it failed), status (`forecast`
+ *   or `failed`), the reason of a failure, the asserted structure, the holdout MASE of the
+ *   delivered point forecast, the best baseline and its MASE, and the warnings (joined by ` | `).
+ * - `forecasts.csv`: the holdout and forecast rows of every series (tidy: series, time, kind,
+ *   value, point, lower_<level>, upper_<level>), series in the order of batch.csv.
+ * - `batch.json`: what the run covered (how many series the file held, which shard), so that
+ *   `certa merge` can check it was given every shard.
+ *
+ * `BatchRow` is also what a later index page of a batch reads.
+ */
+import { toCsv, toJson, type Cell } from '../report/tables.js';
+import type { Shard } from './shard.js';
+
+export type BatchStatus = 'forecast' | 'failed';
+
+/** One series of a batch, as batch.csv lists it. */
+export interface BatchRow {
+  /** 1-based position of the series in the file (after --series). */
+  position: number;
+  series: string;
+  /** Folder relative to the batch folder; null when the series failed (no folder is left). */
+  folder: string | null;
+  status: BatchStatus;
+  reason: string | null;
+  structure: string | null;
+  holdoutMase: number | null;
+  bestBaseline: string | null;
+  baselineMase: number | null;
+  warnings: string[];
+}
+
+export const BATCH_COLUMNS = ['position', 'series', 'folder', 'status', 'reason', 'structure', 'holdout_mase', 'best_baseline', 'baseline_mase', 'warnings'];
+
+export function batchRecord(r: BatchRow): Cell[] {
+  return [r.position, r.series, r.folder, r.status, r.reason, r.structure, r.holdoutMase, r.bestBaseline, r.baselineMase, r.warnings.length > 0 ? r.warnings.join(' | ') : null];
+}
+
+/** `batch.csv` of rows already in file order. */
+export function batchCsv(rows: readonly BatchRow[]): string {
+  return toCsv(BATCH_COLUMNS, rows.map(batchRecord));
+}
+
+/** The columns of forecasts.csv for these interval levels. */
+export function forecastsColumns(levels: readonly number[]): string[] {
+  return ['series', 'time', 'kind', 'value', 'point', ...levels.flatMap((l) => [`lower_${l}`, `upper_${l}`])];
+}
+
+/** The header record of a CSV with these columns (as toCsv writes it). */
+export function csvHeader(columns: string[]): string {
+  return toCsv(columns, []);
+}
+
+/** The records of one series in forecasts.csv, without the header. */
+export function forecastsRecords(columns: string[], rows: Cell[][]): string {
+  return toCsv(columns, rows).slice(csvHeader(columns).length);
+}
+
+export const BATCH_FORMAT = 'certa-batch';
+export const BATCH_VERSION = 1;
+
+/** `batch.json`: the run's coverage. */
+export function batchManifest(seriesInFile: number, shard: Shard | null, levels: readonly number[]): string {
+  return toJson({ format: BATCH_FORMAT, version: BATCH_VERSION, series_in_file: seriesInFile, shard: shard ? { k: shard.k, n: shard.n } : null, levels: [...levels] });
+}

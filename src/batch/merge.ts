@@ -1,0 +1,155 @@
+/**
+ * `certa merge`: the batch folders of the shards of one file (`--shard k/n`, k = 1 … n) joined
+ * into one batch folder with the same bytes one run over the whole file would have written: the
+ * series folders copied, the records of batch.csv put back in file order, the records of
+ * forecasts.csv grouped by series in that order, batch.json as an unsharded run writes it.
+ *
+ * Checked first, each a one-line error: every folder is a batch folder of the same kind (same
+ * format, number of series in the file, interval levels, table headers), the shards are exactly
+ * 1 … n of one n, no series and no folder appears twice, every series of the file is accounted
+ * for, and the target folder is empty or new.
+ */
+import { promises as fsp } from 'node:fs';
+import { join } from 'node:path';
+import { DataError, UsageError } from '../data/errors.js';
+import { writeFileAtomic } from '../store/atomic.js';
+import { BATCH_FORMAT, BATCH_VERSION, batchManifest } from './batch-table.js';
+import { rawRecords, type RawRecord } from './csv-records.js';
+
+interface Manifest {
+  seriesInFile: number;
+  shard: { k: number; n: number } | null;
+  levels: number[];
+}
+
+const TOP_FILES = new Set(['batch.csv', 'forecasts.csv', 'batch.json']);
+
+async function readText(file: string, what: string): Promise<string> {
+  try {
+    return await fsp.readFile(file, 'utf8');
+  } catch {
+    throw new DataError('merge-missing', `${what} is missing`, { file, expected: 'a batch folder written by certa forecast --shard k/n' });
+  }
+}
+
+async function readManifest(dir: string): Promise<Manifest> {
+  const file = join(dir, 'batch.json');
+  const text = await readText(file, 'batch.json');
+  let doc: Record<string, unknown>;
+  try {
+    doc = JSON.parse(text) as Record<string, unknown>;
+  } catch {
+    throw new DataError('merge-manifest', 'batch.json is not JSON', { file });
+  }
+  const shard = doc.shard as { k?: unknown; n?: unknown } | null | undefined;
+  const ok =
+    doc.format === BATCH_FORMAT &&
+    doc.version === BATCH_VERSION &&
+    Number.isInteger(doc.series_in_file) &&
+    Array.isArray(doc.levels) &&
+    (shard === null || (typeof shard === 'object' && Number.isInteger(shard.k) && Number.isInteger(shard.n)));
+  if (!ok) throw new DataError('merge-manifest', 'batch.json is not a certa batch description', { file, found: `format ${String(doc.format)}, version ${String(doc.version)}`, expected: `format ${BATCH_FORMAT}, version ${BATCH_VERSION}` });
+  return { seriesInFile: doc.series_in_file as number, shard: shard ? { k: shard.k as number, n: shard.n as number } : null, levels: doc.levels as number[] };
+}
+
+/** A temporary file of an atomic write cut short (store/atomic.ts names them `.<name>.<pid>.<n>.tmp`). */
+function isTemporary(name: string): boolean {
+  return /^\..+\.\d+\.\d+\.tmp$/.test(name);
+}
+
+async function copyTree(from: string, to: string): Promise<void> {
+  for (const entry of (await fsp.readdir(from, { withFileTypes: true })).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))) {
+    const src = join(from, entry.name);
+    if (entry.isDirectory()) await copyTree(src, join(to, entry.name));
+    else if (entry.isFile() && !isTemporary(entry.name)) {
+      await writeFileAtomic(join(to, entry.name), await fsp.readFile(src), { mkdir: true });
+    }
+  }
+}
+
+export interface MergeResult {
+  shards: number;
+  series: number;
+  folders: number;
+}
+
+export async function mergeBatches(dirs: readonly string[], out: string): Promise<MergeResult> {
+  if (dirs.length === 0) throw new UsageError('merge-nothing', 'no batch folders to merge', { expected: 'the folders written by certa forecast --shard k/n' });
+  try {
+    const existing = await fsp.readdir(out);
+    if (existing.length > 0) throw new UsageError('merge-target', 'the target folder is not empty', { file: out, expected: 'a new or empty folder for the merged batch' });
+  } catch (e) {
+    if (e instanceof UsageError) throw e;
+  }
+  const manifests = await Promise.all(dirs.map(readManifest));
+  const first = manifests[0];
+  const seen = new Map<number, string>();
+  manifests.forEach((m, i) => {
+    const file = join(dirs[i], 'batch.json');
+    if (m.shard === null) throw new UsageError('merge-unsharded', 'this batch folder is not a shard', { file, expected: 'folders written with --shard k/n' });
+    if (m.shard.n !== first.shard!.n || m.seriesInFile !== first.seriesInFile || JSON.stringify(m.levels) !== JSON.stringify(first.levels)) {
+      throw new UsageError('merge-mismatch', 'this shard is of another run', {
+        file,
+        found: `shard ${m.shard.k}/${m.shard.n} of ${m.seriesInFile} series, levels ${m.levels.join(',')}`,
+        expected: `shards of ${first.shard!.n} over ${first.seriesInFile} series, levels ${first.levels.join(',')}, as in ${join(dirs[0], 'batch.json')}`,
+      });
+    }
+    if (seen.has(m.shard.k)) throw new UsageError('merge-duplicate', `shard ${m.shard.k}/${m.shard.n} is given twice`, { file, found: `${seen.get(m.shard.k)} and ${dirs[i]}` });
+    seen.set(m.shard.k, dirs[i]);
+  });
+  const n = first.shard!.n;
+  const missing = Array.from({ length: n }, (_, j) => j + 1).filter((k) => !seen.has(k));
+  if (missing.length > 0) throw new UsageError('merge-incomplete', `shard${missing.length === 1 ? '' : 's'} ${missing.map((k) => `${k}/${n}`).join(', ')} missing`, { found: `${dirs.length} of ${n} shards`, expected: 'every shard 1 … n' });
+
+  let batchHeader: RawRecord | null = null;
+  let forecastsHeader: RawRecord | null = null;
+  const rows: { position: number; record: RawRecord }[] = [];
+  const groups = new Map<string, string[]>();
+  const folders = new Map<string, string>();
+  for (const dir of dirs) {
+    const batchFile = join(dir, 'batch.csv');
+    const [head, ...records] = rawRecords(await readText(batchFile, 'batch.csv'));
+    if (!head) throw new DataError('merge-empty', 'batch.csv is empty', { file: batchFile });
+    if (batchHeader && head.text !== batchHeader.text) throw new DataError('merge-header', 'batch.csv has another header than the other shards', { file: batchFile, found: head.text.trim() });
+    batchHeader = head;
+    for (const r of records) {
+      const position = Number(r.fields[0]);
+      if (!Number.isInteger(position) || position < 1) throw new DataError('merge-position', 'a batch.csv record has no position', { file: batchFile, found: r.fields[0] });
+      rows.push({ position, record: r });
+    }
+    const forecastsFile = join(dir, 'forecasts.csv');
+    const [fhead, ...frecords] = rawRecords(await readText(forecastsFile, 'forecasts.csv'));
+    if (!fhead) throw new DataError('merge-empty', 'forecasts.csv is empty', { file: forecastsFile });
+    if (forecastsHeader && fhead.text !== forecastsHeader.text) throw new DataError('merge-header', 'forecasts.csv has another header than the other shards', { file: forecastsFile, found: fhead.text.trim() });
+    forecastsHeader = fhead;
+    for (const r of frecords) {
+      const key = r.fields[0];
+      const list = groups.get(key);
+      if (list) list.push(r.text);
+      else groups.set(key, [r.text]);
+    }
+    for (const entry of await fsp.readdir(dir, { withFileTypes: true })) {
+      if (!entry.isDirectory() || TOP_FILES.has(entry.name)) continue;
+      const other = folders.get(entry.name);
+      if (other !== undefined) throw new DataError('merge-folder-twice', `the series folder "${entry.name}" is in two shards`, { found: `${other} and ${dir}`, expected: 'each series in one shard' });
+      folders.set(entry.name, dir);
+    }
+  }
+  rows.sort((a, b) => a.position - b.position);
+  for (let i = 1; i < rows.length; i++) {
+    if (rows[i].position === rows[i - 1].position) throw new DataError('merge-series-twice', `the series at position ${rows[i].position} is in two shards`, { found: rows[i].record.fields[1] });
+  }
+  if (rows.length !== first.seriesInFile) {
+    throw new DataError('merge-count', 'the shards do not hold every series of the file', { found: `${rows.length} series`, expected: `${first.seriesInFile}, as batch.json says` });
+  }
+  let forecasts = forecastsHeader!.text;
+  for (const r of rows) {
+    const list = groups.get(r.record.fields[1]);
+    if (list) forecasts += list.join('');
+  }
+  for (const [name, dir] of [...folders.entries()].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))) await copyTree(join(dir, name), join(out, name));
+  await writeFileAtomic(join(out, 'batch.csv'), batchHeader!.text + rows.map((r) => r.record.text).join(''), { mkdir: true });
+  await writeFileAtomic(join(out, 'forecasts.csv'), forecasts, { mkdir: true });
+  await writeFileAtomic(join(out, 'batch.json'), batchManifest(first.seriesInFile, null, first.levels), { mkdir: true });
+  return { shards: n, series: rows.length, folders: folders.size };
+}

@@ -1,0 +1,84 @@
+/**
+ * A pool of worker threads (node:worker_threads) running series tasks (series-job.ts). Tasks go
+ * out one at a time to whichever worker is free, so a slow series never holds up the others;
+ * outcomes are returned indexed by task, so what the caller writes does not depend on the number
+ * of workers or on which finished first. With one worker the tasks run in this thread (no thread
+ * start-up), through the same job function.
+ *
+ * The worker entry is `worker.js` next to this module in dist/; when this module runs from the
+ * TypeScript sources (tests, benchmarks) it is `worker.ts`, loaded through tsx.
+ */
+import { availableParallelism } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import { runSeriesJob, type JobSettings, type SeriesOutcome, type SeriesTask } from './series-job.js';
+
+export interface PoolOptions {
+  workers: number;
+  /** Called after each outcome, in completion order, with how many are done. */
+  onOutcome?: (outcome: SeriesOutcome, done: number) => void;
+  /** Stop handing out tasks after the first failure (those running still finish). */
+  failFast?: boolean;
+}
+
+/** One worker per core unless told otherwise. */
+export function defaultWorkers(): number {
+  return Math.max(1, availableParallelism());
+}
+
+/** Outcomes by task index; a task never started (after a failure under failFast) is undefined. */
+export async function runPool(tasks: readonly SeriesTask[], settings: JobSettings, options: PoolOptions): Promise<(SeriesOutcome | undefined)[]> {
+  const outcomes: (SeriesOutcome | undefined)[] = new Array(tasks.length).fill(undefined);
+  const count = Math.max(1, Math.min(options.workers, tasks.length));
+  let done = 0;
+  let stop = false;
+  const record = (i: number, outcome: SeriesOutcome): void => {
+    outcomes[i] = outcome;
+    done++;
+    if (outcome.error && options.failFast) stop = true;
+    options.onOutcome?.(outcome, done);
+  };
+  if (count === 1) {
+    for (let i = 0; i < tasks.length && !stop; i++) record(i, await runSeriesJob(tasks[i], settings));
+    return outcomes;
+  }
+  const entry = import.meta.url.endsWith('.ts') ? new URL('./worker.ts', import.meta.url) : new URL('./worker.js', import.meta.url);
+  const execArgv = import.meta.url.endsWith('.ts') ? ['--import', 'tsx'] : [];
+  let next = 0;
+  await new Promise<void>((resolve, reject) => {
+    const workers: Worker[] = [];
+    let running = 0;
+    let settled = false;
+    const finish = (error?: Error): void => {
+      if (settled) return;
+      settled = true;
+      for (const w of workers) void w.terminate();
+      if (error) reject(error);
+      else resolve();
+    };
+    const feed = (w: Worker, slot: { task: number }): void => {
+      if (stop || next >= tasks.length) {
+        if (running === 0) finish();
+        return;
+      }
+      slot.task = next++;
+      running++;
+      w.postMessage(tasks[slot.task]);
+    };
+    for (let k = 0; k < count; k++) {
+      const w = new Worker(entry, { workerData: settings, execArgv });
+      const slot = { task: -1 };
+      workers.push(w);
+      w.on('message', (outcome: SeriesOutcome) => {
+        running--;
+        record(slot.task, outcome);
+        feed(w, slot);
+      });
+      w.on('error', (e) => finish(e instanceof Error ? e : new Error(String(e))));
+      w.on('exit', (code) => {
+        if (code !== 0 && !settled) finish(new Error(`a batch worker stopped with code ${code}`));
+      });
+      feed(w, slot);
+    }
+  });
+  return outcomes;
+}

@@ -1,0 +1,119 @@
+/**
+ * One series of a batch, start to end: forecast it, write its folder, and return what the batch
+ * tables need. Runs the same in a worker thread (worker.ts) and in the main thread (one worker).
+ * A failure is an outcome, not an exception: the folder this job created is removed again, so no
+ * folder is left for a failed series.
+ */
+import { existsSync, rmSync } from 'node:fs';
+import { isCertaError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import { forecastTable } from '../report/forecast-report.js';
+import { summaryDocument } from '../report/result-json.js';
+import { parseForecastOptions, runForecast } from '../cli/forecast.js';
+import type { CliIO } from '../cli/main.js';
+import { forecastsColumns, forecastsRecords, type BatchRow } from './batch-table.js';
+
+export interface SeriesTask {
+  position: number;
+  series: Series;
+  /** Where the folder is written (the batch folder joined with the folder name). */
+  path: string;
+  /** The folder name, relative to the batch folder. */
+  folder: string;
+}
+
+export interface JobSettings {
+  /** The command's parsed commander options (parsed again here, so workers need nothing else). */
+  opts: Record<string, unknown>;
+  /** Notes from loading the file (each series' summary lists them, as for one series). */
+  loadNotes: string[];
+  /** Keep the summary document (as summary.json holds it) for --json. */
+  keepSummary: boolean;
+}
+
+/** A failure as data (it crosses from a worker thread as a plain object). */
+export interface JobError {
+  code: string;
+  message: string;
+  line: string;
+  hint: string | null;
+  exitCode: number;
+  /** True for a bug (not a CertaError). */
+  internal: boolean;
+}
+
+export interface SeriesOutcome {
+  row: BatchRow;
+  /** forecasts.csv records of this series (no header); '' when it failed. */
+  forecasts: string;
+  /** The forecasts.csv columns this series used (levels as the run resolved them). */
+  columns: string[] | null;
+  summary: Record<string, unknown> | null;
+  error: JobError | null;
+}
+
+const quietIO: CliIO = {
+  out: () => undefined,
+  err: () => undefined,
+  stdin: () => Promise.reject(new Error('standard input is read by the main thread only')),
+  isTTY: false,
+};
+
+/** Warnings of one series: those of its run and the load notes that name it. */
+function seriesWarnings(name: string, runWarnings: string[], notes: string[]): string[] {
+  const tag = `series "${name}"`;
+  return [...notes.filter((n) => n.includes(tag)).map((n) => n.replace(/^warning: /, '')), ...runWarnings];
+}
+
+export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Promise<SeriesOutcome> {
+  const existed = existsSync(task.path);
+  const base: BatchRow = {
+    position: task.position,
+    series: task.series.name,
+    folder: null,
+    status: 'failed',
+    reason: null,
+    structure: null,
+    holdoutMase: null,
+    bestBaseline: null,
+    baselineMase: null,
+    warnings: [],
+  };
+  try {
+    const cli = parseForecastOptions(settings.opts);
+    const { run, summary } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
+    const table = forecastTable(run);
+    const columns = forecastsColumns(run.levels);
+    const pick = [0, 1, 2, 3, 4, ...run.levels.flatMap((_, j) => [6 + 2 * j, 7 + 2 * j])];
+    const rows = table.rows.filter((r) => r[2] === 'holdout' || r[2] === 'forecast').map((r) => pick.map((j) => r[j]));
+    const verdict = run.evaluation?.verdict ?? null;
+    return {
+      row: {
+        ...base,
+        folder: task.folder,
+        status: 'forecast',
+        structure: run.asserted.structure.label,
+        holdoutMase: verdict ? verdict.modelMase : null,
+        bestBaseline: verdict ? verdict.baseline : null,
+        baselineMase: verdict ? verdict.baselineMase : null,
+        warnings: seriesWarnings(task.series.name, run.warnings, settings.loadNotes),
+      },
+      forecasts: forecastsRecords(columns, rows),
+      columns,
+      summary: settings.keepSummary ? summaryDocument('forecast', summary) : null,
+      error: null,
+    };
+  } catch (e) {
+    if (!existed) rmSync(task.path, { recursive: true, force: true });
+    const error = jobError(e);
+    return { row: { ...base, reason: error.line }, forecasts: '', columns: null, summary: null, error };
+  }
+}
+
+function jobError(e: unknown): JobError {
+  if (isCertaError(e)) {
+    return { code: e.code, message: e.message, line: e.line(), hint: e.context.hint ?? null, exitCode: e.exitCode, internal: false };
+  }
+  const err = e instanceof Error ? e : new Error(String(e));
+  return { code: 'internal', message: err.message, line: `internal error: ${err.message}`, hint: null, exitCode: 1, internal: true };
+}

@@ -1,0 +1,124 @@
+/**
+ * The batch side of `certa forecast`: options (--workers, --shard, --fail-fast, --quiet), the run
+ * (batch/run.ts), and what a person reads — one line per series, totals, the caution once, each
+ * failure also on standard error — or the one JSON result document. Exit code 4 when some series
+ * failed (1 when a failure was a bug), so a scheduler sees it; `--fail-fast` stops at the first
+ * failure with that series' error instead, as a run over one series would.
+ */
+import type { Command } from 'commander';
+import { UsageError } from '../data/errors.js';
+import type { Series } from '../data/series.js';
+import { defaultWorkers } from '../batch/pool.js';
+import { outcomeError, runBatch } from '../batch/run.js';
+import { parseShard, type Shard } from '../batch/shard.js';
+import type { BatchRow } from '../batch/batch-table.js';
+import { FORECAST_CAUTION } from '../report/cautions.js';
+import { resultDocument, type ResultEntry } from '../report/result-json.js';
+import { toJson } from '../report/tables.js';
+import { BatchProgress } from './progress.js';
+import { ExitRequest, type CliIO } from './main.js';
+import type { parseForecastOptions } from './forecast.js';
+
+/** Exit code of a batch in which some series failed (the others were completed). */
+export const EXIT_SOME_FAILED = 4;
+
+export interface CliBatchOptions {
+  workers: number;
+  shard: Shard | null;
+  failFast: boolean;
+  quiet: boolean;
+}
+
+export function addBatchOptions(command: Command): Command {
+  return command
+    .option('--workers <n>', 'worker threads for a file of several series (default: one per core); the output does not depend on it')
+    .option('--shard <k/n>', 'process only shard k of n (by a stable hash of the series name), for array jobs; join them with certa merge')
+    .option('--fail-fast', 'stop at the first series that cannot be forecast (default: report it and go on, exit code 4)')
+    .option('--quiet', 'print nothing on standard output (files, failures on standard error and the exit code still tell)');
+}
+
+export function parseBatchOptions(opts: Record<string, unknown>): CliBatchOptions {
+  let workers = defaultWorkers();
+  if (opts.workers !== undefined) {
+    const raw = String(opts.workers).trim();
+    if (!/^\d+$/.test(raw) || Number(raw) < 1 || Number(raw) > 256) {
+      throw new UsageError('option-invalid', 'option --workers has an unusable value', { found: raw, expected: 'a whole number from 1 to 256' });
+    }
+    workers = Number(raw);
+  }
+  return { workers, shard: opts.shard !== undefined ? parseShard(opts.shard) : null, failFast: Boolean(opts.failFast), quiet: Boolean(opts.quiet) };
+}
+
+function fixed(x: number | null): string {
+  return x === null ? '—' : x.toFixed(3);
+}
+
+/** A failure's line, naming the series unless the message already does. */
+export function failureText(series: string, line: string): string {
+  return line.includes(`series "${series}"`) ? line : `series "${series}": ${line}`;
+}
+
+/** The line of one series in the text summary of a batch. */
+export function batchLine(r: BatchRow): string {
+  if (r.status === 'failed') return `failed    ${r.series}: ${r.reason ?? ''}`;
+  const verdict = r.holdoutMase === null ? 'no holdout' : `holdout MASE ${fixed(r.holdoutMase)}, best baseline ${r.bestBaseline} ${fixed(r.baselineMase)}`;
+  const warn = r.warnings.length > 0 ? `; ${r.warnings.length} warning${r.warnings.length === 1 ? '' : 's'}` : '';
+  return `forecast  ${r.series}: ${r.structure}; ${verdict}${warn} → ${r.folder}`;
+}
+
+export async function runForecastBatch(
+  series: Series[],
+  loadNotes: string[],
+  cli: ReturnType<typeof parseForecastOptions>,
+  batch: CliBatchOptions,
+  opts: Record<string, unknown>,
+  io: CliIO,
+): Promise<void> {
+  const out = cli.out ?? 'output';
+  let progress: BatchProgress | null = null;
+  const result = await runBatch(series, {
+    out,
+    workers: batch.workers,
+    shard: batch.shard,
+    failFast: batch.failFast,
+    levels: cli.forecast.levels ?? [80, 95],
+    settings: { opts, loadNotes, keepSummary: cli.json },
+    onStart: (total) => {
+      if (!batch.quiet) progress = new BatchProgress(io, total);
+    },
+    onOutcome: (o, done) => {
+      if (o.error) {
+        progress?.stop();
+        io.err(`certa: ${failureText(o.row.series, o.error.line)}\n`);
+      }
+      progress?.update(done);
+    },
+  });
+  (progress as BatchProgress | null)?.stop();
+  if (result.stoppedBy) throw outcomeError(result.stoppedBy);
+  const rows = result.rows;
+  const failed = rows.filter((r) => r.status === 'failed');
+  if (cli.json) {
+    const entries: ResultEntry[] = result.outcomes.map((o) => ({
+      series: o.row.series,
+      status: o.row.status === 'failed' ? 'failed' : 'ok',
+      folder: o.row.folder,
+      reason: o.row.reason,
+      detail: o.summary,
+    }));
+    io.out(toJson(resultDocument('forecast', entries)));
+  } else if (!batch.quiet) {
+    const lines = rows.map(batchLine);
+    const shard = batch.shard ? ` (shard ${batch.shard.k} of ${batch.shard.n} of ${series.length} series in the file)` : '';
+    lines.push('');
+    lines.push(`${rows.length} series${shard}: ${rows.length - failed.length} forecast, ${failed.length} failed`);
+    lines.push(`Wrote ${result.tables.join(', ')} and one folder per forecast series to ${out}`);
+    lines.push('');
+    lines.push(FORECAST_CAUTION);
+    io.out(`${lines.join('\n')}\n`);
+  }
+  if (failed.length > 0) {
+    if (batch.quiet || cli.json) io.err(`certa: ${failed.length} of ${rows.length} series failed (see batch.csv in ${out})\n`);
+    throw new ExitRequest(result.outcomes.some((o) => o.error?.internal) ? 1 : EXIT_SOME_FAILED);
+  }
+}

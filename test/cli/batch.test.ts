@@ -1,0 +1,181 @@
+/**
+ * Batches through the built CLI: a long-layout file of invented monthly kiosk sales of the
+ * Corvel district, with names that used to collide or escape and one series too short to fit.
+ * Checks keep-going (exit 4, batch.csv, stderr, no folder for the failed series), --fail-fast,
+ * folder names, output independent of the worker count, shards merged equal to one run byte
+ * for byte, the --json result shape, --series lists and globs, and --quiet.
+ */
+import { mkdtempSync, readdirSync, readFileSync, statSync, writeFileSync, existsSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, relative } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { folderNames } from '../../src/batch/folder-names.js';
+import { rawRecords } from '../../src/batch/csv-records.js';
+import { ensureBuilt, runCli } from './run-cli.js';
+import { parseResult } from './result.js';
+
+const NAMES = ['kiosk-1', 'a b', 'a_b', 'a/b', '../x', 'CON', 'short', 'kiosk-2'];
+let dir: string;
+let file: string;
+
+/** Seeded linear congruential noise (Numerical Recipes constants), so the file is the same every run. */
+function noise(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    return s / 2 ** 32 - 0.5;
+  };
+}
+
+function writeFile(): string {
+  const rows = ['kiosk,month,sales'];
+  NAMES.forEach((name, k) => {
+    const n = name === 'short' ? 4 : 36;
+    const r = noise(100 + k);
+    for (let t = 0; t < n; t++) {
+      const y = 80 + 6 * k + 0.4 * t + 7 * Math.sin((2 * Math.PI * t) / 12) + 3 * r();
+      rows.push(`"${name}",${2021 + Math.floor(t / 12)}-${String((t % 12) + 1).padStart(2, '0')},${y.toFixed(2)}`);
+    }
+  });
+  const p = join(dir, 'kiosks.csv');
+  writeFileSync(p, `${rows.join('\n')}\n`);
+  return p;
+}
+
+/** Every file under `root` by relative path, with its bytes. */
+function tree(root: string): Map<string, string> {
+  const out = new Map<string, string>();
+  const walk = (d: string): void => {
+    for (const e of readdirSync(d).sort()) {
+      const p = join(d, e);
+      if (statSync(p).isDirectory()) walk(p);
+      else out.set(relative(root, p), readFileSync(p).toString('base64'));
+    }
+  };
+  walk(root);
+  return out;
+}
+
+const base = () => ['forecast', file, '--id', 'kiosk', '--no-charts', '--horizon', '6'];
+
+beforeAll(() => {
+  ensureBuilt();
+  process.env.SOURCE_DATE_EPOCH = '1700000000';
+  dir = mkdtempSync(join(tmpdir(), 'certa-batch-'));
+  file = writeFile();
+});
+
+describe('certa forecast on a file of several series', () => {
+  it('keeps going past a series that cannot be forecast: exit 4, batch.csv, stderr, no folder left for it', () => {
+    const out = join(dir, 'keep');
+    const r = runCli([...base(), '--out', out]);
+    expect(r.code, r.stderr).toBe(4);
+    expect(r.stderr).toMatch(/^certa: series "short" has 4 points/m);
+    const folders = folderNames(NAMES);
+    const shortFolder = folders[NAMES.indexOf('short')];
+    expect(existsSync(join(out, shortFolder))).toBe(false);
+    const listed = readdirSync(out).sort();
+    expect(listed).toEqual([...folders.filter((f) => f !== shortFolder), 'batch.csv', 'batch.json', 'forecasts.csv'].sort());
+    for (const f of folders.filter((x) => x !== shortFolder)) expect(existsSync(join(out, f, 'forecast.csv'))).toBe(true);
+
+    const batch = rawRecords(readFileSync(join(out, 'batch.csv'), 'utf8'));
+    expect(batch[0].text).toBe('position,series,folder,status,reason,structure,holdout_mase,best_baseline,baseline_mase,warnings\r\n');
+    expect(batch.slice(1).map((x) => x.fields[3])).toEqual(NAMES.map((n) => (n === 'short' ? 'failed' : 'forecast')));
+    expect(batch.slice(1).map((x) => Number(x.fields[0]))).toEqual(NAMES.map((_, i) => i + 1));
+    const failed = batch.find((x) => x.fields[1] === 'short')!;
+    expect(failed.fields[2]).toBe('');
+    expect(failed.fields[4]).toMatch(/4 points/);
+    for (const x of batch.slice(1).filter((y) => y.fields[3] === 'forecast')) expect(Number(x.fields[6])).toBeGreaterThan(0);
+
+    // forecasts.csv: holdout and forecast rows of every forecast series, in file order.
+    const fc = rawRecords(readFileSync(join(out, 'forecasts.csv'), 'utf8'));
+    expect(fc[0].text).toBe('series,time,kind,value,point,lower_80,upper_80,lower_95,upper_95\r\n');
+    const order = [...new Set(fc.slice(1).map((x) => x.fields[0]))];
+    expect(order).toEqual(['kiosk-1', 'a b', 'a_b', 'a/b', '../x', 'CON', 'kiosk-2']);
+    expect(fc.slice(1).filter((x) => x.fields[0] === 'kiosk-1' && x.fields[2] === 'forecast')).toHaveLength(6);
+
+    // The text: one line per series, totals, the caution once.
+    const lines = r.stdout.trim().split('\n');
+    expect(lines.slice(0, NAMES.length).map((l) => l.split(/\s+/)[0])).toEqual(NAMES.map((n) => (n === 'short' ? 'failed' : 'forecast')));
+    expect(r.stdout).toContain('8 series: 7 forecast, 1 failed');
+    expect(r.stdout.match(/statistical extrapolations/g)).toHaveLength(1);
+  });
+
+  it('gives "a b", "a_b" and "a/b" three folders, each summary naming its own series', () => {
+    const out = join(dir, 'keep');
+    const [f1, f2, f3] = folderNames(['a b', 'a_b', 'a/b']);
+    expect(f2).toBe('a_b');
+    for (const [f, name] of [[f1, 'a b'], [f2, 'a_b'], [f3, 'a/b']]) {
+      const summary = JSON.parse(readFileSync(join(out, f, 'summary.json'), 'utf8'));
+      expect(summary.series.name).toBe(name);
+      expect(summary.out_dir).toBe(f);
+    }
+    expect(existsSync(join(dir, 'x'))).toBe(false);
+  });
+
+  it('--fail-fast stops at the failure with its one certa: line and exit 2, writing no tables', () => {
+    const out = join(dir, 'fast');
+    const r = runCli([...base(), '--out', out, '--fail-fast', '--series', 'short,kiosk-2', '--workers', '1']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/^certa: series "short" has 4 points/);
+    expect(existsSync(join(out, 'batch.csv'))).toBe(false);
+  });
+
+  it('writes the same bytes with 1 and 2 workers', () => {
+    const one = join(dir, 'w1');
+    const two = join(dir, 'w2');
+    expect(runCli([...base(), '--out', one, '--workers', '1', '--quiet']).code).toBe(4);
+    expect(runCli([...base(), '--out', two, '--workers', '2', '--quiet']).code).toBe(4);
+    const a = tree(one);
+    expect(a.size).toBeGreaterThan(30);
+    expect(tree(two)).toEqual(a);
+  });
+
+  it('shards 1/3, 2/3, 3/3 merged equal one run byte for byte; merge refuses a missing shard', () => {
+    const one = join(dir, 'w1');
+    const shards = [1, 2, 3].map((k) => join(dir, `shard-${k}`));
+    const seen: string[] = [];
+    shards.forEach((s, i) => {
+      const r = runCli([...base(), '--out', s, '--shard', `${i + 1}/3`]);
+      expect([0, 4]).toContain(r.code);
+      seen.push(...rawRecords(readFileSync(join(s, 'batch.csv'), 'utf8')).slice(1).map((x) => x.fields[1]));
+    });
+    expect(seen.length).toBe(NAMES.length);
+    const merged = join(dir, 'merged');
+    const m = runCli(['merge', shards[2], shards[0], shards[1], '--out', merged]);
+    expect(m.code, m.stderr).toBe(0);
+    expect(tree(merged)).toEqual(tree(one));
+
+    const missing = runCli(['merge', shards[0], shards[1], '--out', join(dir, 'merged-2')]);
+    expect(missing.code).toBe(2);
+    expect(missing.stderr).toMatch(/^certa: shard 3\/3 missing/);
+    const full = runCli(['merge', ...shards, '--out', merged]);
+    expect(full.code).toBe(2);
+    expect(full.stderr).toMatch(/target folder is not empty/);
+  });
+
+  it('--json prints one result document for the batch, failures with their reason', () => {
+    const r = runCli([...base(), '--out', join(dir, 'json'), '--json', '--series', 'kiosk-*,short']);
+    expect(r.code).toBe(4);
+    const doc = parseResult(r.stdout);
+    expect(doc.command).toBe('forecast');
+    expect(doc.totals).toEqual({ series: 3, succeeded: 2, failed: 1 });
+    expect(doc.results.map((e: { series: string }) => e.series)).toEqual(['kiosk-1', 'short', 'kiosk-2']);
+    const short = doc.results[1];
+    expect(short).toMatchObject({ status: 'failed', folder: null, detail: null });
+    expect(short.reason).toMatch(/4 points/);
+    expect(doc.results[0].detail.format).toBe('certa-summary');
+  });
+
+  it('--series takes a list and globs, in file order, and names a pattern that matches nothing', () => {
+    const out = join(dir, 'pick');
+    const r = runCli([...base(), '--out', out, '--series', 'kiosk-2,a?b', '--quiet']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toBe('');
+    const rows = rawRecords(readFileSync(join(out, 'batch.csv'), 'utf8')).slice(1);
+    expect(rows.map((x) => x.fields[1])).toEqual(['a b', 'a_b', 'a/b', 'kiosk-2']);
+    const none = runCli([...base(), '--series', 'west*']);
+    expect(none.code).toBe(2);
+    expect(none.stderr).toMatch(/^certa: .*no series matches the pattern "west\*"/);
+  });
+});
