@@ -2,7 +2,8 @@
  * `certa forecast <file>`: the main job. Searches structures on the training part, evaluates the
  * winner on the holdout (fixed origin and rolling origin with online learning, against naive
  * baselines), asserts it refitted on all data, forecasts with prediction intervals, and writes
- * forecast.csv, metrics.csv, candidates.csv, model.json, summary.json and charts into `--out`.
+ * forecast.csv, metrics.csv, candidates.csv, model.json, summary.json, charts and report.html into
+ * `--out`.
  */
 import type { Command } from 'commander';
 import { join } from 'node:path';
@@ -13,6 +14,7 @@ import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forec
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
 import { forecastCharts, forecastFiles, forecastSummary, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
+import { forecastHtml } from '../report/html-report.js';
 import { writeModelFile } from '../store/model-file.js';
 import { modelBody, storedCombination } from '../store/asserted.js';
 import { replacesOwn } from '../forecast/combine.js';
@@ -41,6 +43,7 @@ export function addForecastOptions(command: Command): Command {
     .option('--window <n>', 'raw observations kept in model.json for later re-searches (default 240)')
     .option('--out <folder>', 'output folder: of the series when the file holds one (default output/<series>); of the batch when it holds several, one folder per series inside (default output)')
     .option('--no-charts', 'do not render PNG charts')
+    .option('--no-report', 'do not write report.html')
     .option('--json', 'print summary.json instead of the text summary');
 }
 
@@ -63,6 +66,8 @@ interface CliForecastOptions {
   out?: string;
   charts: boolean;
   json: boolean;
+  /** Write report.html (`--no-report` turns it off). */
+  report?: boolean;
 }
 
 function num(option: string, raw: unknown, check: (v: number) => boolean, expected: string, integer = true): number {
@@ -98,6 +103,7 @@ export function parseForecastOptions(opts: Record<string, unknown>): CliForecast
     f.point = p;
   }
   const out: CliForecastOptions = { forecast: f, charts: opts.charts !== false, json: Boolean(opts.json) };
+  out.report = opts.report !== false;
   if (opts.window !== undefined) out.window = num('--window', opts.window, (v) => v >= 10 && v <= 1_000_000, 'a whole number of observations ≥ 10');
   if (opts.future !== undefined) out.future = String(opts.future);
   if (opts.out !== undefined) out.out = String(opts.out);
@@ -141,9 +147,10 @@ export async function runForecast(
   }
   const files: Record<string, string | Uint8Array> = { ...forecastFiles(run) };
   if (cli.charts) Object.assign(files, forecastCharts(run));
-  const names = [...Object.keys(files), 'model.json', 'summary.json'].sort();
+  const names = [...Object.keys(files), 'model.json', 'summary.json', ...(cli.report !== false ? ['report.html'] : [])].sort();
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
   files['summary.json'] = summaryJson(summaryDocument('forecast', summary));
+  if (cli.report !== false) files['report.html'] = forecastHtml(run, summary);
   await writeFiles(folder, files);
   const a = run.asserted;
   const story = runStory(run);

@@ -1,31 +1,34 @@
 /**
- * The look of every certa chart: colours, line widths, font sizes. One place, so all charts
- * of a report read as a set.
+ * The look of every certa chart: colours, line widths, font sizes. One place, so the PNG charts
+ * and the HTML report read as a set.
  *
- * Colours: a dark slate for what was observed, teal for what a model fitted, burnt orange for
- * what it forecasts (its intervals as translucent orange), plum for a second forecast, a raspberry
- * red for reference bounds, on white with light grey grid lines.
+ * Colours: ink blue-black for what was observed, olive for what a model fitted, indigo for what
+ * it forecasts. The interval bands: the inner level (50 % by default) as an indigo fill, the
+ * outer level (90 %) as dashed indigo edges without fill, so the two never blur into one fan.
+ * Magenta for a second forecast, amber for reference bounds, on white with light grid lines.
  */
 
 export const palette = {
   background: '#ffffff',
-  text: '#2b2d42',
-  mutedText: '#5c6170',
-  grid: '#e6e8ee',
-  axis: '#b8bcc8',
-  observed: '#2b2d42',
-  fitted: '#0f8b8d',
-  forecast: '#d9731a',
-  /** Interval bands, inner (e.g. 80 %) then outer (e.g. 95 %). */
-  bands: ['rgba(217, 115, 26, 0.34)', 'rgba(217, 115, 26, 0.17)'] as const,
-  second: '#7b3fa0',
-  bound: '#b23a48',
-  marker: '#8b919e',
-  holdoutShade: 'rgba(43, 45, 66, 0.045)',
-  bar: '#0f8b8d',
-  bestBar: '#d9731a',
+  text: '#1f2a36',
+  mutedText: '#5d6b78',
+  grid: '#e9ecef',
+  axis: '#b9c1c9',
+  observed: '#1f2a36',
+  fitted: '#6b8e23',
+  forecast: '#3b4cc0',
+  /** Fill of the innermost interval band; further levels reuse the last entry. */
+  bands: ['rgba(59, 76, 192, 0.26)', 'rgba(59, 76, 192, 0.26)'] as const,
+  /** Edges of the outer interval bands (dashed lines, no fill). */
+  bandEdge: '#5f6fd6',
+  second: '#b0306a',
+  bound: '#b86e00',
+  marker: '#98a2ad',
+  holdoutShade: 'rgba(31, 42, 54, 0.045)',
+  bar: '#93a5b8',
+  bestBar: '#3b4cc0',
   /** Further lines, in order, when a chart shows more series than the named roles. */
-  cycle: ['#d9731a', '#7b3fa0', '#2f6fb3', '#b23a48', '#5a8f29', '#0f8b8d'] as const,
+  cycle: ['#3b4cc0', '#b0306a', '#6b8e23', '#b86e00', '#127a8a', '#5b3a8c'] as const,
 } as const;
 
 export const look = {

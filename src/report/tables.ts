@@ -30,16 +30,33 @@ export function formatNumber(x: number): string {
 }
 
 /**
- * One CSV field, RFC 4180 section 2: a field containing a comma, a double quote, CR or LF is
- * enclosed in double quotes, with each inner double quote doubled. Missing (null, NaN) is the
- * empty field; an empty string is written `""` so it stays distinguishable from missing.
+ * Whether text would be read as a formula by a spreadsheet: it starts with `=`, `+`, `-`, `@`,
+ * a tab or a carriage return (the characters a spreadsheet treats as the start of a formula or
+ * strips before one; OWASP, "CSV Injection"), and it is not a plain decimal number such as
+ * `-12.5` or `+3e4` (which a spreadsheet reads as that number, never as a formula).
+ */
+export function readsAsFormula(text: string): boolean {
+  if (!/^[=+\-@\t\r]/.test(text)) return false;
+  return !/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(text);
+}
+
+/**
+ * One CSV field, RFC 4180 section 2, with text neutralised against formula injection first:
+ * text for which `readsAsFormula` holds gets a leading apostrophe (`=SUM(A1)` is written
+ * `'=SUM(A1)`), which a spreadsheet shows as text and does not evaluate. Numbers (`Cell` of type
+ * number) are never altered, so `-3.5` stays `-3.5`. Then a field containing a comma, a double
+ * quote, CR or LF is enclosed in double quotes, with each inner double quote doubled. Missing
+ * (null, NaN) is the empty field; an empty string is written `""` so it stays distinguishable
+ * from missing.
+ * @example csvField('=1+2') === "'=1+2"; csvField(-2) === '-2'; csvField('a"b') === '"a""b"'
  */
 export function csvField(value: Cell): string {
   if (value === null) return '';
   if (typeof value === 'number') return formatNumber(value);
   if (value === '') return '""';
-  if (/[",\r\n]/.test(value)) return `"${value.replace(/"/g, '""')}"`;
-  return value;
+  const text = readsAsFormula(value) ? `'${value}` : value;
+  if (/[",\r\n]/.test(text)) return `"${text.replace(/"/g, '""')}"`;
+  return text;
 }
 
 export interface CsvOptions {

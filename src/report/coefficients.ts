@@ -1,0 +1,34 @@
+/**
+ * The coefficient table of an asserted equation: one row per term with its estimate, standard
+ * error and a normal-approximation interval estimate ± z·se at the given level (90 % unless
+ * told). The equation itself prints the coefficients inline without their errors; this table
+ * carries the uncertainty, in text, summary.json and the HTML report alike.
+ */
+import { normalQuantile } from '../forecast/normal.js';
+
+/** The level of the coefficient intervals, percent. */
+export const COEFFICIENT_LEVEL = 90;
+
+export interface CoefficientRow {
+  term: string;
+  estimate: number;
+  se: number;
+  lower: number;
+  upper: number;
+  /** False for a term the estimation left out (its estimate and se are 0). */
+  active: boolean;
+}
+
+/**
+ * Rows of the coefficient table: lower/upper = estimate ∓ z·se with z = Φ⁻¹(1/2 + level/200)
+ * (1.645 at 90 %); a non-finite se gives NaN bounds.
+ * @example coefficientRows(['c'], [2], [0.5], [true])[0].upper ≈ 2.822
+ */
+export function coefficientRows(terms: readonly string[], theta: ArrayLike<number>, se: ArrayLike<number>, active: ArrayLike<boolean>, level = COEFFICIENT_LEVEL): CoefficientRow[] {
+  const z = normalQuantile(0.5 + level / 200);
+  return terms.map((term, j) => {
+    const s = se[j];
+    const ok = Number.isFinite(s);
+    return { term, estimate: theta[j], se: s, lower: ok ? theta[j] - z * s : Number.NaN, upper: ok ? theta[j] + z * s : Number.NaN, active: Boolean(active[j]) };
+  });
+}

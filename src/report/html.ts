@@ -1,0 +1,104 @@
+/**
+ * Building blocks of certa's HTML pages: escaping, data for inline scripts, the inlined chart
+ * library, and the page shell with its style sheet. Every page is one self-contained file: no
+ * request leaves it (scripts, styles and data inline; no fonts, images or links to fetch).
+ */
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+
+const ESCAPES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
+
+/**
+ * Text for HTML element content or a quoted attribute value: `& < > " '` as character
+ * references, so input text (series names, column names, warnings) shows as text, never markup.
+ * @example escapeHtml('<img src=x>') === '&lt;img src=x&gt;'
+ */
+export function escapeHtml(text: string): string {
+  return text.replace(/[&<>"']/g, (c) => ESCAPES[c]);
+}
+
+/**
+ * JSON for an inline `<script type="application/json">` element: canonical `JSON.stringify`
+ * output with `<`, `>`, `&` and the line separators U+2028/U+2029 written as `\uXXXX` escapes,
+ * so no input text can close the element or start markup; `JSON.parse` of the element's text
+ * gives the value back. Non-finite numbers become null (JSON cannot hold them).
+ */
+export function scriptJson(value: unknown): string {
+  return JSON.stringify(value, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v))
+    .replace(/</g, '\\u003c')
+    .replace(/>/g, '\\u003e')
+    .replace(/&/g, '\\u0026')
+    .replace(/\u2028/g, '\\u2028')
+    .replace(/\u2029/g, '\\u2029');
+}
+
+let chartLibrary: string | null = null;
+
+/**
+ * The browser build of Chart.js (its minified UMD file, from the installed chart.js package),
+ * read once per process. It holds no `</script`, so it can be inlined as is (checked).
+ */
+export function chartLibraryScript(): string {
+  if (chartLibrary !== null) return chartLibrary;
+  const require = createRequire(import.meta.url);
+  const file = join(dirname(require.resolve('chart.js')), 'chart.umd.min.js');
+  const text = readFileSync(file, 'utf8');
+  if (/<\/script/i.test(text)) throw new Error(`chart library ${file} contains </script and cannot be inlined`);
+  chartLibrary = text;
+  return text;
+}
+
+/** The style sheet every certa page shares. */
+export const PAGE_STYLE = `
+:root { --ink: #1f2a36; --muted: #5d6b78; --rule: #d9dee3; --paper: #fbfaf7; --card: #ffffff;
+  --accent: #3b4cc0; --warn: #9a4b00; --good: #2f6f3e; --bad: #a3262a; }
+* { box-sizing: border-box; }
+body { margin: 0; background: var(--paper); color: var(--ink);
+  font: 15px/1.5 system-ui, -apple-system, "Segoe UI", Roboto, "DejaVu Sans", sans-serif; }
+main { max-width: 1100px; margin: 0 auto; padding: 20px 24px 48px; }
+header.top { border-bottom: 3px solid var(--accent); padding-bottom: 10px; margin-bottom: 16px; }
+h1 { font-size: 24px; margin: 0 0 4px; overflow-wrap: anywhere; }
+h2 { font-size: 18px; margin: 0 0 8px; }
+h3 { font-size: 15px; margin: 14px 0 6px; }
+.sub { color: var(--muted); margin: 0; }
+section { background: var(--card); border: 1px solid var(--rule); border-radius: 6px; padding: 14px 18px; margin: 14px 0; }
+.caution { border-left: 5px solid var(--warn); background: #fff8ef; }
+.warnings li { color: var(--warn); }
+.eq { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 13.5px; background: #f3f4f8;
+  padding: 8px 10px; border-radius: 4px; overflow-wrap: anywhere; white-space: pre-wrap; }
+table { border-collapse: collapse; margin: 6px 0; font-variant-numeric: tabular-nums; }
+th, td { padding: 3px 10px 3px 0; text-align: left; vertical-align: top; border-bottom: 1px solid #eef0f2; }
+th { color: var(--muted); font-weight: 600; border-bottom: 1px solid var(--rule); }
+td.n, th.n { text-align: right; }
+tr.best td { font-weight: 600; }
+.chart { position: relative; height: 360px; margin: 6px 0 4px; }
+.chart.small { height: 300px; }
+.note { color: var(--muted); font-size: 13.5px; }
+.tag { display: inline-block; padding: 0 6px; border-radius: 3px; font-size: 12.5px; background: #eef0fa; color: var(--accent); }
+.tag.bad { background: #fbeaea; color: var(--bad); }
+.tag.good { background: #e8f3ea; color: var(--good); }
+details summary { cursor: pointer; color: var(--accent); }
+input.filter { font: inherit; padding: 4px 8px; border: 1px solid var(--rule); border-radius: 4px; width: 320px; }
+`;
+
+/** A whole page: doctype, UTF-8, a content security policy that forbids every fetch, the style, `body`. */
+export function page(title: string, body: string): string {
+  return [
+    '<!DOCTYPE html>',
+    '<html lang="en">',
+    '<head>',
+    '<meta charset="utf-8">',
+    // nothing may load from anywhere; inline scripts and styles only
+    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data:">`,
+    '<meta name="viewport" content="width=device-width, initial-scale=1">',
+    `<title>${escapeHtml(title)}</title>`,
+    `<style>${PAGE_STYLE}</style>`,
+    '</head>',
+    '<body>',
+    body,
+    '</body>',
+    '</html>',
+    '',
+  ].join('\n');
+}

@@ -1,0 +1,115 @@
+/**
+ * The script of the HTML report, run in the browser: it reads the page's data element and draws
+ * the charts with Chart.js (inlined beside it), tooltips showing the values under the pointer.
+ * Written as a plain function so the compiler checks its syntax; `reportScript` inlines its
+ * source. It touches the page only through canvas elements and `textContent`.
+ */
+
+/* The browser globals the script uses (the project compiles without the DOM library). */
+declare const document: any;
+declare function getComputedStyle(element: unknown): { getPropertyValue(name: string): string };
+
+function drawReport(ChartLib: any, data: any): void {
+  const css = getComputedStyle(document.documentElement);
+  const color = (name: string, fallback: string): string => css.getPropertyValue(name).trim() || fallback;
+  const ink = color('--ink', '#1f2a36');
+  const muted = color('--muted', '#5d6b78');
+  const look = data.look;
+  ChartLib.defaults.color = muted;
+  ChartLib.defaults.font.family = 'system-ui, -apple-system, "Segoe UI", Roboto, "DejaVu Sans", sans-serif';
+  ChartLib.defaults.animation = false;
+  const fmt = (v: any): string => (typeof v === 'number' && Number.isFinite(v) ? String(Number(v.toPrecision(6))) : '—');
+  const baseOptions = (yTitle: string, floor: number | null): any => ({
+    responsive: true,
+    maintainAspectRatio: false,
+    interaction: { mode: 'index', intersect: false },
+    plugins: {
+      legend: { position: 'top', align: 'end', labels: { usePointStyle: true, boxHeight: 8, color: ink, filter: (item: any) => item.text !== '' } },
+      tooltip: { callbacks: { label: (ctx: any) => (ctx.dataset.label ? `${ctx.dataset.label}: ${fmt(ctx.parsed.y)}` : null) }, filter: (item: any) => item.dataset.label !== '' && item.parsed.y !== null },
+    },
+    scales: {
+      x: { type: 'category', ticks: { maxRotation: 0, autoSkip: true, maxTicksLimit: 12 }, grid: { color: look.grid } },
+      y: { title: { display: true, text: yTitle }, grid: { color: look.grid }, ...(floor !== null ? { min: floor } : {}) },
+    },
+  });
+  const line = (label: string, values: any[], c: string, extra: any = {}): any => ({
+    label, data: values, borderColor: c, backgroundColor: c, borderWidth: 2, pointRadius: 0, pointHoverRadius: 3, spanGaps: false, fill: false, tension: 0, ...extra,
+  });
+  /** An interval: the inner level filled, outer levels as dashed edges. */
+  const bands = (list: any[]): any[] => {
+    const out: any[] = [];
+    list.forEach((b: any, i: number) => {
+      const label = `${b.level} % interval`;
+      if (i === 0) {
+        out.push(line(label, b.upper, look.bandFill, { borderWidth: 0, fill: '+1', backgroundColor: look.bandFill, pointStyle: 'rect', order: 5 }));
+        out.push(line(`${label} (lower)`, b.lower, look.bandFill, { borderWidth: 0, order: 5, hidden: false }));
+      } else {
+        out.push(line(label, b.upper, look.bandEdge, { borderWidth: 1.5, borderDash: [6, 4], pointStyle: 'line', order: 4 }));
+        out.push(line(`${label} (lower)`, b.lower, look.bandEdge, { borderWidth: 1.5, borderDash: [6, 4], order: 4 }));
+      }
+    });
+    return out;
+  };
+  const hideLowerInLegend = (opts: any): any => {
+    opts.plugins.legend.labels.filter = (item: any) => !/\(lower\)$/.test(item.text);
+    return opts;
+  };
+  const draw = (id: string, config: any): void => {
+    const canvas = document.getElementById(id);
+    if (canvas) new ChartLib(canvas, config);
+  };
+  if (data.forecast) {
+    const f = data.forecast;
+    draw('chart-forecast', {
+      type: 'line',
+      data: { labels: f.labels, datasets: [line('observed', f.observed, look.observed, { order: 1 }), line('forecast', f.point, look.forecast, { order: 0 }), ...bands(f.bands)] },
+      options: hideLowerInLegend(baseOptions(data.valueLabel, f.floor)),
+    });
+  }
+  if (data.holdout) {
+    const h = data.holdout;
+    draw('chart-holdout', {
+      type: 'line',
+      data: {
+        labels: h.labels,
+        datasets: [
+          line('observed (training)', h.context, look.context, { borderWidth: 1.25, order: 3 }),
+          line('observed (holdout)', h.actual, look.observed, { pointRadius: 2.5, order: 2 }),
+          line('forecast from the end of training', h.point, look.forecast, { order: 1 }),
+          line('rolling one-step, learning', h.rolling, look.second, { borderDash: [2, 3], order: 1 }),
+          ...bands(h.bands),
+        ],
+      },
+      options: hideLowerInLegend(baseOptions(data.valueLabel, h.floor)),
+    });
+  }
+  if (data.periodogram) {
+    const p = data.periodogram;
+    const diag = p.frequency.map((_: number, j: number) => (j + 1) / p.frequency.length);
+    const opts = baseOptions('cumulative share of variance', null);
+    opts.scales.y.min = 0;
+    opts.scales.y.max = 1;
+    opts.scales.x.title = { display: true, text: 'frequency (cycles per period)' };
+    draw('chart-periodogram', {
+      type: 'line',
+      data: {
+        labels: p.frequency.map((x: number) => x.toFixed(3)),
+        datasets: [
+          line('residuals', p.cumulative, look.observed, { stepped: true, order: 0 }),
+          line('white noise', diag, look.context, { borderWidth: 1, order: 1 }),
+          line('95 % band', diag.map((d: number) => Math.min(1, d + p.band)), look.bound, { borderWidth: 1.25, borderDash: [5, 4], order: 2 }),
+          line('', diag.map((d: number) => Math.max(0, d - p.band)), look.bound, { borderWidth: 1.25, borderDash: [5, 4], order: 2 }),
+        ],
+      },
+      options: opts,
+    });
+  }
+  document.documentElement.setAttribute('data-charts', 'drawn');
+}
+
+/** The report's inline script: the drawing function, called with the page data. */
+export function reportScript(): string {
+  // a transpiler that keeps function names (tsx, vitest) wraps them in a `__name` helper; the
+  // shim makes the inlined source run wherever it was compiled
+  return `(function () { var __name = function (f) { return f; }; (${drawReport.toString()})(window.Chart, JSON.parse(document.getElementById('certa-data').textContent)); })();`;
+}

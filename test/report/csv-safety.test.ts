@@ -1,0 +1,91 @@
+/**
+ * Safe CSV outputs: text from the input is neutralised against formula injection (the leading-
+ * apostrophe rule of OWASP, "CSV Injection"), numbers are never altered, and every CSV certa
+ * writes parses back, with the project's own reader (src/data/csv.ts), to the cells written.
+ */
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { parseDelimited } from '../../src/data/csv.js';
+import type { Series } from '../../src/data/series.js';
+import { forecastSeries } from '../../src/forecast/pipeline.js';
+import { forecastFiles } from '../../src/report/forecast-report.js';
+import { csvField, formatNumber, readsAsFormula, toCsv, type Cell } from '../../src/report/tables.js';
+
+/** What a cell should read back as: the text written, apostrophe included, or the number's text. */
+function expected(cell: Cell): string {
+  if (cell === null) return '';
+  if (typeof cell === 'number') return formatNumber(cell);
+  return readsAsFormula(cell) ? `'${cell}` : cell;
+}
+
+function readBack(text: string): string[][] {
+  const t = parseDelimited(text, ',', 'out.csv', 'csv');
+  const rows: string[][] = [t.header];
+  for (let r = 0; r < t.rows.length; r++) rows.push(t.columns.map((c) => String(c[r] ?? '')));
+  return rows;
+}
+
+describe('readsAsFormula / csvField: formula injection', () => {
+  it('prefixes an apostrophe to text starting with = + - @, tab or CR', () => {
+    expect(csvField('=HYPERLINK("http://x.invalid")')).toBe(`"'=HYPERLINK(""http://x.invalid"")"`);
+    expect(csvField('+1+2')).toBe("'+1+2");
+    expect(csvField('-2+3')).toBe("'-2+3");
+    expect(csvField('@SUM(A1:A2)')).toBe("'@SUM(A1:A2)");
+    expect(csvField('\t=1')).toBe("'\t=1");
+    expect(csvField('\r=1')).toBe(`"'\r=1"`);
+  });
+  it('leaves numbers and plain-number text alone', () => {
+    expect(csvField(-3.5)).toBe('-3.5');
+    expect(csvField(-1e-7)).toBe('-1e-7');
+    expect(csvField('-12.5')).toBe('-12.5');
+    expect(csvField('+4')).toBe('+4');
+    expect(readsAsFormula('-1e5')).toBe(false);
+    expect(readsAsFormula('-')).toBe(true);
+  });
+  it('leaves text that starts otherwise alone, even with = inside', () => {
+    expect(csvField('a=b')).toBe('a=b');
+    expect(csvField("'quoted")).toBe("'quoted");
+  });
+});
+
+describe('toCsv: every document parses back to the cells written', () => {
+  const names = ['=1+1', 'say "hi", twice', 'two\nlines', 'cr\r\nlf', '@home', '-minus', 'plain', ',', '"', '+', '\ttab'];
+  it('round-trips names holding quotes, commas, newlines and formula starts', () => {
+    const rows: Cell[][] = names.map((n, i) => [n, i, -i - 0.5, null]);
+    const text = toCsv(['name', 'i', 'x', 'missing'], rows);
+    expect(readBack(text)).toEqual([['name', 'i', 'x', 'missing'], ...rows.map((r) => r.map(expected))]);
+  });
+  it('round-trips arbitrary text and numbers (property)', () => {
+    const cell = fc.oneof(fc.string({ minLength: 1, unit: fc.constantFrom('a', '=', '+', '-', '@', '"', ',', '\n', '\r', '\t', ' ', '1', '.', 'é') }), fc.double({ noNaN: true }), fc.constant(null));
+    fc.assert(
+      fc.property(fc.array(fc.tuple(fc.constant('key'), cell), { minLength: 1, maxLength: 8 }), (pairs) => {
+        // a leading non-blank key column: the reader skips blank records
+        const rows: Cell[][] = pairs.map(([k, c]) => [k, c]);
+        expect(readBack(toCsv(['k', 'v'], rows))).toEqual([['k', 'v'], ...rows.map((r) => r.map(expected))]);
+      }),
+      { numRuns: 300 },
+    );
+  });
+});
+
+describe('forecastFiles: the CSV outputs of a run with a hostile series name', () => {
+  it('forecast.csv, metrics.csv and candidates.csv parse back cell for cell', () => {
+    const n = 60;
+    const values = Float64Array.from({ length: n }, (_, t) => 50 + 0.4 * t + 6 * Math.sin((2 * Math.PI * t) / 12) + ((t * 7919) % 13) / 4);
+    const name = '=cmd|"/c calc"!A0, line\ntwo';
+    const series: Series = { name, frequency: 'index', season: 12, time: Float64Array.from(values, (_, i) => i), values, inputs: [] };
+    const run = forecastSeries(series, { horizon: 6, holdout: 12, intervals: { method: 'analytic' } });
+    const files = forecastFiles(run);
+    for (const [file, text] of Object.entries(files)) {
+      const back = readBack(text);
+      expect(back.length, file).toBeGreaterThan(1);
+      if (file !== 'candidates.csv') {
+        for (const row of back.slice(1)) expect(row[0], file).toBe(`'${name}`);
+      }
+    }
+    const fcRows = readBack(files['forecast.csv']);
+    const valueCol = fcRows[0].indexOf('value');
+    const history = fcRows.filter((r) => r[2] === 'history');
+    expect(history.map((r) => Number(r[valueCol]))).toEqual(Array.from(values.subarray(0, n - 12)));
+  });
+});
