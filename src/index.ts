@@ -46,3 +46,11 @@ export { modelBody, assertedFromBody, windowSeries } from './store/asserted.js';
 export { withLock, acquireLock, type LockHandle } from './store/lock.js';
 export { runUpdate, parseUpdateOptions, type CliUpdateOptions, type UpdateRun } from './cli/update.js';
 export { updateSummary, updateText, updateTable } from './report/update-report.js';
+
+export { runBatch, batchTasks, type BatchOptions, type BatchResult } from './batch/run.js';
+export { batchCsv, BATCH_COLUMNS, type BatchRow, type BatchStatus } from './batch/batch-table.js';
+export { folderNames, isSafeFolderName } from './batch/folder-names.js';
+export { shardOf, parseShard, type Shard } from './batch/shard.js';
+export { mergeBatches } from './batch/merge.js';
+export { resultDocument, snakeKeys, RESULT_FORMAT, RESULT_VERSION, type ResultEntry } from './report/result-json.js';
+export { resultSchema } from './report/result-schema.js';

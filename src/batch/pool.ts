@@ -20,6 +20,13 @@ export interface PoolOptions {
   failFast?: boolean;
 }
 
+/**
+ * Tasks a worker holds at once. The compute of a series blocks its thread, the writes of its
+ * folder wait on the disk (fsync); with two, a worker computes one series while the files of
+ * the other are written.
+ */
+const IN_FLIGHT = 2;
+
 /** One worker per core unless told otherwise. */
 export function defaultWorkers(): number {
   return Math.max(1, availableParallelism());
@@ -38,7 +45,15 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
     options.onOutcome?.(outcome, done);
   };
   if (count === 1) {
-    for (let i = 0; i < tasks.length && !stop; i++) record(i, await runSeriesJob(tasks[i], settings));
+    // In this thread, with the same overlap of compute and writes as a worker.
+    let cursor = 0;
+    const lane = async (): Promise<void> => {
+      while (!stop && cursor < tasks.length) {
+        const i = cursor++;
+        record(i, await runSeriesJob(tasks[i], settings));
+      }
+    };
+    await Promise.all(Array.from({ length: IN_FLIGHT }, lane));
     return outcomes;
   }
   const entry = import.meta.url.endsWith('.ts') ? new URL('./worker.ts', import.meta.url) : new URL('./worker.js', import.meta.url);
@@ -55,29 +70,29 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
       if (error) reject(error);
       else resolve();
     };
-    const feed = (w: Worker, slot: { task: number }): void => {
+    const feed = (w: Worker): void => {
       if (stop || next >= tasks.length) {
         if (running === 0) finish();
         return;
       }
-      slot.task = next++;
       running++;
-      w.postMessage(tasks[slot.task]);
+      w.postMessage({ index: next, task: tasks[next] });
+      next++;
     };
     for (let k = 0; k < count; k++) {
       const w = new Worker(entry, { workerData: settings, execArgv });
-      const slot = { task: -1 };
       workers.push(w);
-      w.on('message', (outcome: SeriesOutcome) => {
+      w.on('message', (m: { index: number; outcome: SeriesOutcome }) => {
         running--;
-        record(slot.task, outcome);
-        feed(w, slot);
+        record(m.index, m.outcome);
+        feed(w);
       });
       w.on('error', (e) => finish(e instanceof Error ? e : new Error(String(e))));
       w.on('exit', (code) => {
         if (code !== 0 && !settled) finish(new Error(`a batch worker stopped with code ${code}`));
       });
-      feed(w, slot);
+      // Two tasks in flight per worker: one computes while the other's files are written.
+      for (let j = 0; j < IN_FLIGHT; j++) feed(w);
     }
   });
   return outcomes;

@@ -7,6 +7,7 @@
 import { join } from 'node:path';
 import { CertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
+import type { LoadFailure } from '../data/load.js';
 import { writeFileAtomic } from '../store/atomic.js';
 import { batchCsv, batchManifest, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
 import { folderNames } from './folder-names.js';
@@ -38,25 +39,48 @@ export interface BatchResult {
   stoppedBy: SeriesOutcome | null;
 }
 
-/** The series of a file this run takes, with their positions and folders. */
-export function batchTasks(series: readonly Series[], out: string, shard: Shard | null): SeriesTask[] {
-  const folders = folderNames(series.map((s) => s.name));
+/**
+ * The series of a file this run takes, with their positions and folders, and the series that
+ * could not be read as outcomes already failed. Positions and folders come from every series of
+ * the file (read or not), so a shard gives each series what one run over the file gives it.
+ */
+export function batchTasks(series: readonly Series[], failedAtLoad: readonly LoadFailure[], out: string, shard: Shard | null): { tasks: SeriesTask[]; failed: SeriesOutcome[] } {
+  const total = series.length + failedAtLoad.length;
+  const slots: ({ series: Series } | { failure: LoadFailure })[] = new Array(total);
+  for (const f of failedAtLoad) slots[f.index] = { failure: f };
+  let next = 0;
+  for (let i = 0; i < total; i++) if (!slots[i]) slots[i] = { series: series[next++] };
+  const names = slots.map((s) => ('series' in s ? s.series.name : s.failure.name));
+  const folders = folderNames(names);
   const tasks: SeriesTask[] = [];
-  series.forEach((s, i) => {
-    if (shard && shardOf(s.name, shard.n) !== shard.k) return;
-    tasks.push({ position: i + 1, series: s, path: join(out, folders[i]), folder: folders[i] });
+  const failed: SeriesOutcome[] = [];
+  slots.forEach((slot, i) => {
+    if (shard && shardOf(names[i], shard.n) !== shard.k) return;
+    if ('series' in slot) tasks.push({ position: i + 1, series: slot.series, path: join(out, folders[i]), folder: folders[i] });
+    else failed.push(loadFailureOutcome(i + 1, slot.failure));
   });
-  return tasks;
+  return { tasks, failed };
 }
 
-export async function runBatch(series: readonly Series[], options: BatchOptions): Promise<BatchResult> {
-  const tasks = batchTasks(series, options.out, options.shard);
-  options.onStart?.(tasks.length);
-  const outcomes = await runPool(tasks, options.settings, {
+function loadFailureOutcome(position: number, f: LoadFailure): SeriesOutcome {
+  const e = f.error;
+  const error = { code: e.code, message: e.message, line: e.line(), hint: e.context.hint ?? null, exitCode: e.exitCode, internal: false };
+  const row: BatchRow = { position, series: f.name, folder: null, status: 'failed', reason: error.line, structure: null, holdoutMase: null, bestBaseline: null, baselineMase: null, warnings: [] };
+  return { row, forecasts: '', columns: null, summary: null, error };
+}
+
+export async function runBatch(series: readonly Series[], failedAtLoad: readonly LoadFailure[], options: BatchOptions): Promise<BatchResult> {
+  const { tasks, failed } = batchTasks(series, failedAtLoad, options.out, options.shard);
+  const total = tasks.length + failed.length;
+  options.onStart?.(total);
+  let finished = 0;
+  for (const o of failed) options.onOutcome?.(o, ++finished, total);
+  const ran = await runPool(tasks, options.settings, {
     workers: options.workers,
     failFast: options.failFast,
-    onOutcome: (o, done) => options.onOutcome?.(o, done, tasks.length),
+    onOutcome: (o) => options.onOutcome?.(o, ++finished, total),
   });
+  const outcomes: (SeriesOutcome | undefined)[] = [...failed, ...ran.filter((o): o is SeriesOutcome => o !== undefined)].sort((a, b) => a.row.position - b.row.position);
   if (options.failFast) {
     const first = outcomes.find((o) => o?.error);
     if (first) return { rows: [], outcomes: outcomes.filter((o): o is SeriesOutcome => o !== undefined), tables: [], stoppedBy: first };
@@ -68,7 +92,7 @@ export async function runBatch(series: readonly Series[], options: BatchOptions)
   const forecasts = header + done.map((o) => o.forecasts).join('');
   await writeFileAtomic(join(options.out, 'batch.csv'), batchCsv(rows), { mkdir: true });
   await writeFileAtomic(join(options.out, 'forecasts.csv'), forecasts, { mkdir: true });
-  await writeFileAtomic(join(options.out, 'batch.json'), batchManifest(series.length, options.shard, options.levels), { mkdir: true });
+  await writeFileAtomic(join(options.out, 'batch.json'), batchManifest(series.length + failedAtLoad.length, options.shard, options.levels), { mkdir: true });
   return { rows, outcomes: done, tables: ['batch.csv', 'batch.json', 'forecasts.csv'], stoppedBy: null };
 }
 

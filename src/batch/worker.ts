@@ -8,9 +8,9 @@ import { runSeriesJob, type JobSettings, type SeriesTask } from './series-job.js
 const settings = workerData as JobSettings;
 const port = parentPort;
 if (!port) throw new Error('batch/worker.ts runs only as a worker thread');
-port.on('message', (task: SeriesTask) => {
-  runSeriesJob(task, settings).then(
-    (outcome) => port.postMessage(outcome),
+port.on('message', (m: { index: number; task: SeriesTask }) => {
+  runSeriesJob(m.task, settings).then(
+    (outcome) => port.postMessage({ index: m.index, outcome }),
     (e: unknown) => {
       throw e;
     },

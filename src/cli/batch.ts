@@ -8,6 +8,7 @@
 import type { Command } from 'commander';
 import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
+import type { LoadFailure } from '../data/load.js';
 import { defaultWorkers } from '../batch/pool.js';
 import { outcomeError, runBatch } from '../batch/run.js';
 import { parseShard, type Shard } from '../batch/shard.js';
@@ -68,6 +69,7 @@ export function batchLine(r: BatchRow): string {
 
 export async function runForecastBatch(
   series: Series[],
+  failedAtLoad: LoadFailure[],
   loadNotes: string[],
   cli: ReturnType<typeof parseForecastOptions>,
   batch: CliBatchOptions,
@@ -76,7 +78,7 @@ export async function runForecastBatch(
 ): Promise<void> {
   const out = cli.out ?? 'output';
   let progress: BatchProgress | null = null;
-  const result = await runBatch(series, {
+  const result = await runBatch(series, failedAtLoad, {
     out,
     workers: batch.workers,
     shard: batch.shard,
@@ -109,7 +111,7 @@ export async function runForecastBatch(
     io.out(toJson(resultDocument('forecast', entries)));
   } else if (!batch.quiet) {
     const lines = rows.map(batchLine);
-    const shard = batch.shard ? ` (shard ${batch.shard.k} of ${batch.shard.n} of ${series.length} series in the file)` : '';
+    const shard = batch.shard ? ` (shard ${batch.shard.k} of ${batch.shard.n} of ${series.length + failedAtLoad.length} series in the file)` : '';
     lines.push('');
     lines.push(`${rows.length} series${shard}: ${rows.length - failed.length} forecast, ${failed.length} failed`);
     lines.push(`Wrote ${result.tables.join(', ')} and one folder per forecast series to ${out}`);

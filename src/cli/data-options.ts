@@ -117,7 +117,7 @@ export async function readDataSource(file: string, io: CliIO): Promise<TableSour
   return readSource(file);
 }
 
-export async function loadSeriesFromCli(file: string, opts: Record<string, unknown>, io: CliIO): Promise<{ series: Series[]; report: LoadReport }> {
-  const options = parseDataOptions(opts);
+export async function loadSeriesFromCli(file: string, opts: Record<string, unknown>, io: CliIO, extra: Partial<LoadOptions> = {}): Promise<{ series: Series[]; report: LoadReport }> {
+  const options = { ...parseDataOptions(opts), ...extra };
   return loadSeries(await readDataSource(file, io), options);
 }

@@ -187,8 +187,8 @@ export function register(program: Command, io: CliIO): void {
   command.action(async (file: string, opts: Record<string, unknown>) => {
     const cli = parseForecastOptions(opts);
     const batch = parseBatchOptions(opts);
-    const { series, report } = await loadSeriesFromCli(file, opts, io);
-    if (series.length === 1 && batch.shard === null) {
+    const { series, report } = await loadSeriesFromCli(file, opts, io, { keepGoing: !batch.failFast });
+    if (series.length === 1 && report.failed.length === 0 && batch.shard === null) {
       const s = series[0];
       const folder = outputFolder(s, cli.out);
       const { summary, text } = await runForecast(s, cli, folder, opts, io, report.notes);
@@ -197,7 +197,7 @@ export function register(program: Command, io: CliIO): void {
       else if (!batch.quiet) io.out(text);
       return;
     }
-    await runForecastBatch(series, report.notes, cli, batch, opts, io);
+    await runForecastBatch(series, report.failed, report.notes, cli, batch, opts, io);
   });
   program.addHelpText('after', '\nForecast a series (the main job):\n  certa forecast datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
 }

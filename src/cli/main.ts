@@ -21,6 +21,11 @@ export const EXIT_CODES: ReadonlyArray<readonly [number, string]> = [
   [4, 'a batch in which some series failed: the others were completed; see batch.csv and stderr'],
 ];
 
+/** The exit codes as a help section (the program's and each command's --help end with it). */
+export function exitCodesHelp(): string {
+  return `\nExit codes:\n${EXIT_CODES.map(([c, t]) => `  ${c}  ${t}`).join('\n')}\n`;
+}
+
 /** Where commands write; tests pass their own to capture output. */
 export interface CliIO {
   out: (text: string) => void;
@@ -54,8 +59,9 @@ export async function buildProgram(io: CliIO, argv: string[] = []): Promise<Comm
         'Start with:  certa inspect <file>   (what certa reads in your file)',
     )
     .option('--debug', 'print stack traces of internal errors')
-    .addHelpText('after', `\nExit codes:\n${EXIT_CODES.map(([c, t]) => `  ${c}  ${t}`).join('\n')}\n`);
+    .addHelpText('after', exitCodesHelp());
   await registerCommands(program, io, argv);
+  for (const sub of program.commands) sub.addHelpText('after', exitCodesHelp());
   configureTree(program, io);
   return program;
 }

@@ -4,7 +4,9 @@
  */
 import { join } from 'node:path';
 import type { Series } from '../data/series.js';
-import { writeFileAtomic } from '../store/atomic.js';
+import { mkdir } from 'node:fs/promises';
+import { StoreError } from '../data/errors.js';
+import { syncFolder, writeFileAtomic } from '../store/atomic.js';
 import { folderNames } from '../batch/folder-names.js';
 
 /**
@@ -23,11 +25,26 @@ export function outputFolder(series: Series, out: string | undefined): string {
   return outputFolders([series], out)[0];
 }
 
-/** Writes each named file into `dir` (created if missing), atomically, in name order. */
+/**
+ * Writes each named file into `dir` (created if missing), each atomically (its own temporary
+ * file, fsync, rename), the files side by side, then one fsync of the folder for all the renames.
+ */
 export async function writeFiles(dir: string, files: Record<string, string | Uint8Array>): Promise<string[]> {
   const names = Object.keys(files).sort();
-  for (const name of names) await writeFileAtomic(join(dir, name), files[name], { mkdir: true });
+  if (names.length === 0) return names;
+  await mkdirFolder(dir);
+  await Promise.all(names.map((name) => writeFileAtomic(join(dir, name), files[name], { syncFolder: false })));
+  await syncFolder(dir);
   return names;
+}
+
+async function mkdirFolder(dir: string): Promise<void> {
+  try {
+    await mkdir(dir, { recursive: true });
+  } catch (e) {
+    const err = e as NodeJS.ErrnoException;
+    throw new StoreError('write-failed', `could not create the folder (${err.code ?? 'unknown'}: ${err.message})`, { file: dir });
+  }
 }
 
 /**

@@ -40,14 +40,16 @@ export class ProgressReporter {
  * times the series still to do.
  */
 export class BatchProgress {
-  private readonly started = Date.now();
+  private readonly started: number;
   private shown = false;
 
   constructor(
     private readonly io: CliIO,
     private readonly total: number,
     private readonly now: () => number = Date.now,
-  ) {}
+  ) {
+    this.started = now();
+  }
 
   update(done: number): void {
     if (!this.io.isTTY) return;

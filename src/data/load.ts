@@ -11,7 +11,7 @@
 import { periodStart, type Frequency } from './calendar.js';
 import { parseDelimited, sniffDelimiter } from './csv.js';
 import { kindFrequency, type DateFormat } from './dates.js';
-import { DataError, UsageError } from './errors.js';
+import { DataError, isCertaError, UsageError, type CertaError } from './errors.js';
 import { inferFrequency, type FrequencyEvidence, type StampRun } from './frequency.js';
 import { parseJsonRecords } from './json.js';
 import { detectLayout, type Layout } from './layout.js';
@@ -46,6 +46,11 @@ export interface DecimalReport {
 }
 
 export interface LoadOptions extends TableOptions {
+  /**
+   * With several series: a series whose duplicates or gaps cannot be resolved is left out and
+   * listed in `report.failed` instead of failing the file (a file of one series still fails).
+   */
+  keepGoing?: boolean;
   time?: string;
   value?: string;
   inputs?: string[];
@@ -93,6 +98,18 @@ export interface LoadReport {
   aggregated: { from: Frequency; to: Frequency; by: AggregatorName } | null;
   series: SeriesReport[];
   notes: string[];
+  /**
+   * Series left out because they could not be read (with `keepGoing`): their position among
+   * the file's series (0-based, file order) and the error. Empty otherwise.
+   */
+  failed: LoadFailure[];
+}
+
+/** A series of a file that could not be read, kept with its position (see `LoadOptions.keepGoing`). */
+export interface LoadFailure {
+  index: number;
+  name: string;
+  error: CertaError;
 }
 
 export async function loadTable(source: string | TableSource, options: TableOptions = {}): Promise<Table> {
@@ -200,9 +217,27 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
 
   const labelFreq = kindFrequency(timeCol.kind);
   const duplicatePolicy = options.duplicates ?? 'error';
-  const resolved = raws.map((raw) =>
-    sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq),
+  const collect = options.keepGoing === true && raws.length > 1;
+  const failed: LoadFailure[] = [];
+  /** Runs `step` for series `index`; with `collect`, a user error leaves the series out instead. */
+  const attempt = <T>(index: number, name: string, step: () => T): T | undefined => {
+    if (!collect) return step();
+    try {
+      return step();
+    } catch (e) {
+      if (!isCertaError(e)) throw e;
+      failed.push({ index, name, error: e });
+      return undefined;
+    }
+  };
+  const resolvedAt = raws.map((raw, index) =>
+    attempt(index, raw.name, () =>
+      sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq),
+    ),
   );
+  const positions = resolvedAt.flatMap((r, i) => (r ? [i] : []));
+  const resolved = resolvedAt.filter((r): r is NonNullable<typeof r> => r !== undefined);
+  if (resolved.length === 0 && failed.length > 0) throw failed[0].error;
   if (resolved.some((r) => r.sorted)) notes.push('rows were not in time order; sorted by time');
   for (const r of resolved) {
     if (r.shortEnds.length === 0) continue;
@@ -219,14 +254,18 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
   const gaps = options.gaps ?? 'interpolate';
   const series: Series[] = [];
   const reports: SeriesReport[] = [];
-  for (const r of resolved) {
+  for (let j = 0; j < resolved.length; j++) {
+    const r = resolved[j];
     const where = { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? r.series.name : layout.values[0] };
-    const out = regularise(
-      r.series,
-      { frequency: f, step: evidence.step, freq: options.freq, aggregate, duplicates: duplicatePolicy, gaps, partial: options.partial, season: options.season },
-      where,
-      r.duplicates,
+    const out = attempt(positions[j], r.series.name, () =>
+      regularise(
+        r.series,
+        { frequency: f, step: evidence.step, freq: options.freq, aggregate, duplicates: duplicatePolicy, gaps, partial: options.partial, season: options.season },
+        where,
+        r.duplicates,
+      ),
     );
+    if (!out) continue;
     series.push(out.series);
     reports.push(out.report);
     const { leading, trailing } = out.report.trimmed;
@@ -242,6 +281,7 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
       if (kept.length > 0) notes.push(`warning: series "${r.series.name}": incomplete period${kept.length === 1 ? '' : 's'} kept (${options.aggregate ?? 'sum'} of fewer observations): ${listed(kept)}`);
     }
   }
+  if (series.length === 0 && failed.length > 0) throw failed[0].error;
   if (decimal.source === 'detected') notes.push(`numbers read with decimal commas: the file is semicolon-delimited and every value of ${decimal.columns.map((c) => `"${c}"`).join(', ')} has one comma`);
   if (layout.ignored.length > 0) notes.push(`columns not used: ${layout.ignored.map((c) => `"${c}"`).join(', ')}`);
   const target = options.freq ?? f;
@@ -262,6 +302,7 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     aggregated: target !== f ? { from: f, to: target, by: aggregate } : null,
     series: reports,
     notes,
+    failed: failed.sort((a, b) => a.index - b.index),
   };
   return { series, report };
 }

@@ -30,8 +30,16 @@ export interface ResultEntry {
 
 /** `someKey` → `some_key`, `pValue` → `p_value`, `lower_80` unchanged. */
 export function snakeCase(key: string): string {
-  return key.replace(/([a-z0-9])([A-Z])/g, '$1_$2').replace(/([A-Z])([A-Z][a-z])/g, '$1_$2').toLowerCase();
+  let out = snakeCache.get(key);
+  if (out === undefined) {
+    out = key.replace(/([a-z0-9])([A-Z])/g, '$1_$2').replace(/([A-Z])([A-Z][a-z])/g, '$1_$2').toLowerCase();
+    if (snakeCache.size < 10_000) snakeCache.set(key, out);
+  }
+  return out;
 }
+
+/** Keys repeat across rows and series: each is converted once. */
+const snakeCache = new Map<string, string>();
 
 /** A copy of `value` with every object key in snake_case (arrays and typed arrays kept as arrays). */
 export function snakeKeys(value: unknown): unknown {

@@ -23,6 +23,11 @@ export interface AtomicWriteOptions {
   mkdir?: boolean;
   /** Permission bits of a newly created file. Default 0o644 (before the umask). */
   mode?: number;
+  /**
+   * fsync the folder after the rename (default true). A caller writing several files into one
+   * folder may pass false for each and call `syncFolder` once after the last.
+   */
+  syncFolder?: boolean;
 }
 
 let counter = 0;
@@ -66,6 +71,11 @@ export async function writeFileAtomic(path: string, data: string | Uint8Array, o
     await fsp.rm(tmp, { force: true }).catch(() => undefined);
     throw writeError(path, e);
   }
+  if (options.syncFolder !== false) await syncDirectory(dir);
+}
+
+/** fsync of a folder, making the renames done in it durable (see `syncFolder` above). */
+export async function syncFolder(dir: string): Promise<void> {
   await syncDirectory(dir);
 }
 

@@ -167,6 +167,25 @@ describe('certa forecast on a file of several series', () => {
     expect(doc.results[0].detail.format).toBe('certa-summary');
   });
 
+  it('keeps going past a series that cannot even be read (a repeated month): its position, reason and exit 4', () => {
+    const rows = readFileSync(file, 'utf8').trim().split('\n');
+    const dup = rows.findIndex((l) => l.startsWith('"a_b",'));
+    const p = join(dir, 'dup.csv');
+    writeFileSync(p, `${[...rows.slice(0, dup + 1), rows[dup], ...rows.slice(dup + 1)].join('\n')}\n`);
+    const out = join(dir, 'dup');
+    const r = runCli(['forecast', p, '--id', 'kiosk', '--no-charts', '--horizon', '6', '--out', out, '--quiet']);
+    expect(r.code, r.stderr).toBe(4);
+    expect(r.stderr).toMatch(/^certa: .*dup\.csv.*series "a_b"|^certa: series "a_b": /m);
+    const batch = rawRecords(readFileSync(join(out, 'batch.csv'), 'utf8')).slice(1);
+    expect(batch.map((x) => x.fields[1])).toEqual(NAMES);
+    const ab = batch[NAMES.indexOf('a_b')];
+    expect(ab.fields[3]).toBe('failed');
+    expect(ab.fields[4]).toMatch(/more than one row for 2021-01/);
+    expect(existsSync(join(out, 'a_b'))).toBe(false);
+    // The other folders keep the names one run over the clean file gives them.
+    expect(existsSync(join(out, folderNames(NAMES)[NAMES.indexOf('a b')]))).toBe(true);
+  });
+
   it('--series takes a list and globs, in file order, and names a pattern that matches nothing', () => {
     const out = join(dir, 'pick');
     const r = runCli([...base(), '--out', out, '--series', 'kiosk-2,a?b', '--quiet']);

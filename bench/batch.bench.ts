@@ -1,0 +1,82 @@
+/**
+ * Batch throughput of `certa forecast` on long-layout files of invented monthly series: the
+ * weekly-collected sales of the product lines of the Osterby trading cooperative, 120 months
+ * each (trend, yearly pattern and noise of their own, seeded), written as one CSV per size.
+ *
+ * Each run is the built CLI as a child process with default options (workers: one per core),
+ * `--quiet`, timed by wall clock, its peak memory read by GNU time as the maximum resident set
+ * size (worker threads share the process, so this covers them). Reported: 1,000 and 10,000
+ * series without charts (cost per series of each, to show the growth is linear) and 1,000 with
+ * charts. Targets on the 2-core reference machine: 10,000 series without charts under 60 s wall
+ * and under 1 GB peak memory.
+ * Run: `npm run bench -- batch` (BATCH_SIZES=1000 to run a subset).
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { createRng } from '../src/linalg/random.js';
+
+const root = process.cwd();
+const work = mkdtempSync(join(tmpdir(), 'certa-batch-bench-'));
+
+/** A long-layout file of `count` series of 120 months from 2015-01 (seeded: the same bytes each time). */
+function writeFile(count: number): string {
+  const rng = createRng(20_240 + count);
+  const lines = ['line,month,sales'];
+  for (let s = 0; s < count; s++) {
+    const level = 200 + 800 * rng.uniform();
+    const growth = (rng.uniform() - 0.3) * 0.01;
+    const amplitude = 0.05 + 0.25 * rng.uniform();
+    const phase = 2 * Math.PI * rng.uniform();
+    const noise = 0.02 + 0.06 * rng.uniform();
+    const name = `OC-${String(s + 1).padStart(5, '0')}`;
+    let y = level;
+    for (let t = 0; t < 120; t++) {
+      y *= 1 + growth;
+      const v = y * (1 + amplitude * Math.sin((2 * Math.PI * t) / 12 + phase)) * (1 + noise * rng.normal());
+      lines.push(`${name},${2015 + Math.floor(t / 12)}-${String((t % 12) + 1).padStart(2, '0')}-01,${v.toFixed(1)}`);
+    }
+  }
+  const file = join(work, `lines-${count}.csv`);
+  writeFileSync(file, `${lines.join('\n')}\n`);
+  return file;
+}
+
+interface Measure {
+  wall: number;
+  rssMb: number;
+  code: number | null;
+}
+
+function run(file: string, charts: boolean): Measure {
+  const out = join(work, `out-${Date.now()}`);
+  const args = ['-f', '%M', process.execPath, join(root, 'bin/certa.js'), 'forecast', file, '--id', 'line', '--out', out, '--quiet', ...(charts ? [] : ['--no-charts'])];
+  const t0 = performance.now();
+  const p = spawnSync('/usr/bin/time', args, { encoding: 'utf8', maxBuffer: 64 * 1024 * 1024, env: { ...process.env, TZ: 'UTC' } });
+  const wall = (performance.now() - t0) / 1000;
+  const lastLine = p.stderr.trim().split('\n').pop() ?? '';
+  const kb = Number(lastLine);
+  if (p.status !== 0) process.stderr.write(p.stderr.slice(0, 2000));
+  rmSync(out, { recursive: true, force: true });
+  return { wall, rssMb: Number.isFinite(kb) ? kb / 1024 : NaN, code: p.status };
+}
+
+const sizes = (process.env.BATCH_SIZES ?? '1000,10000').split(',').map(Number);
+const chartSize = Number(process.env.BATCH_CHARTS ?? 1000);
+console.log(`batch: monthly series of 120 points, ${availableParallelism()} cores, default workers (load average ${loadavg()[0].toFixed(1)})`);
+console.log('series   charts   wall (s)   per series (ms)   peak RSS (MB)   exit');
+const rows: [number, boolean, Measure][] = [];
+for (const n of sizes) rows.push([n, false, run(writeFile(n), false)]);
+if (chartSize > 0) rows.push([chartSize, true, run(writeFile(chartSize), true)]);
+for (const [n, charts, m] of rows) {
+  console.log(`${String(n).padStart(6)}   ${(charts ? 'yes' : 'no').padEnd(6)}   ${m.wall.toFixed(1).padStart(8)}   ${((1000 * m.wall) / n).toFixed(2).padStart(15)}   ${m.rssMb.toFixed(0).padStart(13)}   ${m.code}`);
+}
+const plain = rows.filter(([, c]) => !c);
+if (plain.length >= 2) {
+  const [a, b] = [plain[0], plain[plain.length - 1]];
+  console.log(`growth: ${b[0] / a[0]}x the series took ${(b[2].wall / a[2].wall).toFixed(2)}x the time (linear: ${b[0] / a[0]})`);
+}
+const big = plain.find(([n]) => n === 10_000);
+if (big) console.log(`target 10,000 series: < 60 s wall (${big[2].wall.toFixed(1)} s), < 1024 MB peak (${big[2].rssMb.toFixed(0)} MB)`);
+rmSync(work, { recursive: true, force: true });
