@@ -648,7 +648,7 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       structure,
       estimate,
       result: top,
-      equation: structure.describe(estimate.theta, estimate.se),
+      equation: structure.describe(estimate.theta),
       derived: structure.derived(estimate.theta, series),
       predictions,
       residuals,

@@ -70,10 +70,10 @@ describe('certa forecast: the headline is what is forecast', () => {
     // seasonal naive forecast wins the 24-month holdout.
     const { stdout, summary } = run(['--families', 'arx']);
     expect(summary.evaluation.beatenByBaseline).toBe(true);
-    expect(summary.evaluation.bestBaseline.name).toBe('seasonal-naive');
+    expect(summary.evaluation.bestBaseline.name).toBe('last-season');
     expect(summary.evaluation.bestBaseline.mase).toBeLessThan(summary.evaluation.modelMase);
-    expect(summary.warnings.some((w: string) => /^the seasonal-naive baseline beat the model on the holdout: MASE \d/.test(w))).toBe(true);
-    expect(stdout).toMatch(/^Verdict: the seasonal-naive baseline beat the model on the holdout/m);
+    expect(summary.warnings.some((w: string) => /^the last-season baseline beat the model on the holdout: MASE \d/.test(w))).toBe(true);
+    expect(stdout).toMatch(/^Verdict: the last-season baseline beat the model on the holdout/m);
   });
 
   it('rejects an unknown --point or --bands with one line and exit 2', () => {

@@ -47,7 +47,7 @@ describe('certa forecast', () => {
     expect(r.stdout).toMatch(/Point forecast: /);
     expect(r.stdout).toMatch(/Bands: 80 % and 95 %, calibrated on this point forecast’s own/);
     expect(r.stdout).toMatch(/y\[t\] = /);
-    expect(r.stdout).toMatch(/fixed-origin\s+seasonal-naive/);
+    expect(r.stdout).toMatch(/fixed-origin\s+last-season/);
     expect(r.stdout).toMatch(/rolling-one-step\s+model, frozen/);
     expect(r.stdout).toMatch(/not financial advice/);
     expect(readdirSync(out).some((f) => f.endsWith('.png'))).toBe(false);
