@@ -206,8 +206,12 @@ function valueScale(title: string, extra: Record<string, unknown> = {}, floor?: 
     grace: '4%',
     ...(floor !== undefined
       ? {
-          afterDataLimits: (axis: Scale) => {
-            if (axis.min < floor) axis.min = floor;
+          // after the nice ticks are placed (they may reach below the floor): cut the axis there
+          afterBuildTicks: (axis: Scale) => {
+            if (axis.min < floor) {
+              axis.min = floor;
+              axis.ticks = axis.ticks.filter((t) => t.value >= floor);
+            }
           },
         }
       : {}),
