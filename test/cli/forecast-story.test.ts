@@ -59,7 +59,7 @@ describe('certa forecast: the headline is what is forecast', () => {
 
   it('--bands analytic takes the asserted equation’s own bands and says they ignore estimation and structure uncertainty', () => {
     const { stdout, summary, model } = run(['--bands', 'analytic']);
-    expect(stdout).toMatch(/^Bands: 80 % and 95 %, from the asserted equation alone \(analytic, under certainty equivalence/m);
+    expect(stdout).toMatch(/^Bands: 50 % and 90 %, from the asserted equation alone \(analytic, under certainty equivalence/m);
     expect(summary.forecast.bands.method).toBe('analytic');
     expect(summary.forecast.bands.calibration).toBeNull();
     expect(model.body.meta.intervalMethod).toBe('analytic');
