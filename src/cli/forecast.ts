@@ -31,7 +31,7 @@ export function addForecastOptions(command: Command): Command {
   return command
     .option('--horizon <n>', 'periods to forecast (default: two seasons, or 8 without a season)')
     .option('--holdout <n>', 'last points withheld for evaluation (default: the smaller of two seasons and 20 % of the series; 0 skips evaluation)')
-    .option('--levels <list>', 'prediction interval levels in percent (default 80,95)')
+    .option('--levels <list>', 'prediction interval levels in percent (default 50,90)')
     .option('--point <kind>', 'what the point forecast is: combined (default: the leading structures of every family weighted together) or asserted (the asserted equation alone)')
     .option('--bands <method>', BANDS_HELP)
     .option('--forgetting <lambda>', 'forgetting factor of online learning, 0 < λ ≤ 1 (default 1)')
@@ -84,7 +84,7 @@ export function parseForecastOptions(opts: Record<string, unknown>): CliForecast
   if (opts.levels !== undefined) {
     f.levels = String(opts.levels)
       .split(',')
-      .map((s) => num('--levels', s, (v) => v > 0 && v < 100, 'levels in percent between 0 and 100, e.g. 80,95', false));
+      .map((s) => num('--levels', s, (v) => v > 0 && v < 100, 'levels in percent between 0 and 100, e.g. 50,90', false));
   }
   if (opts.forgetting !== undefined) f.forgetting = num('--forgetting', opts.forgetting, (v) => v > 0 && v <= 1, 'a number in (0, 1], e.g. 1, 0.99 or 0.95', false);
   if (opts.inputPolicy !== undefined) {

@@ -8,6 +8,8 @@
  * each gets `<out>/<series name>` (default `output/<series name>`). Files are replaced
  * atomically (store/atomic.ts, store/model-file.ts).
  */
+import { coefficientLines, coefficientRows, COEFFICIENT_LEVEL } from '../report/coefficients.js';
+import { formatTableNumber } from '../report/table-numbers.js';
 import type { Command } from 'commander';
 import { join } from 'node:path';
 import { UsageError } from '../data/errors.js';
@@ -248,6 +250,7 @@ export function renderText(doc: SearchDocument): string {
   const w = doc.winner;
   out.push(`winner: ${w.structure}`);
   out.push(`  ${w.equation}`);
+  out.push(...coefficientLines(coefficientRows(w.terms, w.theta, w.se, w.terms.map(() => true)), COEFFICIENT_LEVEL, formatTableNumber));
   for (const d of w.derived) {
     const value = typeof d.value === 'boolean' ? (d.value ? 'yes' : 'no') : typeof d.value === 'number' ? num(d.value) : d.value;
     out.push(`  ${d.name}: ${value}${d.unit ? ` ${d.unit}` : ''}`);

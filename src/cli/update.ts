@@ -61,7 +61,7 @@ export function parseUpdateOptions(opts: Record<string, unknown>): CliUpdateOpti
   if (opts.levels !== undefined) {
     out.levels = String(opts.levels)
       .split(',')
-      .map((s) => num('--levels', s, (v) => v > 0 && v < 100, 'levels in percent between 0 and 100, e.g. 80,95', false));
+      .map((s) => num('--levels', s, (v) => v > 0 && v < 100, 'levels in percent between 0 and 100, e.g. 50,90', false));
   }
   if (opts.out !== undefined) out.out = String(opts.out);
   return out;

@@ -44,7 +44,7 @@ export interface BacktestOptions {
 }
 
 export interface MetricRow {
-  /** What was forecast and how: `model`, `model rolling (learning)`, `naive`, ... */
+  /** What was forecast and how: `model`, `model rolling (learning)`, `last-value`, ... */
   method: string;
   view: 'fixed-origin' | 'rolling-one-step';
   metrics: MetricTable;
@@ -139,7 +139,7 @@ export function baselineVerdict(rows: readonly MetricRow[]): BaselineVerdict | n
 }
 
 function fixedBaselines(season: number | null): BaselineName[] {
-  return season ? ['naive', 'seasonal-naive', 'drift'] : ['naive', 'drift'];
+  return season ? ['last-value', 'last-season', 'average-change'] : ['last-value', 'average-change'];
 }
 
 function roll(structure: Structure, series: Series, nTrain: number, horizon: number, theta: () => Float64Array, observe: (o: number) => unknown): RollingRun {

@@ -27,29 +27,30 @@ function checkInputs(name: string, train: Float64Array, h: number, needed = 1): 
 }
 
 /**
- * Naive forecast: every horizon repeats the last observation, ŷ_{n+k} = y_n.
+ * The last-value baseline (the naive forecast): every horizon repeats the last observation,
+ * ŷ_{n+k} = y_n.
  *
  * Source: Hyndman & Athanasopoulos, "Forecasting: principles and practice", 3rd ed. (2021),
  * chapter 5 (simple forecasting methods: naïve).
- * @example naive([3, 5, 4], 2, null) → [4, 4]
+ * @example lastValue([3, 5, 4], 2, null) → [4, 4]
  */
-export const naive: Baseline = (train, h) => {
-  checkInputs('naive', train, h);
+export const lastValue: Baseline = (train, h) => {
+  checkInputs('last-value', train, h);
   return new Float64Array(h).fill(train[train.length - 1]);
 };
 
 /**
- * Seasonal naive forecast: each horizon repeats the observation one season earlier, the last
+ * The last-season baseline (the seasonal naive forecast): each horizon repeats the observation one season earlier, the last
  * season repeated as often as needed: ŷ_{n+k} = y_{n+k−m(⌊(k−1)/m⌋+1)}.
  *
- * With `season` null or 1 this is the naive forecast. Needs n ≥ m training values.
+ * With `season` null or 1 this is the last-value baseline. Needs n ≥ m training values.
  * Source: Hyndman & Athanasopoulos (2021), chapter 5 (simple forecasting methods: seasonal naïve).
- * @example seasonalNaive([1, 2, 3, 4, 5, 6], 5, 4) → [3, 4, 5, 6, 3]
+ * @example lastSeason([1, 2, 3, 4, 5, 6], 5, 4) → [3, 4, 5, 6, 3]
  */
-export const seasonalNaive: Baseline = (train, h, season) => {
+export const lastSeason: Baseline = (train, h, season) => {
   const m = season ?? 1;
-  if (!Number.isInteger(m) || m < 1) throw new RangeError(`seasonalNaive: season must be an integer ≥ 1 or null, got ${season}`);
-  checkInputs('seasonal naive', train, h, m);
+  if (!Number.isInteger(m) || m < 1) throw new RangeError(`lastSeason: season must be an integer ≥ 1 or null, got ${season}`);
+  checkInputs('last-season', train, h, m);
   const n = train.length;
   const out = new Float64Array(h);
   for (let k = 1; k <= h; k++) out[k - 1] = train[n - m + ((k - 1) % m)];
@@ -57,15 +58,15 @@ export const seasonalNaive: Baseline = (train, h, season) => {
 };
 
 /**
- * Drift forecast: the line through the first and last observations, extended:
+ * The average-change baseline (the drift forecast): the line through the first and last observations, extended:
  * ŷ_{n+k} = y_n + k · (y_n − y_1) / (n − 1).
  *
- * With a single training value the slope is undefined and taken as zero (the naive forecast).
+ * With a single training value the slope is undefined and taken as zero (the last value).
  * `season` is ignored. Source: Hyndman & Athanasopoulos (2021), chapter 5 (simple forecasting methods: drift).
- * @example drift([2, 4, 8], 2, null) → [11, 14]   // slope (8 − 2)/2 = 3
+ * @example averageChange([2, 4, 8], 2, null) → [11, 14]   // slope (8 − 2)/2 = 3
  */
-export const drift: Baseline = (train, h) => {
-  checkInputs('drift', train, h);
+export const averageChange: Baseline = (train, h) => {
+  checkInputs('average-change', train, h);
   const n = train.length;
   const last = train[n - 1];
   const slope = n > 1 ? (last - train[0]) / (n - 1) : 0;
@@ -233,18 +234,21 @@ export function naive2Details(train: Float64Array, h: number, season: number | n
  */
 export const naive2: Baseline = (train, h, season) => naive2Details(train, h, season).forecast;
 
-/** Every baseline by the name users and reports give it. */
+/**
+ * Every baseline by the name users and reports give it: certa's own plain names for the three
+ * simple yardsticks (what each one carries forward), and Naive2 under its published name.
+ */
 export const BASELINES = {
-  naive,
-  'seasonal-naive': seasonalNaive,
-  drift,
+  'last-value': lastValue,
+  'last-season': lastSeason,
+  'average-change': averageChange,
   naive2,
 } as const satisfies Record<string, Baseline>;
 
 export type BaselineName = keyof typeof BASELINES;
 
 /** Names of all baselines, in a fixed order. */
-export const BASELINE_NAMES: readonly BaselineName[] = ['naive', 'seasonal-naive', 'drift', 'naive2'];
+export const BASELINE_NAMES: readonly BaselineName[] = ['last-value', 'last-season', 'average-change', 'naive2'];
 
 /** The baseline of that name; a `UsageError` listing the names when there is none. */
 export function baselineByName(name: string): Baseline {

@@ -142,7 +142,7 @@ export type PointForecaster = (train: Series, h: number) => { forecast: Float64A
  */
 export function certaForecaster(options: ForecastOptions = {}): PointForecaster {
   return (train, h) => {
-    const run = forecastSeries(train, { levels: [...M3_LEVELS], ...options, holdout: 0, horizon: h });
+    const run = forecastSeries(train, { ...options, levels: options.levels ?? [...M3_LEVELS], holdout: 0, horizon: h });
     const bands = run.forecast.paths.bands.map((b) => ({ level: b.level, lower: b.lower, upper: b.upper }));
     return { forecast: run.forecast.paths.point, model: run.asserted.structure.key, bands, bandMethod: run.forecast.paths.method + (run.forecast.paths.calibration ? ` (${run.forecast.paths.calibration.scale} scale)` : '') };
   };

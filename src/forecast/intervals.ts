@@ -27,6 +27,13 @@ import type { Calibration, CalibrationOptions } from './calibrate.js';
 /** How bands were made: from the asserted equation (`analytic`, `bootstrap`) or from measured errors (`calibrated`, calibrate.ts). */
 export type IntervalMethod = 'analytic' | 'bootstrap' | 'calibrated';
 
+/**
+ * certa's default prediction interval levels, percent: a 50 % band (where the next values fall
+ * half the time, the range to plan around) and a 90 % band (the range to prepare for). Accuracy
+ * benchmarks that score other levels pass them explicitly (src/evaluate/m3.ts M3_LEVELS).
+ */
+export const DEFAULT_LEVELS: readonly number[] = [50, 90];
+
 export interface IntervalOptions {
   /** Nominal coverage levels in percent, e.g. [80, 95]. */
   levels: number[];

@@ -5,7 +5,7 @@
  *
  * Defaults: horizon = two seasons (8 periods without a season); holdout = the smaller of two
  * seasons (8 periods without a season) and 20 % of the series, 0 to skip evaluation; levels
- * 80 and 95 %; forgetting λ = 1; future inputs repeat their last season (seasonal series) or
+ * 50 and 90 % (DEFAULT_LEVELS); forgetting λ = 1; future inputs repeat their last season (seasonal series) or
  * are held at their last values, unless given; the point forecast combines the leading
  * candidates, by Akaike weights within each group (a family on one scale) and by tempered
  * weights of the groups' best criterion values across groups (combine.ts; `combine: false` keeps
@@ -24,7 +24,7 @@ import { searchSeasons } from '../select/seasons.js';
 import type { Derived, Estimate, Structure } from '../models/structure.js';
 import { forward, inverse } from '../models/transforms.js';
 import { backtest, type Backtest } from '../evaluate/backtest.js';
-import { forecastWithIntervals, type ForecastPaths, type IntervalMethod, type IntervalOptions } from './intervals.js';
+import { DEFAULT_LEVELS, forecastWithIntervals, type ForecastPaths, type IntervalMethod, type IntervalOptions } from './intervals.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
 import { combinationMembers, combineForecasts, combinedPaths, replacesOwn, type Combination, type CombineOptions, type Member } from './combine.js';
@@ -112,8 +112,8 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
       hint: 'lower --holdout, or use --holdout 0 to skip evaluation',
     });
   }
-  const levels = (options.levels ?? [80, 95]).map((l) => {
-    if (!(l > 0 && l < 100)) throw new UsageError('bad-level', 'interval levels must lie strictly between 0 and 100', { found: String(l), expected: 'e.g. 80,95' });
+  const levels = (options.levels ?? [...DEFAULT_LEVELS]).map((l) => {
+    if (!(l > 0 && l < 100)) throw new UsageError('bad-level', 'interval levels must lie strictly between 0 and 100', { found: String(l), expected: 'e.g. 50,90' });
     return l;
   });
   const forgetting = options.forgetting ?? 1;
@@ -202,7 +202,7 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
       estimate,
       from,
       to: n,
-      equation: structure.describe(estimate.theta, estimate.se),
+      equation: structure.describe(estimate.theta),
       derived: structure.derived(estimate.theta, series),
       learner,
     },

@@ -46,7 +46,7 @@
  *    file small. After accepted revisions the fingerprint chain is extended by the revised rows
  *    and then the new ones: it covers every row certa was given, in the order given.
  * 6. A forecast from the updated model: horizon from the options, else the model's
- *    `meta.horizon`, else two seasons (8 without a season); levels likewise (default 80, 95);
+ *    `meta.horizon`, else two seasons (8 without a season); levels likewise (default 50, 90);
  *    future inputs by the same default policy as `certa forecast` (future.ts: repeat the last
  *    season for a seasonal series, else hold the last values) or `options.future`; intervals by
  *    forecastWithIntervals (intervals.ts) with the learner's σ̂², σ̂²P and, for simulation
@@ -83,7 +83,7 @@ import type { ModelBody, UpdateEntry } from '../store/model-file.js';
 import { extendWindow } from '../store/window.js';
 import { createDriftState, stepDrift, type DriftAlarm, type DriftState } from './drift.js';
 import { defaultInputPolicy, futureByPolicy, type FutureInputs } from './future.js';
-import { forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
+import { DEFAULT_LEVELS, forecastWithIntervals, isLinearStructure, type ForecastPaths, type IntervalMethod } from './intervals.js';
 import { Learner } from './online.js';
 import { defaultHorizon, UNCALIBRATED_WARNING } from './pipeline.js';
 import { calibratedPaths, type CalibrationOptions } from './calibrate.js';
@@ -107,7 +107,7 @@ export interface UpdateOptions {
   acceptRevisions?: boolean;
   /** Forecast horizon (default: the model's meta.horizon, else two seasons or 8). */
   horizon?: number;
-  /** Interval levels in percent (default: the model's meta.levels, else 80, 95). */
+  /** Interval levels in percent (default: the model's meta.levels, else DEFAULT_LEVELS, 50 and 90). */
   levels?: number[];
   /** Future inputs for the forecast (default: held at their last values). */
   future?: (history: Series, h: number, times: number[]) => FutureInputs;
@@ -323,9 +323,8 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   let model = reused?.model ?? assertedFromBody(body);
   const structureBefore = model.structure;
   const thetaBefore = model.learner.theta;
-  const seBefore = Float64Array.from(body.se);
   let beforeText: ModelDescription | undefined;
-  const describeBefore = () => (beforeText ??= { key: structureBefore.key, label: structureBefore.label, equation: structureBefore.describe(thetaBefore, seBefore) });
+  const describeBefore = () => (beforeText ??= { key: structureBefore.key, label: structureBefore.label, equation: structureBefore.describe(thetaBefore) });
   const seen = revisions.length > 0 ? reviseWindow(w, rows, names, columns, lastTime) : w;
   const notes: string[] = [];
   if (revisions.length > 0) {
@@ -406,7 +405,7 @@ export function update(body: ModelBody, rows: Series, options: UpdateOptions): U
   if (adaptRemaining > 0 || state.adaptRemaining !== undefined) state.adaptRemaining = adaptRemaining;
 
   const seAfter = seOf(model.learner);
-  const after: ModelDescription = { key: model.structure.key, label: model.structure.label, equation: model.structure.describe(model.learner.theta, seAfter) };
+  const after: ModelDescription = { key: model.structure.key, label: model.structure.label, equation: model.structure.describe(model.learner.theta) };
   const parameterChange = structureChanged
     ? changeNorm(termMap(structureBefore.terms, thetaBefore), termMap(model.structure.terms, model.learner.theta))
     : euclidean(thetaBefore, model.learner.theta);
@@ -556,7 +555,7 @@ function missing(rows: Series, column: string, at: string, found: number): DataE
 }
 
 function describeModel(model: AssertedState): ModelDescription {
-  return { key: model.structure.key, label: model.structure.label, equation: model.structure.describe(model.learner.theta, seOf(model.learner)) };
+  return { key: model.structure.key, label: model.structure.label, equation: model.structure.describe(model.learner.theta) };
 }
 
 /** Standard errors √(σ̂²P_jj) of the learner's current θ (0 for inactive terms). */
@@ -669,9 +668,9 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
     throw new UsageError('bad-horizon', 'the forecast horizon must be a whole number of periods from 1 to 10000', { found: String(horizon), expected: 'e.g. 12' });
   }
   const metaLevels = Array.isArray(body.meta.levels) && body.meta.levels.every((l) => typeof l === 'number') ? (body.meta.levels as number[]) : undefined;
-  const levels = options.levels ?? metaLevels ?? [80, 95];
+  const levels = options.levels ?? metaLevels ?? [...DEFAULT_LEVELS];
   for (const l of levels) {
-    if (!(l > 0 && l < 100)) throw new UsageError('bad-level', 'interval levels must lie strictly between 0 and 100', { found: String(l), expected: 'e.g. 80,95' });
+    if (!(l > 0 && l < 100)) throw new UsageError('bad-level', 'interval levels must lie strictly between 0 and 100', { found: String(l), expected: 'e.g. 50,90' });
   }
   const { structure, learner } = model;
   const n = series.values.length;

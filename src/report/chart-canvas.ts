@@ -127,18 +127,3 @@ function encodePng(canvas: Canvas): Buffer {
 export function renderChart(config: ChartConfiguration, width: number, height: number): Buffer {
   return withChart(config, width, height, encodePng);
 }
-
-/** PNG bytes of panels stacked top to bottom, each panel a configuration and its height. */
-export function renderStacked(panels: ReadonlyArray<{ config: ChartConfiguration; height: number }>, width: number): Buffer {
-  const total = panels.reduce((s, p) => s + p.height, 0);
-  const canvas = createCanvas(width, total);
-  const ctx = canvas.getContext('2d');
-  ctx.fillStyle = palette.background;
-  ctx.fillRect(0, 0, width, total);
-  let y = 0;
-  for (const p of panels) {
-    withChart(p.config, width, p.height, (panel) => ctx.drawImage(panel, 0, y));
-    y += p.height;
-  }
-  return encodePng(canvas);
-}

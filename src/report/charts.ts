@@ -3,15 +3,15 @@
  *
  * The library writes no files: callers write the returned Buffer (atomically). Time stamps are
  * those of calendar.ts (epoch ms for calendar frequencies, the step number for `index`); values
- * may contain NaN, drawn as gaps. All charts share the palette of palette.ts: observed in dark
- * slate, fitted in teal, forecasts in orange with translucent interval bands, legend above the
- * plot area so it never covers data.
+ * may contain NaN, drawn as gaps. All charts share the palette of palette.ts: observed in ink,
+ * fitted in olive, forecasts in indigo with the inner band filled and wider bands as dashed
+ * edges, legend above the plot area so it never covers data.
  */
 import { Chart, type ChartConfiguration, type ChartDataset, type LegendItem, type Plugin, type Scale } from 'chart.js';
 import type { Frequency } from '../data/calendar.js';
-import { sampleAutocorrelations } from '../evaluate/autocorrelation.js';
+import { cumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
 import { axisValue, formatValueTick, tickLabelChars, timeRange, timeTicks, type AxisTick } from './chart-axis.js';
-import { font, renderChart, renderStacked, resolveSize, type ChartSize } from './chart-canvas.js';
+import { font, renderChart, resolveSize, type ChartSize } from './chart-canvas.js';
 import { look, palette } from './palette.js';
 
 export type { ChartSize } from './chart-canvas.js';
@@ -25,6 +25,11 @@ export interface ChartText {
   valueLabel?: string;
   /** Unit of the values, shown in brackets after `valueLabel`, e.g. "kettles / month". */
   unit?: string;
+  /**
+   * Lowest value the y axis shows, e.g. 0 for a series that is never negative, so a band's
+   * lower edge below zero does not stretch the axis far below the data (clipped there).
+   */
+  floor?: number;
 }
 
 /** A series on the chart's time axis. */
@@ -84,6 +89,8 @@ export interface HoldoutChartInput extends ChartText, ChartSize {
   time: ArrayLike<number>;
   actual: ArrayLike<number>;
   forecasts: HoldoutForecast[];
+  /** Interval bands of the first forecast, aligned with `time`. */
+  bands?: IntervalBand[];
 }
 
 /** Input of `rankingChart`. */
@@ -102,15 +109,8 @@ export interface RankingChartInput extends ChartSize {
 export interface ResidualChartInput extends ChartSize {
   title: string;
   subtitle?: string;
-  frequency: Frequency;
-  time: ArrayLike<number>;
+  /** One-step residuals in time order; missing (NaN) values are dropped. */
   residuals: ArrayLike<number>;
-  /** Unit of the residuals for the axis title. */
-  unit?: string;
-  /** Largest lag of the autocorrelation panel; default 2 seasons (at least 12) or 20, below n. */
-  maxLag?: number;
-  /** Season length, for the default `maxLag`. */
-  season?: number | null;
 }
 
 type Point = { x: number; y: number | null };
@@ -200,10 +200,21 @@ function timeScale(first: number, last: number, frequency: Frequency, width: num
   };
 }
 
-function valueScale(title: string, extra: Record<string, unknown> = {}): Record<string, unknown> {
+function valueScale(title: string, extra: Record<string, unknown> = {}, floor?: number): Record<string, unknown> {
   return {
     type: 'linear',
     grace: '4%',
+    ...(floor !== undefined
+      ? {
+          // after the nice ticks are placed (they may reach below the floor): cut the axis there
+          afterBuildTicks: (axis: Scale) => {
+            if (axis.min < floor) {
+              axis.min = floor;
+              axis.ticks = axis.ticks.filter((t) => t.value >= floor);
+            }
+          },
+        }
+      : {}),
     // a common minimum width keeps stacked panels' plot areas aligned
     afterFit: (axis: Scale) => {
       if (axis.isHorizontal()) return;
@@ -381,7 +392,7 @@ function renderTimeLines(
     options: {
       layout: LAYOUT,
       plugins: { ...frame(text.title, text.subtitle, styles), filler: { propagate: false } },
-      scales: { x: timeScale(bounds.first, bounds.last, text.frequency, width), y: valueScale(valueTitle(text)) },
+      scales: { x: timeScale(bounds.first, bounds.last, text.frequency, width), y: valueScale(valueTitle(text), {}, text.floor) },
     },
     plugins: marker === null ? [] : [markerPlugin(marker, 'holdout', true)],
   } as ChartConfiguration;
@@ -393,8 +404,30 @@ function levelText(level: number): string {
 }
 
 /**
- * Forecast after the history: observed in slate, the point forecast in orange, interval bands
- * shaded in translucent orange, narrowest level darkest. Line and bands start from the last
+ * Interval bands as datasets: the innermost level filled (palette.bands[0]), every wider level
+ * drawn as dashed edge lines without fill (palette.bandEdge), so the levels stay apart.
+ */
+function pushBands(datasets: ChartDataset<'line', Point[]>[], styles: LegendStyle[], bands: readonly IntervalBand[], toPoints: (values: ArrayLike<number>) => Point[]): void {
+  bands.forEach((band, i) => {
+    const upper = toPoints(band.upper);
+    const lower = toPoints(band.lower);
+    const order = 10 + i;
+    if (i === 0) {
+      const color = palette.bands[0];
+      datasets.push({ ...lineDataset(levelText(band.level), upper, color, { width: 0, order }), backgroundColor: color, fill: '+1' });
+      datasets.push({ ...lineDataset('', lower, color, { width: 0, order }), fill: false });
+      styles.push({ kind: 'rect', color }, NO_LEGEND);
+    } else {
+      const edge = lineDataset(`${levelText(band.level)} (edges)`, upper, palette.bandEdge, { width: look.thinLineWidth, dash: [6, 4], order });
+      datasets.push(edge, lineDataset('', lower, palette.bandEdge, { width: look.thinLineWidth, dash: [6, 4], order }));
+      styles.push(lineLegend(edge), NO_LEGEND);
+    }
+  });
+}
+
+/**
+ * Forecast after the history: observed in ink, the point forecast in indigo, the inner interval
+ * band filled and wider ones as dashed edges (`pushBands`). Line and bands start from the last
  * observation (zero width there), so the forecast reads as its continuation.
  */
 export function forecastChart(input: ForecastChartInput): Buffer {
@@ -416,24 +449,16 @@ export function forecastChart(input: ForecastChartInput): Buffer {
   ];
   const styles: LegendStyle[] = datasets.map(lineLegend);
   const bands = [...(input.forecast.bands ?? [])].sort((a, b) => a.level - b.level);
-  bands.forEach((band, i) => {
-    const color = palette.bands[Math.min(i, palette.bands.length - 1)];
-    // bands open from the last observation, like the forecast line, so a one-step band shows too
-    const anchored = (p: Point[]): Point[] => (forecastLine !== fc && anchor !== null ? [anchor, ...p] : p);
-    const upper = anchored(points(input.forecast.time, band.upper, f));
-    const lower = anchored(points(input.forecast.time, band.lower, f));
-    const order = 10 + i;
-    datasets.push({ ...lineDataset(levelText(band.level), upper, color, { width: 0, order }), backgroundColor: color, fill: '+1' });
-    datasets.push({ ...lineDataset('', lower, color, { width: 0, order }), fill: false });
-    styles.push({ kind: 'rect', color }, NO_LEGEND);
-  });
+  // bands open from the last observation, like the forecast line, so a one-step band shows too
+  const anchored = (p: Point[]): Point[] => (forecastLine !== fc && anchor !== null ? [anchor, ...p] : p);
+  pushBands(datasets, styles, bands, (values) => anchored(points(input.forecast.time, values, f)));
   return renderTimeLines(input, datasets, styles, finiteBounds(input.history.time, input.forecast.time), null, width, height);
 }
 
 /**
  * Holdout actuals against forecasts: training context in thin slate, holdout actuals in slate
- * with points, each forecast (e.g. fixed origin, rolling origin) in its own colour and dash, a
- * marker at the start of the holdout.
+ * with points, each forecast (e.g. fixed origin, rolling origin) in its own colour and dash, the
+ * bands of the first forecast (`pushBands`), a marker at the start of the holdout.
  */
 export function holdoutChart(input: HoldoutChartInput): Buffer {
   const { width, height } = resolveSize(input);
@@ -448,12 +473,31 @@ export function holdoutChart(input: HoldoutChartInput): Buffer {
     const color = palette.cycle[i % palette.cycle.length];
     datasets.push(lineDataset(fcast.label, points(input.time, fcast.values, f), color, { dash: dashes[i % dashes.length], points: showPoints(input.time.length), order: 0 }));
   });
+  const styles: LegendStyle[] = datasets.map(lineLegend);
+  pushBands(datasets, styles, [...(input.bands ?? [])].sort((a, b) => a.level - b.level), (values) => points(input.time, values, f));
   const marker = input.context !== undefined && input.time.length > 0 ? axisValue(input.time[0], f) : null;
-  return renderTimeLines(input, datasets, datasets.map(lineLegend), finiteBounds(input.context?.time ?? [], input.time), marker, width, height);
+  return renderTimeLines(input, datasets, styles, finiteBounds(input.context?.time ?? [], input.time), marker, width, height);
 }
 
-function shorten(name: string, max: number): string {
-  return name.length > max ? `${name.slice(0, max - 1)}…` : name;
+/**
+ * A label broken into lines of at most `width` characters at spaces or after commas (a word
+ * longer than a line stays whole), so no part of it is cut off.
+ * @example wrapLabel('AR lags 1-3, trend, 1 harmonic', 14) → ['AR lags 1-3,', 'trend, 1', 'harmonic']
+ */
+export function wrapLabel(name: string, width: number): string[] {
+  const words = name.split(' ');
+  const lines: string[] = [];
+  let line = '';
+  for (const w of words) {
+    if (line === '') line = w;
+    else if (line.length + 1 + w.length <= width) line += ` ${w}`;
+    else {
+      lines.push(line);
+      line = w;
+    }
+  }
+  if (line !== '' || lines.length === 0) lines.push(line);
+  return lines;
 }
 
 function deltaText(d: number): string {
@@ -461,13 +505,18 @@ function deltaText(d: number): string {
   return `+${d < 0.01 ? String(Number(d.toPrecision(2))) : d < 10 ? d.toFixed(2) : d < 100 ? d.toFixed(1) : d.toFixed(0)}`;
 }
 
+/** Characters per line of a ranking label. */
+const RANK_LABEL_CHARS = 62;
+
 /**
  * Ranking of candidates: horizontal bars of Δcriterion (difference from the best candidate),
- * best at the top in orange, the rest in teal, each bar labelled with its Δ. Candidates with a
+ * best at the top in indigo, the rest in grey-blue, each bar labelled with its Δ and each
+ * candidate named in full (labels wrap, `wrapLabel`; the chart grows to fit them). Candidates with a
  * non-finite Δ are left out and counted in the subtitle.
  */
 export function rankingChart(input: RankingChartInput): Buffer {
-  const { width, height } = resolveSize(input);
+  const size = resolveSize(input);
+  const width = size.width;
   const top = input.top ?? 15;
   if (!Number.isInteger(top) || top < 1) throw new RangeError(`rankingChart: top must be an integer ≥ 1, got ${top}`);
   const finite = input.candidates.map((c, i) => ({ ...c, i })).filter((c) => Number.isFinite(c.delta));
@@ -478,6 +527,9 @@ export function rankingChart(input: RankingChartInput): Buffer {
   if (finite.length > shown.length) notes.push(`best ${shown.length} of ${finite.length} candidates`);
   const dropped = input.candidates.length - finite.length;
   if (dropped > 0) notes.push(`${dropped} without a finite score not shown`);
+  // every label whole: rows of up to three lines, the chart as tall as they need
+  const lineCount = shown.reduce((sum, c) => sum + Math.max(1, wrapLabel(c.name, RANK_LABEL_CHARS).length), 0);
+  const height = input.height ?? Math.min(4000, Math.max(size.height, 130 + lineCount * 15 + shown.length * 10));
   const bestDelta = shown.length > 0 ? shown[0].delta : 0;
   const maxDelta = shown.reduce((m, c) => Math.max(m, c.delta), 0);
   const valueLabels: Plugin = {
@@ -501,7 +553,7 @@ export function rankingChart(input: RankingChartInput): Buffer {
   const config: ChartConfiguration = {
     type: 'bar',
     data: {
-      labels: shown.map((c) => shorten(c.name, 56)),
+      labels: shown.map((c) => wrapLabel(c.name, RANK_LABEL_CHARS)),
       datasets: [
         {
           label: `Δ${input.criterion}`,
@@ -538,87 +590,41 @@ export function rankingChart(input: RankingChartInput): Buffer {
   return renderChart(config, width, height);
 }
 
-/** The default largest lag of the residual autocorrelation panel. */
-function defaultMaxLag(n: number, season: number | null | undefined): number {
-  const wanted = season ? Math.max(12, 2 * season) : 20;
-  return Math.max(0, Math.min(wanted, 48, n - 1));
-}
-
 /**
- * Residual diagnostics in one image of two panels: the residuals over time with a zero line
- * (top), and their sample autocorrelations r_1 … r_L as bars with the approximate 95 % bounds
- * ±1.96/√n of white noise, n the number of finite residuals (bottom).
- * Autocorrelations: `sampleAutocorrelations` (missing residuals skipped pairwise). The bounds:
- * Box, Jenkins, Reinsel & Ljung, "Time Series Analysis", 5th ed. (2015), chapter 2
- * (standard error 1/√n of r_k for white noise).
+ * Residual whiteness in one panel: the normalised cumulative periodogram of the residuals
+ * (`cumulativePeriodogram`, a step line against frequency in cycles per period), the white-noise
+ * diagonal, and Bartlett's 95 % Kolmogorov–Smirnov band around it (dashed). A residual series
+ * with a cycle or trend left in it climbs early and leaves the band; the subtitle gives D, the
+ * band half-width and the p-value. Source: Box, Jenkins, Reinsel & Ljung (2015), §8.2.4.
  */
 export function residualChart(input: ResidualChartInput): Buffer {
-  const { width, height } = resolveSize(input, 760);
-  const f = input.frequency;
-  const res = points(input.time, input.residuals, f);
-  let n = 0;
-  for (let i = 0; i < input.residuals.length; i++) if (Number.isFinite(input.residuals[i])) n++;
-  const maxLag = input.maxLag ?? defaultMaxLag(input.residuals.length, input.season);
-  if (!Number.isInteger(maxLag) || maxLag < 0) throw new RangeError(`residualChart: maxLag must be an integer ≥ 0, got ${maxLag}`);
-  const acf = sampleAutocorrelations(input.residuals, maxLag);
-  const bound = n > 0 ? 1.96 / Math.sqrt(n) : Number.NaN;
-  const { first, last } = finiteBounds(input.time);
-  const range = timeRange(first, last, f);
-  const zero = [{ x: range.min, y: 0 }, { x: range.max, y: 0 }];
-  const topHeight = Math.round(height * 0.54);
-  const residualLine = lineDataset('residual (observed − fitted)', res, palette.observed, { width: look.thinLineWidth, points: true, order: 0 });
-  const top: ChartConfiguration = {
+  const { width, height } = resolveSize(input);
+  const cp = cumulativePeriodogram(input.residuals);
+  const q = cp.frequency.length;
+  const fx = Array.from(cp.frequency);
+  const diag = fx.map((x, j) => ({ x, y: (j + 1) / q }));
+  const step = fx.map((x, j) => ({ x, y: Number.isFinite(cp.cumulative[j]) ? cp.cumulative[j] : null }));
+  const band = Number.isFinite(cp.band95) ? cp.band95 : Number.NaN;
+  const edge = (sign: number) => diag.map((p) => ({ x: p.x, y: Number.isFinite(band) ? Math.min(1, Math.max(0, p.y + sign * band)) : null }));
+  const cumulative = { ...lineDataset('cumulative periodogram of the residuals', step, palette.observed, { order: 0 }), stepped: 'before' as const };
+  const white = lineDataset('white noise', diag, palette.marker, { width: 1, order: 1 });
+  const upper = lineDataset('95 % band (Kolmogorov–Smirnov)', edge(1), palette.bound, { width: look.thinLineWidth, dash: [6, 4], order: 2 });
+  const lower = lineDataset('', edge(-1), palette.bound, { width: look.thinLineWidth, dash: [6, 4], order: 2 });
+  const verdict = Number.isFinite(cp.statistic)
+    ? `n = ${cp.n} residuals; D = ${cp.statistic.toFixed(3)} against a band of ±${band.toFixed(3)}, p = ${cp.pValue < 0.001 ? '< 0.001' : cp.pValue.toFixed(3)}: ${cp.statistic <= band ? 'inside, no evidence of structure left' : 'outside, a cycle or trend is left'}`
+    : `n = ${cp.n} residuals: too few or constant, no periodogram`;
+  const notes = [input.subtitle, verdict].filter((t): t is string => t !== undefined && t !== '').join(' · ');
+  const config: ChartConfiguration = {
     type: 'line',
-    data: { datasets: [residualLine, lineDataset('', zero, palette.axis, { width: 1, order: 1 })] },
+    data: { datasets: [cumulative, white, upper, lower] },
     options: {
       layout: LAYOUT,
-      plugins: frame(input.title, input.subtitle, [lineLegend(residualLine), NO_LEGEND]),
-      scales: { x: timeScale(first, last, f, width), y: valueScale(input.unit ? `residual (${input.unit})` : 'residual') },
-    },
-  } as ChartConfiguration;
-  const lags = Array.from({ length: maxLag }, (_, k) => String(k + 1));
-  const finiteAcf = Array.from(acf, (r) => (Number.isFinite(r) ? r : null));
-  const boundLine = (sign: number) => ({
-    type: 'line' as const,
-    label: sign > 0 ? '±1.96/√n' : '',
-    data: lags.map(() => (Number.isFinite(bound) ? sign * bound : null)),
-    borderColor: palette.bound,
-    backgroundColor: palette.bound,
-    borderWidth: 1.25,
-    borderDash: [6, 4],
-    pointRadius: 0,
-    fill: false,
-    order: 0,
-  });
-  const span = Number.isFinite(bound) ? bound * 1.6 : 0.5;
-  const bottom: ChartConfiguration = {
-    type: 'bar',
-    data: {
-      labels: lags,
-      datasets: [
-        { type: 'bar', label: 'autocorrelation', data: finiteAcf, backgroundColor: palette.fitted, borderWidth: 0, barPercentage: 0.6, order: 1 },
-        boundLine(1),
-        boundLine(-1),
-      ],
-    },
-    options: {
-      layout: LAYOUT,
-      plugins: frame('Autocorrelation of the residuals', `n = ${n} residuals, lags 1–${maxLag}`, [
-        { kind: 'rect', color: palette.fitted },
-        lineLegend(boundLine(1)),
-        NO_LEGEND,
-      ]),
+      plugins: frame(input.title, notes, [lineLegend(cumulative), lineLegend(white), lineLegend(upper), NO_LEGEND]),
       scales: {
-        x: {
-          type: 'category',
-          grid: { display: false },
-          border: { color: palette.axis },
-          ticks: { color: palette.mutedText, font: font(look.tickSize), autoSkip: true, maxRotation: 0 },
-          title: axisTitle('lag (periods)'),
-        },
-        y: valueScale('autocorrelation', { suggestedMin: -span, suggestedMax: span, grace: 0 }),
+        x: { type: 'linear', min: 0, max: 0.5, grid: { color: palette.grid }, border: { color: palette.axis }, ticks: { color: palette.mutedText, font: font(look.tickSize) }, title: axisTitle('frequency (cycles per period; 0.5 = alternating)') },
+        y: valueScale('cumulative share of the residual variance', { min: 0, max: 1, grace: 0 }),
       },
     },
   } as ChartConfiguration;
-  return renderStacked([{ config: top, height: topHeight }, { config: bottom, height: height - topHeight }], width);
+  return renderChart(config, width, height);
 }

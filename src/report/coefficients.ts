@@ -32,3 +32,13 @@ export function coefficientRows(terms: readonly string[], theta: ArrayLike<numbe
     return { term, estimate: theta[j], se: s, lower: ok ? theta[j] - z * s : Number.NaN, upper: ok ? theta[j] + z * s : Number.NaN, active: Boolean(active[j]) };
   });
 }
+
+/** The coefficient table as text lines for the terminal summary (term, estimate, se, interval). */
+export function coefficientLines(rows: readonly CoefficientRow[], level = COEFFICIENT_LEVEL, format: (x: number) => string = String): string[] {
+  const width = Math.max(4, ...rows.map((r) => r.term.length));
+  const cells = (a: string, b: string, c: string, d: string) => `  ${a.padEnd(width)}  ${b.padStart(12)}  ${c.padStart(12)}  ${d}`.trimEnd();
+  return [
+    cells('term', 'estimate', 'std. error', `${level} % interval`),
+    ...rows.map((r) => cells(r.term, format(r.estimate), r.active ? format(r.se) : 'left out', r.active && Number.isFinite(r.lower) ? `${format(r.lower)} to ${format(r.upper)}` : '')),
+  ];
+}

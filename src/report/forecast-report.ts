@@ -11,6 +11,8 @@ import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
 import { setAsideWords } from '../select/search.js';
 import { candidatesCsv } from './candidates.js';
+import { coefficientLines, coefficientRows, COEFFICIENT_LEVEL } from './coefficients.js';
+import { formatTableNumber } from './table-numbers.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
@@ -185,6 +187,8 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   const outOfSample = ev0 ? new Float64Array(n).fill(NaN) : undefined;
   if (ev0 && outOfSample) for (let j = 0; j < ev0.holdout; j++) outOfSample[nTrain + j] = ev0.fixed.point[j];
   const holdoutStart = ev0 ? series.time[ev0.nTrain] : undefined;
+  // a series that is never negative gets a value axis that stops at zero
+  const floor = series.values.every((v) => !(v < 0)) ? 0 : undefined;
   out['history.png'] = historyChart({
     title: `${title}: history, one-step fitted values${ev0 ? ' and the holdout forecast' : ''}`,
     subtitle: `${asserted.structure.label}${ev0 ? `; fitted values are in-sample (refit on all data) and stop at the holdout, where the forecast made without it is drawn` : ''}`,
@@ -196,6 +200,7 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
     fittedLabel: 'one-step fitted (in-sample)',
     ...(outOfSample ? { outOfSample, outOfSampleLabel: 'holdout forecast (out of sample)' } : {}),
     holdoutStart,
+    floor,
   });
   const show = Math.min(n, Math.max(series.season ? 6 * series.season : 40, 3 * run.horizon));
   const story = runStory(run);
@@ -210,6 +215,7 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
       mean: run.forecast.paths.point,
       bands: run.forecast.paths.bands.map((b) => ({ level: b.level / 100, lower: b.lower, upper: b.upper })),
     },
+    floor,
   });
   const ev = run.evaluation;
   if (ev) {
@@ -227,6 +233,8 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
         { label: 'rolling one-step, learning', values: ev.rolling.oneStep },
         { label: 'rolling one-step, frozen', values: ev.frozen.oneStep },
       ],
+      bands: ev.fixed.bands.map((b) => ({ level: b.level / 100, lower: b.lower, upper: b.upper })),
+      floor,
     });
   }
   out['ranking.png'] = rankingChart({
@@ -236,12 +244,9 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
     candidates: run.search.ranking.filter((c) => c.status === 'fitted').map((c) => ({ name: c.label, delta: c.delta })),
   });
   out['residuals.png'] = residualChart({
-    title: `${title}: one-step residuals${asserted.structure.transform === 'log' ? ' (log scale)' : ''}`,
+    title: `${title}: are the one-step residuals white?${asserted.structure.transform === 'log' ? ' (log scale)' : ''}`,
     subtitle: run.search.winner.whiteness.pValue !== undefined ? `Ljung–Box p = ${fmt(run.search.winner.whiteness.pValue)}` : undefined,
-    frequency: f,
-    time: Float64Array.from(run.fitted.index, (t) => series.time[t]),
     residuals: run.fitted.residuals,
-    season: series.season,
   });
   return out;
 }
@@ -273,6 +278,7 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   const share = story.point.kind === 'combined' ? ` (share of the point forecast: ${(100 * story.point.assertedShare).toFixed(0)} %)` : '';
   lines.push(`Asserted model${share}: ${asserted.structure.label}`);
   lines.push(`  ${asserted.equation}`);
+  lines.push(...coefficientLines(coefficientRows(asserted.structure.terms, asserted.estimate.theta, asserted.estimate.se, asserted.estimate.active), COEFFICIENT_LEVEL, fmt));
   for (const d of asserted.derived) lines.push(`  ${d.name}: ${typeof d.value === 'number' ? fmt(d.value) : String(d.value)}${d.unit ? ` ${d.unit}` : ''}${d.note ? `  (${d.note})` : ''}`);
   lines.push('');
   const aside = search.failed > 0 ? `, ${search.failed} set aside (${setAsideWords(search.setAside)})` : '';
@@ -357,10 +363,7 @@ function pad(cells: string[], widths: number[]): string {
     .trimEnd();
 }
 
+/** A number in the terminal summary: six significant digits (table-numbers.ts). */
 export function fmt(x: number): string {
-  if (!Number.isFinite(x)) return String(x);
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  if (a >= 1e-3 && a < 1e7) return String(Number(x.toPrecision(4)));
-  return x.toExponential(3);
+  return formatTableNumber(x);
 }

@@ -195,7 +195,7 @@ export interface SearchWinner {
   structure: Structure;
   estimate: Estimate;
   result: CandidateResult;
-  /** The fitted equation with ± standard errors. */
+  /** The fitted equation, coefficients inline (their standard errors are in `estimate.se`). */
   equation: string;
   derived: Derived[];
   /** One-step predictions ẑ and residuals z − ẑ on the common sample (scoring scale). */
@@ -648,7 +648,7 @@ export function search(series: Series, options: SearchOptions = {}): SearchResul
       structure,
       estimate,
       result: top,
-      equation: structure.describe(estimate.theta, estimate.se),
+      equation: structure.describe(estimate.theta),
       derived: structure.derived(estimate.theta, series),
       predictions,
       residuals,

@@ -59,7 +59,7 @@ describe('certa forecast: the headline is what is forecast', () => {
 
   it('--bands analytic takes the asserted equation’s own bands and says they ignore estimation and structure uncertainty', () => {
     const { stdout, summary, model } = run(['--bands', 'analytic']);
-    expect(stdout).toMatch(/^Bands: 80 % and 95 %, from the asserted equation alone \(analytic, under certainty equivalence/m);
+    expect(stdout).toMatch(/^Bands: 50 % and 90 %, from the asserted equation alone \(analytic, under certainty equivalence/m);
     expect(summary.forecast.bands.method).toBe('analytic');
     expect(summary.forecast.bands.calibration).toBeNull();
     expect(model.body.meta.intervalMethod).toBe('analytic');
@@ -70,10 +70,10 @@ describe('certa forecast: the headline is what is forecast', () => {
     // seasonal naive forecast wins the 24-month holdout.
     const { stdout, summary } = run(['--families', 'arx']);
     expect(summary.evaluation.beaten_by_baseline).toBe(true);
-    expect(summary.evaluation.best_baseline.name).toBe('seasonal-naive');
+    expect(summary.evaluation.best_baseline.name).toBe('last-season');
     expect(summary.evaluation.best_baseline.mase).toBeLessThan(summary.evaluation.model_mase);
-    expect(summary.warnings.some((w: string) => /^the seasonal-naive baseline beat the model on the holdout: MASE \d/.test(w))).toBe(true);
-    expect(stdout).toMatch(/^Verdict: the seasonal-naive baseline beat the model on the holdout/m);
+    expect(summary.warnings.some((w: string) => /^the last-season baseline beat the model on the holdout: MASE \d/.test(w))).toBe(true);
+    expect(stdout).toMatch(/^Verdict: the last-season baseline beat the model on the holdout/m);
   });
 
   it('rejects an unknown --point or --bands with one line and exit 2', () => {

@@ -27,7 +27,7 @@ describe('certa forecast', () => {
       const ra = runCli(['forecast', ...demoArgs, '--out', a, '--seed', '7']);
       expect(ra.code, ra.stderr).toBe(0);
       const files = readdirSync(a).sort();
-      expect(files).toEqual(['candidates.csv', 'forecast.csv', 'forecast.png', 'history.png', 'holdout.png', 'metrics.csv', 'model.json', 'ranking.png', 'residuals.png', 'summary.json']);
+      expect(files).toEqual(['candidates.csv', 'forecast.csv', 'forecast.png', 'history.png', 'holdout.png', 'metrics.csv', 'model.json', 'ranking.png', 'report.html', 'residuals.png', 'summary.json']);
       const first = new Map(files.map((f) => [f, readFileSync(join(a, f))]));
       const rb = runCli(['forecast', ...demoArgs, '--out', a, '--seed', '7']);
       expect(rb.code, rb.stderr).toBe(0);
@@ -46,15 +46,19 @@ describe('certa forecast', () => {
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toMatch(/Asserted model( \(share of the point forecast: \d+ %\))?: /);
     expect(r.stdout).toMatch(/Point forecast: /);
-    expect(r.stdout).toMatch(/Bands: 80 % and 95 %, calibrated on this point forecast’s own/);
+    expect(r.stdout).toMatch(/Bands: 50 % and 90 %, calibrated on this point forecast’s own/);
     expect(r.stdout).toMatch(/y\[t\] = /);
-    expect(r.stdout).toMatch(/fixed-origin\s+seasonal-naive/);
+    expect(r.stdout).toMatch(/fixed-origin\s+last-season/);
     expect(r.stdout).toMatch(/rolling-one-step\s+model, frozen/);
     expect(r.stdout).toMatch(/not financial advice/);
     expect(readdirSync(out).some((f) => f.endsWith('.png'))).toBe(false);
+    expect(readdirSync(out)).toContain('report.html');
+    const noReport = join(tmp(), 'n');
+    expect(runCli(['forecast', ...demoArgs, '--out', noReport, '--no-charts', '--no-report']).code).toBe(0);
+    expect(readdirSync(noReport)).not.toContain('report.html');
     // forecast.csv: tidy, with every kind, the holdout rows carrying fixed and rolling forecasts.
     const csv = readFileSync(join(out, 'forecast.csv'), 'utf8').trim().split('\r\n');
-    expect(csv[0]).toBe('series,time,kind,value,point,rolling_point,lower_80,upper_80,lower_95,upper_95');
+    expect(csv[0]).toBe('series,time,kind,value,point,rolling_point,lower_50,upper_50,lower_90,upper_90');
     const kinds = new Set(csv.slice(1).map((l) => l.split(',')[2]));
     expect([...kinds].sort()).toEqual(['fitted', 'forecast', 'history', 'holdout']);
     const holdout = csv.filter((l) => l.split(',')[2] === 'holdout');

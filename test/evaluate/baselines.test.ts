@@ -6,12 +6,12 @@ import {
   baselineByName,
   centredMovingAverage,
   classicalMultiplicativeIndices,
-  drift,
-  naive,
+  averageChange,
+  lastValue,
   naive2,
   naive2Details,
   seasonalityTest,
-  seasonalNaive,
+  lastSeason,
 } from '../../src/evaluate/baselines.js';
 import { sampleAutocorrelations } from '../../src/evaluate/autocorrelation.js';
 import { ModelError, UsageError } from '../../src/data/errors.js';
@@ -19,46 +19,46 @@ import { ModelError, UsageError } from '../../src/data/errors.js';
 const f64 = (xs: number[]): Float64Array => Float64Array.from(xs);
 const list = (xs: Float64Array): number[] => Array.from(xs);
 
-describe('naive', () => {
+describe('lastValue', () => {
   it('naive(train, 3) repeats the last value', () => {
-    expect(list(naive(f64([3, 5, 4]), 3, null))).toEqual([4, 4, 4]);
+    expect(list(lastValue(f64([3, 5, 4]), 3, null))).toEqual([4, 4, 4]);
   });
   it('naive with h = 0 returns an empty forecast', () => {
-    expect(naive(f64([1]), 0, null).length).toBe(0);
+    expect(lastValue(f64([1]), 0, null).length).toBe(0);
   });
   it('naive on an empty training series throws ModelError', () => {
-    expect(() => naive(f64([]), 2, null)).toThrow(ModelError);
+    expect(() => lastValue(f64([]), 2, null)).toThrow(ModelError);
   });
   it('naive rejects a negative or fractional horizon', () => {
-    expect(() => naive(f64([1]), -1, null)).toThrow(RangeError);
-    expect(() => naive(f64([1]), 1.5, null)).toThrow(RangeError);
+    expect(() => lastValue(f64([1]), -1, null)).toThrow(RangeError);
+    expect(() => lastValue(f64([1]), 1.5, null)).toThrow(RangeError);
   });
 });
 
-describe('seasonalNaive', () => {
+describe('lastSeason', () => {
   it('repeats the last season (hand: [1..6], m = 4, h = 5 → 3, 4, 5, 6, 3)', () => {
-    expect(list(seasonalNaive(f64([1, 2, 3, 4, 5, 6]), 5, 4))).toEqual([3, 4, 5, 6, 3]);
+    expect(list(lastSeason(f64([1, 2, 3, 4, 5, 6]), 5, 4))).toEqual([3, 4, 5, 6, 3]);
   });
   it('with h = 2m repeats the last season twice (hand: m = 3, last season 7, 8, 9)', () => {
-    expect(list(seasonalNaive(f64([1, 7, 8, 9]), 6, 3))).toEqual([7, 8, 9, 7, 8, 9]);
+    expect(list(lastSeason(f64([1, 7, 8, 9]), 6, 3))).toEqual([7, 8, 9, 7, 8, 9]);
   });
-  it('with season null equals naive', () => {
-    expect(list(seasonalNaive(f64([1, 2, 9]), 3, null))).toEqual([9, 9, 9]);
+  it('with season null equals lastValue', () => {
+    expect(list(lastSeason(f64([1, 2, 9]), 3, null))).toEqual([9, 9, 9]);
   });
   it('throws ModelError when the training series is shorter than a season', () => {
-    expect(() => seasonalNaive(f64([1, 2, 3]), 2, 4)).toThrow(ModelError);
+    expect(() => lastSeason(f64([1, 2, 3]), 2, 4)).toThrow(ModelError);
   });
 });
 
-describe('drift', () => {
+describe('averageChange', () => {
   it('extends the line through first and last values (hand: [2, 4, 8], slope (8 − 2)/2 = 3 → 11, 14, 17)', () => {
-    expect(list(drift(f64([2, 4, 8]), 3, null))).toEqual([11, 14, 17]);
+    expect(list(averageChange(f64([2, 4, 8]), 3, null))).toEqual([11, 14, 17]);
   });
   it('uses only the end points (hand: [10, 0, 0, 16], slope 6/3 = 2 → 18, 20)', () => {
-    expect(list(drift(f64([10, 0, 0, 16]), 2, 12))).toEqual([18, 20]);
+    expect(list(averageChange(f64([10, 0, 0, 16]), 2, 12))).toEqual([18, 20]);
   });
   it('with a single value has slope zero', () => {
-    expect(list(drift(f64([5]), 2, null))).toEqual([5, 5]);
+    expect(list(averageChange(f64([5]), 2, null))).toEqual([5, 5]);
   });
 });
 
@@ -176,13 +176,13 @@ describe('naive2', () => {
     [120, 90, 110].forEach((v, i) => expect(got[i]).toBeCloseTo(v, 10));
   });
 
-  it('is the plain naive forecast when the test says not seasonal', () => {
+  it('is the last-value forecast when the test says not seasonal', () => {
     const d = naive2Details(f64(six.slice(0, 12)), 2, 4);
     expect(d.adjustment).toBe('not-seasonal');
     expect(list(d.forecast)).toEqual([110, 110]);
   });
 
-  it('is plain naive without a season, with fewer than 2m values, or with non-positive values', () => {
+  it('is the last value without a season, with fewer than 2m values, or with non-positive values', () => {
     expect(naive2Details(f64(six), 2, null).adjustment).toBe('no-season');
     expect(naive2Details(f64(six.slice(0, 7)), 2, 4).adjustment).toBe('too-short');
     const withZero = six.slice();
@@ -200,7 +200,7 @@ describe('registry', () => {
     for (const name of BASELINE_NAMES) expect(BASELINES[name](train, 3, 4).length).toBe(3);
   });
   it('baselineByName finds a member and throws UsageError for an unknown name', () => {
-    expect(baselineByName('drift')).toBe(drift);
+    expect(baselineByName('average-change')).toBe(averageChange);
     expect(() => baselineByName('toString')).toThrow(UsageError);
     expect(() => baselineByName('mean')).toThrow(UsageError);
   });

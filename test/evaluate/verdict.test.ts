@@ -10,17 +10,17 @@ const row = (method: string, forecast: number[], view: MetricRow['view'] = 'fixe
 describe('baselineVerdict', () => {
   it('names the baseline with the lowest fixed-origin MASE and says it beat the model', () => {
     // model MAE 2 → MASE 1; naive (5, 5) MAE 1 → 0.5; drift (6, 7) MAE 1.5 → 0.75.
-    const v = baselineVerdict([row('model', [4, 6]), row('naive', [5, 5]), row('drift', [6, 7]), row('naive', [6, 4], 'rolling-one-step')]);
-    expect(v).toEqual({ baseline: 'naive', baselineMase: 0.5, modelMase: 1, beaten: true });
+    const v = baselineVerdict([row('model', [4, 6]), row('last-value', [5, 5]), row('average-change', [6, 7]), row('last-value', [6, 4], 'rolling-one-step')]);
+    expect(v).toEqual({ baseline: 'last-value', baselineMase: 0.5, modelMase: 1, beaten: true });
   });
 
   it('is not beaten on a tie, and ignores rows that are not baselines', () => {
-    const v = baselineVerdict([row('model', [5, 5]), row('naive', [5, 5]), row('asserted equation alone', [6, 4])]);
+    const v = baselineVerdict([row('model', [5, 5]), row('last-value', [5, 5]), row('asserted equation alone', [6, 4])]);
     expect(v?.beaten).toBe(false);
-    expect(v?.baseline).toBe('naive');
+    expect(v?.baseline).toBe('last-value');
   });
 
   it('is null without a model row', () => {
-    expect(baselineVerdict([row('naive', [5, 5])])).toBeNull();
+    expect(baselineVerdict([row('last-value', [5, 5])])).toBeNull();
   });
 });

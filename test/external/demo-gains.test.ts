@@ -32,7 +32,7 @@ describe('certa forecast on the demo recovers the generator’s input effects (d
       const gain = derived.find((d) => d.name === `gain ${input}`)?.value as number;
       expect(Math.sign(gain)).toBe(Math.sign(truth));
       expect(Math.abs(gain / truth - 1)).toBeLessThan(0.25);
-      expect(r.stdout).toMatch(new RegExp(`gain ${input}: ${String(Number(gain.toPrecision(4))).replace('.', '\\.')} `));
+      expect(r.stdout).toMatch(new RegExp(`gain ${input}: ${String(Number(gain.toPrecision(6))).replace('.', '\\.')} `));
       const effect = model.effects?.find((e) => e.input === input);
       expect(Math.abs((effect?.gain as number) / gain - 1)).toBeLessThan(1e-6);
       expect(effect?.delay).toBe(0);

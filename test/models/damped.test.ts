@@ -107,7 +107,7 @@ describe('the change family with drift and harmonics', () => {
     const e = drift.estimate(s, 1, 25);
     expect(e.theta[0]).toBeCloseTo((values[24] - values[0]) / 24, 12);
     const f = drift.simulate(e.theta, s, [], 5);
-    const want = BASELINES.drift(s.values, 5, null);
+    const want = BASELINES['average-change'](s.values, 5, null);
     for (let k = 0; k < 5; k++) expect(f[k]).toBeCloseTo(want[k], 10);
     expect(drift.describe(e.theta)).toMatch(/^Δy\[t\] = [0-9.]+ \+ e\[t\]$/);
     expect(drift.derived(e.theta, s).find((d) => d.name === 'long-run change')?.value).toBeCloseTo(e.theta[0], 12);

@@ -120,9 +120,5 @@ export const lumoRanking: RankingChartInput = {
 export const lumoResiduals: ResidualChartInput = {
   title: 'Lumo kettles: residuals of the asserted model',
   subtitle: 'one-step prediction errors, 2017-02 to 2023-12',
-  unit: 'kettles / month',
-  frequency: 'monthly',
-  season: 12,
-  time: lumoTime,
   residuals: lumoFitted.map((fv, i) => lumoSales[i] - fv),
 };

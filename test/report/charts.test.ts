@@ -50,6 +50,12 @@ function countColour(img: Img, rgb: number[], x0: number, x1: number, tol = 4): 
  * Pixels of colour `rgb` in rows [y0, y1) whose neighbours 2 pixels up, down, left and right have
  * that colour too: filled areas count, the anti-aliased edges of thin lines do not.
  */
+function countNear(img: Img, rgb: number[], x0: number, x1: number, tol: number, y0 = 0, y1 = img.height): number {
+  let count = 0;
+  for (let y = y0; y < y1; y++) for (let x = x0; x < x1; x++) if (near(img, x, y, rgb, tol)) count++;
+  return count;
+}
+
 function countFilled(img: Img, rgb: number[], x0: number, x1: number, tol = 4, y0 = 0, y1 = img.height): number {
   let count = 0;
   for (let y = y0; y < y1; y++) {
@@ -69,17 +75,16 @@ function countFilled(img: Img, rgb: number[], x0: number, x1: number, tol = 4, y
 }
 
 const WHITE: [number, number, number] = [255, 255, 255];
-const ORANGE: [number, number, number] = parseRgb(palette.forecast);
-// the band colours of palette.ts: rgba(217, 115, 26, 0.34) inner, 0.17 outer
-const OUTER_ON_WHITE = over(ORANGE, 0.17, WHITE);
-const INNER_ON_OUTER = over(ORANGE, 0.34, OUTER_ON_WHITE);
+// the inner band fill of palette.ts, rgba(59, 76, 192, 0.26), over white; wider bands are edges
+const INNER_ON_WHITE = over(parseRgb(palette.forecast), 0.26, WHITE);
+const EDGE: [number, number, number] = parseRgb(palette.bandEdge);
 
 const cases: Array<[string, () => Buffer, number, number]> = [
   ['historyChart', () => historyChart(lumoHistory), 1000, 560],
   ['forecastChart', () => forecastChart(lumoForecast), 1000, 560],
   ['holdoutChart', () => holdoutChart(lumoHoldout), 1000, 560],
   ['rankingChart', () => rankingChart(lumoRanking), 1000, 560],
-  ['residualChart', () => residualChart(lumoResiduals), 1000, 760],
+  ['residualChart', () => residualChart(lumoResiduals), 1000, 560],
 ];
 
 describe.each(cases)('%s', (_name, render, width, height) => {
@@ -99,23 +104,39 @@ describe.each(cases)('%s', (_name, render, width, height) => {
 });
 
 describe('forecastChart bands', () => {
-  it('draws both band shades in the forecast part and none over the history', async () => {
+  it('fills the inner band and draws the outer band as edges, in the forecast part only', async () => {
     const img = await pixels(forecastChart(lumoForecast));
     // history spans 2016–2023, the forecast 2024–2025: the right fifth of the plot is forecast
-    // rows 100–500 are inside the plot area (the legend's colour boxes sit above row 90)
-    const left = countFilled(img, OUTER_ON_WHITE.map(Math.round), 0, 500, 4, 100, 500);
-    const rightOuter = countFilled(img, OUTER_ON_WHITE.map(Math.round), 780, 1000, 4, 100, 500);
-    const rightInner = countFilled(img, INNER_ON_OUTER.map(Math.round), 780, 1000, 4, 100, 500);
-    expect(left).toBe(0);
-    // measured on this fixture: about 130 outer-only and 530 inner pixels; the strips of the
-    // outer band are a few pixels tall, hence the lower bound
-    expect(rightOuter).toBeGreaterThan(50);
-    expect(rightInner).toBeGreaterThan(200);
+    // rows 100–500 are inside the plot area (the legend's samples sit above row 90)
+    const inner = (x0: number, x1: number) => countFilled(img, INNER_ON_WHITE.map(Math.round), x0, x1, 4, 100, 500);
+    const edge = (x0: number, x1: number) => countNear(img, EDGE, x0, x1, 10, 100, 500);
+    expect(inner(0, 500)).toBe(0);
+    expect(edge(0, 500)).toBe(0);
+    expect(inner(780, 1000)).toBeGreaterThan(200);
+    expect(edge(780, 1000)).toBeGreaterThan(30);
   });
-  it('draws no band shade when no bands are given', async () => {
+  it('draws no band when no bands are given', async () => {
     const img = await pixels(forecastChart({ ...lumoForecast, forecast: { ...lumoForecast.forecast, bands: [] } }));
-    expect(countFilled(img, INNER_ON_OUTER.map(Math.round), 780, 1000)).toBe(0);
-    expect(countFilled(img, OUTER_ON_WHITE.map(Math.round), 780, 1000)).toBe(0);
+    const withBands = await pixels(forecastChart(lumoForecast));
+    // anti-aliased line pixels may match the fill colour here and there, far fewer than a band
+    expect(countFilled(img, INNER_ON_WHITE.map(Math.round), 780, 1000)).toBeLessThan(countFilled(withBands, INNER_ON_WHITE.map(Math.round), 780, 1000) / 5);
+    expect(countNear(withBands, EDGE, 780, 1000, 10, 100, 500)).toBeGreaterThan(3 * countNear(img, EDGE, 780, 1000, 10, 100, 500));
+  });
+  it('holdoutChart draws the bands of the first forecast', async () => {
+    const bands = [{ level: 0.5, lower: Array.from(lumoHoldout.forecasts[0].values, (v) => v - 400), upper: Array.from(lumoHoldout.forecasts[0].values, (v) => v + 400) }];
+    const withBands = await pixels(holdoutChart({ ...lumoHoldout, bands }));
+    const without = await pixels(holdoutChart(lumoHoldout));
+    // inside the holdout the band lies over the holdout shade: count pixels bluer than any grey
+    const bluish = (img: Img) => {
+      let n = 0;
+      for (let y = 100; y < 500; y++) for (let x = 770; x < 980; x++) {
+        const o = 4 * (y * img.width + x);
+        if (img.data[o + 2] - img.data[o] > 25 && img.data[o + 2] - img.data[o] < 45) n++;
+      }
+      return n;
+    };
+    expect(bluish(withBands)).toBeGreaterThan(2000);
+    expect(bluish(without)).toBeLessThan(bluish(withBands) / 10);
   });
   it('accepts a custom size', () => {
     expect(pngSize(forecastChart({ ...lumoForecast, width: 640, height: 400 }))).toEqual({ width: 640, height: 400 });
@@ -134,25 +155,25 @@ describe('edge cases render without throwing', () => {
     isPng(historyChart({ title: 'one point', frequency: 'monthly', time: months(1), actual: [5], fitted: [5] }));
     isPng(forecastChart({ title: 'one point', frequency: 'monthly', history: { time: months(1), values: [5] }, forecast: { time: [stepTime(t0, 'monthly', 1)], mean: [6], bands: [{ level: 0.9, lower: [4], upper: [8] }] } }));
     isPng(holdoutChart({ title: 'one point', frequency: 'monthly', time: months(1), actual: [5], forecasts: [{ label: 'fixed origin', values: [4] }] }));
-    isPng(residualChart({ title: 'one point', frequency: 'monthly', time: months(1), residuals: [0.5] }));
+    isPng(residualChart({ title: 'one point', residuals: [0.5] }));
     isPng(rankingChart({ title: 'one candidate', criterion: 'BIC', candidates: [{ name: 'ARX(1,0)', delta: 0 }] }));
   });
   it('NaN gaps and all-NaN series', () => {
     const y = [1, 2, Number.NaN, 4, 5, Number.NaN, 7, 8];
     isPng(historyChart({ title: 'gaps', frequency: 'monthly', time: months(8), actual: y, fitted: y.map((v) => v + 0.5), holdoutStart: stepTime(t0, 'monthly', 6) }));
     isPng(historyChart({ title: 'all missing', frequency: 'monthly', time: months(4), actual: [Number.NaN, Number.NaN, Number.NaN, Number.NaN] }));
-    isPng(residualChart({ title: 'gaps', frequency: 'monthly', time: months(8), residuals: y, season: 12 }));
+    isPng(residualChart({ title: 'gaps', residuals: y }));
     isPng(holdoutChart({ title: 'gaps', frequency: 'monthly', context: { time: months(4), values: [1, Number.NaN, 3, 4] }, time: months(8).slice(4), actual: y.slice(4), forecasts: [{ label: 'a', values: [Number.NaN, 1, 2, 3] }] }));
   });
   it('a constant series (zero-variance residuals: autocorrelations NaN)', () => {
     const c = new Array(24).fill(3);
     isPng(historyChart({ title: 'constant', frequency: 'monthly', time: months(24), actual: c, fitted: c }));
-    isPng(residualChart({ title: 'constant', frequency: 'monthly', time: months(24), residuals: c }));
+    isPng(residualChart({ title: 'constant', residuals: c }));
     isPng(forecastChart({ title: 'constant', frequency: 'monthly', history: { time: months(24), values: c }, forecast: { time: months(30).slice(24), mean: c.slice(0, 6) } }));
   });
   it('empty inputs', () => {
     isPng(historyChart({ title: 'empty', frequency: 'monthly', time: [], actual: [] }));
-    isPng(residualChart({ title: 'empty', frequency: 'monthly', time: [], residuals: [] }));
+    isPng(residualChart({ title: 'empty', residuals: [] }));
     isPng(rankingChart({ title: 'empty', criterion: 'AICc', candidates: [] }));
   });
   it('every frequency, index included', () => {

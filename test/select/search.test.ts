@@ -132,7 +132,7 @@ describe('search: scoring', () => {
 
   it('returns the winner with its equation, derived quantities and a whiteness check', () => {
     expect(r.winner.equation).toMatch(/^(ln )?y\[t\] = /);
-    expect(r.winner.equation).toContain('±');
+    expect(r.winner.equation).not.toContain('±');
     expect(r.winner.derived.some((d) => d.name === 'stable')).toBe(true);
     expect(r.winner.residuals.length).toBe(r.sample.n);
     expect(r.winner.whiteness.lags).toBeGreaterThan(0);

@@ -1,0 +1,75 @@
+/**
+ * `index.html` of a batch: one row per series linking its `report.html`, with its status, the
+ * asserted structure, the holdout MASE and the best baseline. A static table (no chart library)
+ * with a small inline filter, so a page of 1,000 series opens at once; self-contained and offline
+ * like every certa page, every input text escaped.
+ */
+import { FORECAST_CAUTION } from './cautions.js';
+import { escapeHtml as esc, page } from './html.js';
+import { formatTableNumber } from './table-numbers.js';
+
+/** One series of a batch, as the index lists it. */
+export interface BatchIndexRow {
+  series: string;
+  /** The series' output folder, relative to the index page (its report is `<folder>/report.html`). */
+  folder: string;
+  status: 'ok' | 'failed' | 'skipped' | string;
+  /** Why the series failed or was skipped; null when it ran. */
+  reason: string | null;
+  /** Label of the asserted structure; null when none was asserted. */
+  structure: string | null;
+  holdoutMase: number | null;
+  bestBaseline: { name: string; mase: number } | null;
+}
+
+/** A relative folder as a link target: each path segment percent-encoded, `/` kept. */
+function href(folder: string): string {
+  return `${folder.split(/[\\/]/).filter((s) => s !== '').map(encodeURIComponent).join('/')}/report.html`;
+}
+
+function mase(x: number | null): string {
+  return x === null || !Number.isFinite(x) ? '' : esc(formatTableNumber(x));
+}
+
+const FILTER_SCRIPT = `(function () {
+  var input = document.getElementById('filter');
+  var rows = Array.prototype.slice.call(document.querySelectorAll('#series tbody tr'));
+  var keys = rows.map(function (r) { return r.textContent.toLowerCase(); });
+  var count = document.getElementById('shown');
+  input.addEventListener('input', function () {
+    var q = input.value.toLowerCase();
+    var n = 0;
+    for (var i = 0; i < rows.length; i++) {
+      var show = q === '' || keys[i].indexOf(q) >= 0;
+      rows[i].style.display = show ? '' : 'none';
+      if (show) n++;
+    }
+    count.textContent = String(n);
+  });
+})();`;
+
+/** The whole index page of a batch, rows in the order given. */
+export function renderBatchIndex(rows: readonly BatchIndexRow[], title = 'certa batch'): string {
+  const ok = rows.filter((r) => r.status === 'ok').length;
+  const beaten = rows.filter((r) => r.holdoutMase !== null && r.bestBaseline !== null && r.bestBaseline.mase < r.holdoutMase).length;
+  const body = rows
+    .map((r) => {
+      const linked = r.status === 'ok' ? `<a href="${esc(href(r.folder))}">${esc(r.series)}</a>` : esc(r.series);
+      const statusTag = `<span class="tag${r.status === 'ok' ? ' good' : ' bad'}">${esc(r.status)}</span>`;
+      const base = r.bestBaseline ? `${esc(r.bestBaseline.name)} ${mase(r.bestBaseline.mase)}` : '';
+      return `<tr><td>${linked}</td><td>${statusTag}${r.reason ? ` <span class="note">${esc(r.reason)}</span>` : ''}</td><td>${esc(r.structure ?? '')}</td><td class="n">${mase(r.holdoutMase)}</td><td>${base}</td></tr>`;
+    })
+    .join('\n');
+  const html = [
+    '<main>',
+    `<header class="top"><h1>${esc(title)}</h1><p class="sub">${rows.length} series: ${ok} forecast, ${rows.length - ok} not; the best baseline beat the model on ${beaten}</p></header>`,
+    `<section class="caution"><p>${esc(FORECAST_CAUTION)}</p></section>`,
+    `<section><p><input class="filter" id="filter" type="search" placeholder="filter by any text in a row" aria-label="filter rows"> <span class="note"><span id="shown">${rows.length}</span> shown</span></p>`,
+    '<table id="series"><thead><tr><th>series</th><th>status</th><th>asserted structure</th><th class="n">holdout MASE</th><th>best baseline (MASE)</th></tr></thead><tbody>',
+    body,
+    '</tbody></table></section>',
+    '</main>',
+    `<script>${FILTER_SCRIPT}</script>`,
+  ].join('\n');
+  return page(title, html);
+}
