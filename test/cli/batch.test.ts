@@ -89,7 +89,7 @@ describe('certa forecast on a file of several series', () => {
 
     // forecasts.csv: holdout and forecast rows of every forecast series, in file order.
     const fc = rawRecords(readFileSync(join(out, 'forecasts.csv'), 'utf8'));
-    expect(fc[0].text).toBe('series,time,kind,value,point,lower_80,upper_80,lower_95,upper_95\r\n');
+    expect(fc[0].text).toBe('series,time,kind,value,point,lower_50,upper_50,lower_90,upper_90\r\n');
     const order = [...new Set(fc.slice(1).map((x) => x.fields[0]))];
     expect(order).toEqual(['kiosk-1', 'a b', 'a_b', 'a/b', '../x', 'CON', 'kiosk-2']);
     expect(fc.slice(1).filter((x) => x.fields[0] === 'kiosk-1' && x.fields[2] === 'forecast')).toHaveLength(6);
