@@ -81,7 +81,8 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   } catch (e) {
     if (e instanceof UsageError) throw e;
   }
-  const manifests = await Promise.all(dirs.map(readManifest));
+  const manifests: Manifest[] = [];
+  for (const dir of dirs) manifests.push(await readManifest(dir));
   const first = manifests[0];
   const seen = new Map<number, string>();
   manifests.forEach((m, i) => {

@@ -6,7 +6,8 @@
  * start-up), through the same job function.
  *
  * The worker entry is `worker.js` next to this module in dist/; when this module runs from the
- * TypeScript sources (tests, benchmarks) it is `worker.ts`, loaded through tsx.
+ * TypeScript sources (tests, benchmarks) it is `worker.ts`, imported after registering tsx's
+ * loader in the new thread.
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
@@ -56,8 +57,7 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
     await Promise.all(Array.from({ length: IN_FLIGHT }, lane));
     return outcomes;
   }
-  const entry = import.meta.url.endsWith('.ts') ? new URL('./worker.ts', import.meta.url) : new URL('./worker.js', import.meta.url);
-  const execArgv = import.meta.url.endsWith('.ts') ? ['--import', 'tsx'] : [];
+  const fromSources = import.meta.url.endsWith('.ts');
   let next = 0;
   await new Promise<void>((resolve, reject) => {
     const workers: Worker[] = [];
@@ -80,7 +80,7 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
       next++;
     };
     for (let k = 0; k < count; k++) {
-      const w = new Worker(entry, { workerData: settings, execArgv });
+      const w = fromSources ? sourceWorker(settings) : new Worker(new URL('./worker.js', import.meta.url), { workerData: settings });
       workers.push(w);
       w.on('message', (m: { index: number; outcome: SeriesOutcome }) => {
         running--;
@@ -96,4 +96,11 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
     }
   });
   return outcomes;
+}
+
+/** A worker running worker.ts from the sources: it registers the tsx loader, then imports it. */
+function sourceWorker(settings: JobSettings): Worker {
+  const entry = new URL('./worker.ts', import.meta.url).href;
+  const boot = `import('tsx/esm/api').then((m) => { m.register(); return import(${JSON.stringify(entry)}); });`;
+  return new Worker(boot, { eval: true, workerData: settings });
 }

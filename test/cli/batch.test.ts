@@ -186,6 +186,20 @@ describe('certa forecast on a file of several series', () => {
     expect(existsSync(join(out, folderNames(NAMES)[NAMES.indexOf('a b')]))).toBe(true);
   });
 
+  it('certa search on the file: one folder per series by the same rule, the short series reported, exit 4', () => {
+    const out = join(dir, 'search');
+    const r = runCli(['search', file, '--id', 'kiosk', '--families', 'arx', '--json', '--out', out]);
+    expect(r.code).toBe(4);
+    const doc = parseResult(r.stdout);
+    expect(doc.totals).toEqual({ series: NAMES.length, succeeded: NAMES.length - 1, failed: 1 });
+    const folders = folderNames(NAMES);
+    doc.results.forEach((e: { series: string; status: string; folder: string | null }, i: number) => {
+      expect(e.series).toBe(NAMES[i]);
+      expect(e.folder).toBe(e.series === 'short' ? null : join(out, folders[i]));
+    });
+    expect(r.stderr).toMatch(/^certa: series "short" has 4 points/m);
+  });
+
   it('--series takes a list and globs, in file order, and names a pattern that matches nothing', () => {
     const out = join(dir, 'pick');
     const r = runCli([...base(), '--out', out, '--series', 'kiosk-2,a?b', '--quiet']);
