@@ -7,11 +7,14 @@
  *   delivered point forecast, the best baseline and its MASE, and the warnings (joined by ` | `).
  * - `forecasts.csv`: the holdout and forecast rows of every series (tidy: series, time, kind,
  *   value, point, lower_<level>, upper_<level>), series in the order of batch.csv.
- * - `batch.json`: what the run covered (how many series the file held, which shard), so that
- *   `certa merge` can check it was given every shard.
+ * - `batch.json`: what the run covered (how many series the file held, which shard, whether
+ *   reports were written), so that `certa merge` can check it was given every shard, and the
+ *   rows of batch.csv as data (from which `index.html`, the page linking every series' report,
+ *   is made, by one run or by a merge alike).
  *
  * `BatchRow` is also what a later index page of a batch reads.
  */
+import { renderBatchIndex } from '../report/batch-index.js';
 import { toCsv, toJson, type Cell } from '../report/tables.js';
 import type { Shard } from './shard.js';
 
@@ -60,9 +63,74 @@ export function forecastsRecords(columns: string[], rows: Cell[][]): string {
 }
 
 export const BATCH_FORMAT = 'certa-batch';
-export const BATCH_VERSION = 1;
+export const BATCH_VERSION = 2;
 
-/** `batch.json`: the run's coverage. */
-export function batchManifest(seriesInFile: number, shard: Shard | null, levels: readonly number[]): string {
-  return toJson({ format: BATCH_FORMAT, version: BATCH_VERSION, series_in_file: seriesInFile, shard: shard ? { k: shard.k, n: shard.n } : null, levels: [...levels] });
+/** A batch row as batch.json holds it (snake_case, as every machine output of certa). */
+export function batchRowJson(r: BatchRow): Record<string, unknown> {
+  return {
+    position: r.position,
+    series: r.series,
+    folder: r.folder,
+    status: r.status,
+    reason: r.reason,
+    structure: r.structure,
+    holdout_mase: r.holdoutMase,
+    best_baseline: r.bestBaseline,
+    baseline_mase: r.baselineMase,
+    warnings: [...r.warnings],
+  };
+}
+
+/** The inverse of batchRowJson (batch.json is validated by its reader first). */
+export function batchRowFromJson(j: Record<string, unknown>): BatchRow {
+  return {
+    position: j.position as number,
+    series: j.series as string,
+    folder: (j.folder as string | null) ?? null,
+    status: j.status as BatchStatus,
+    reason: (j.reason as string | null) ?? null,
+    structure: (j.structure as string | null) ?? null,
+    holdoutMase: (j.holdout_mase as number | null) ?? null,
+    bestBaseline: (j.best_baseline as string | null) ?? null,
+    baselineMase: (j.baseline_mase as number | null) ?? null,
+    warnings: [...((j.warnings as string[] | undefined) ?? [])],
+  };
+}
+
+/** What a batch run covered and what it found, for `batch.json`. */
+export interface BatchManifest {
+  seriesInFile: number;
+  shard: Shard | null;
+  levels: readonly number[];
+  /** Whether each series' report.html and the batch's index.html were written. */
+  report: boolean;
+  rows: readonly BatchRow[];
+}
+
+/** `batch.json`: the run's coverage and its rows. */
+export function batchManifest(m: BatchManifest): string {
+  return toJson({
+    format: BATCH_FORMAT,
+    version: BATCH_VERSION,
+    series_in_file: m.seriesInFile,
+    shard: m.shard ? { k: m.shard.k, n: m.shard.n } : null,
+    levels: [...m.levels],
+    report: m.report,
+    series: m.rows.map(batchRowJson),
+  });
+}
+
+/** `index.html` of a batch: every series with its status, linked to its report when it has one. */
+export function batchIndexHtml(rows: readonly BatchRow[]): string {
+  return renderBatchIndex(
+    rows.map((r) => ({
+      series: r.series,
+      folder: r.folder ?? '',
+      status: r.status,
+      reason: r.reason,
+      structure: r.structure,
+      holdoutMase: r.holdoutMase,
+      bestBaseline: r.bestBaseline !== null && r.baselineMase !== null ? { name: r.bestBaseline, mase: r.baselineMase } : null,
+    })),
+  );
 }

@@ -2,7 +2,8 @@
  * `certa merge`: the batch folders of the shards of one file (`--shard k/n`, k = 1 … n) joined
  * into one batch folder with the same bytes one run over the whole file would have written: the
  * series folders copied, the records of batch.csv put back in file order, the records of
- * forecasts.csv grouped by series in that order, batch.json as an unsharded run writes it.
+ * forecasts.csv grouped by series in that order, batch.json as an unsharded run writes it (its
+ * rows joined in file order) and, when the shards wrote reports, index.html made from those rows.
  *
  * Checked first, each a one-line error: every folder is a batch folder of the same kind (same
  * format, number of series in the file, interval levels, table headers), the shards are exactly
@@ -13,16 +14,18 @@ import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../data/errors.js';
 import { writeFileAtomic } from '../store/atomic.js';
-import { BATCH_FORMAT, BATCH_VERSION, batchManifest } from './batch-table.js';
+import { BATCH_FORMAT, BATCH_VERSION, batchIndexHtml, batchManifest, batchRowFromJson, type BatchRow } from './batch-table.js';
 import { rawRecords, type RawRecord } from './csv-records.js';
 
 interface Manifest {
   seriesInFile: number;
   shard: { k: number; n: number } | null;
   levels: number[];
+  report: boolean;
+  rows: BatchRow[];
 }
 
-const TOP_FILES = new Set(['batch.csv', 'forecasts.csv', 'batch.json']);
+const TOP_FILES = new Set(['batch.csv', 'forecasts.csv', 'batch.json', 'index.html']);
 
 async function readText(file: string, what: string): Promise<string> {
   try {
@@ -47,9 +50,18 @@ async function readManifest(dir: string): Promise<Manifest> {
     doc.version === BATCH_VERSION &&
     Number.isInteger(doc.series_in_file) &&
     Array.isArray(doc.levels) &&
+    typeof doc.report === 'boolean' &&
+    Array.isArray(doc.series) &&
+    (doc.series as unknown[]).every((r) => typeof r === 'object' && r !== null && Number.isInteger((r as Record<string, unknown>).position) && typeof (r as Record<string, unknown>).series === 'string') &&
     (shard === null || (typeof shard === 'object' && Number.isInteger(shard.k) && Number.isInteger(shard.n)));
   if (!ok) throw new DataError('merge-manifest', 'batch.json is not a certa batch description', { file, found: `format ${String(doc.format)}, version ${String(doc.version)}`, expected: `format ${BATCH_FORMAT}, version ${BATCH_VERSION}` });
-  return { seriesInFile: doc.series_in_file as number, shard: shard ? { k: shard.k as number, n: shard.n as number } : null, levels: doc.levels as number[] };
+  return {
+    seriesInFile: doc.series_in_file as number,
+    shard: shard ? { k: shard.k as number, n: shard.n as number } : null,
+    levels: doc.levels as number[],
+    report: doc.report as boolean,
+    rows: (doc.series as Record<string, unknown>[]).map(batchRowFromJson),
+  };
 }
 
 /** A temporary file of an atomic write cut short (store/atomic.ts names them `.<name>.<pid>.<n>.tmp`). */
@@ -68,6 +80,7 @@ async function copyTree(from: string, to: string): Promise<void> {
 }
 
 export interface MergeResult {
+  report: boolean;
   shards: number;
   series: number;
   folders: number;
@@ -88,11 +101,11 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   manifests.forEach((m, i) => {
     const file = join(dirs[i], 'batch.json');
     if (m.shard === null) throw new UsageError('merge-unsharded', 'this batch folder is not a shard', { file, expected: 'folders written with --shard k/n' });
-    if (m.shard.n !== first.shard!.n || m.seriesInFile !== first.seriesInFile || JSON.stringify(m.levels) !== JSON.stringify(first.levels)) {
+    if (m.shard.n !== first.shard!.n || m.seriesInFile !== first.seriesInFile || JSON.stringify(m.levels) !== JSON.stringify(first.levels) || m.report !== first.report) {
       throw new UsageError('merge-mismatch', 'this shard is of another run', {
         file,
-        found: `shard ${m.shard.k}/${m.shard.n} of ${m.seriesInFile} series, levels ${m.levels.join(',')}`,
-        expected: `shards of ${first.shard!.n} over ${first.seriesInFile} series, levels ${first.levels.join(',')}, as in ${join(dirs[0], 'batch.json')}`,
+        found: `shard ${m.shard.k}/${m.shard.n} of ${m.seriesInFile} series, levels ${m.levels.join(',')}, ${m.report ? 'with' : 'without'} reports`,
+        expected: `shards of ${first.shard!.n} over ${first.seriesInFile} series, levels ${first.levels.join(',')}, ${first.report ? 'with' : 'without'} reports, as in ${join(dirs[0], 'batch.json')}`,
       });
     }
     if (seen.has(m.shard.k)) throw new UsageError('merge-duplicate', `shard ${m.shard.k}/${m.shard.n} is given twice`, { file, found: `${seen.get(m.shard.k)} and ${dirs[i]}` });
@@ -151,6 +164,8 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   for (const [name, dir] of [...folders.entries()].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))) await copyTree(join(dir, name), join(out, name));
   await writeFileAtomic(join(out, 'batch.csv'), batchHeader!.text + rows.map((r) => r.record.text).join(''), { mkdir: true });
   await writeFileAtomic(join(out, 'forecasts.csv'), forecasts, { mkdir: true });
-  await writeFileAtomic(join(out, 'batch.json'), batchManifest(first.seriesInFile, null, first.levels), { mkdir: true });
-  return { shards: n, series: rows.length, folders: folders.size };
+  const merged = manifests.flatMap((m) => m.rows).sort((a, b) => a.position - b.position);
+  await writeFileAtomic(join(out, 'batch.json'), batchManifest({ seriesInFile: first.seriesInFile, shard: null, levels: first.levels, report: first.report, rows: merged }), { mkdir: true });
+  if (first.report) await writeFileAtomic(join(out, 'index.html'), batchIndexHtml(merged), { mkdir: true });
+  return { report: first.report, shards: n, series: rows.length, folders: folders.size };
 }

@@ -1,7 +1,7 @@
 /**
  * A batch: every series of a file (or one shard of them) forecast by a pool of workers, one
  * folder per series inside the batch folder (folder-names.ts), and at the top batch.csv,
- * forecasts.csv and batch.json (batch-table.ts). A series that cannot be forecast is reported and
+ * forecasts.csv, batch.json and (with reports) index.html (batch-table.ts). A series that cannot be forecast is reported and
  * the others go on, unless `failFast`.
  */
 import { join } from 'node:path';
@@ -9,7 +9,7 @@ import { CertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import type { LoadFailure } from '../data/load.js';
 import { writeFileAtomic } from '../store/atomic.js';
-import { batchCsv, batchManifest, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
+import { batchCsv, batchIndexHtml, batchManifest, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
 import { folderNames } from './folder-names.js';
 import { runPool } from './pool.js';
 import type { JobSettings, SeriesOutcome, SeriesTask } from './series-job.js';
@@ -23,6 +23,8 @@ export interface BatchOptions {
   failFast: boolean;
   /** Interval levels as asked (for the forecasts.csv header when every series failed). */
   levels: number[];
+  /** Write each series' report.html and the batch's index.html. */
+  report: boolean;
   settings: JobSettings;
   onOutcome?: (outcome: SeriesOutcome, done: number, total: number) => void;
   /** Called once the tasks are known (after the shard was chosen). */
@@ -92,8 +94,14 @@ export async function runBatch(series: readonly Series[], failedAtLoad: readonly
   const forecasts = header + done.map((o) => o.forecasts).join('');
   await writeFileAtomic(join(options.out, 'batch.csv'), batchCsv(rows), { mkdir: true });
   await writeFileAtomic(join(options.out, 'forecasts.csv'), forecasts, { mkdir: true });
-  await writeFileAtomic(join(options.out, 'batch.json'), batchManifest(series.length + failedAtLoad.length, options.shard, options.levels), { mkdir: true });
-  return { rows, outcomes: done, tables: ['batch.csv', 'batch.json', 'forecasts.csv'], stoppedBy: null };
+  const manifest = { seriesInFile: series.length + failedAtLoad.length, shard: options.shard, levels: options.levels, report: options.report, rows };
+  await writeFileAtomic(join(options.out, 'batch.json'), batchManifest(manifest), { mkdir: true });
+  const tables = ['batch.csv', 'batch.json', 'forecasts.csv'];
+  if (options.report) {
+    await writeFileAtomic(join(options.out, 'index.html'), batchIndexHtml(rows), { mkdir: true });
+    tables.push('index.html');
+  }
+  return { rows, outcomes: done, tables, stoppedBy: null };
 }
 
 /** A job failure as the CertaError the CLI prints (for --fail-fast, as before batches). */

@@ -5,6 +5,7 @@
  * failed (1 when a failure was a bug), so a scheduler sees it; `--fail-fast` stops at the first
  * failure with that series' error instead, as a run over one series would.
  */
+import { DEFAULT_LEVELS } from '../forecast/intervals.js';
 import type { Command } from 'commander';
 import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
@@ -83,7 +84,8 @@ export async function runForecastBatch(
     workers: batch.workers,
     shard: batch.shard,
     failFast: batch.failFast,
-    levels: cli.forecast.levels ?? [80, 95],
+    levels: cli.forecast.levels ?? [...DEFAULT_LEVELS],
+    report: cli.report !== false,
     settings: { opts, loadNotes, keepSummary: cli.json },
     onStart: (total) => {
       if (!batch.quiet) progress = new BatchProgress(io, total);

@@ -18,7 +18,7 @@ export function register(program: Command, io: CliIO): void {
       const out = String(opts.out);
       if (folders.includes(out)) throw new UsageError('merge-target', '--out names one of the shard folders', { found: out, expected: 'a new or empty folder' });
       const r = await mergeBatches(folders, out);
-      if (!opts.quiet) io.out(`merged ${r.shards} shards: ${r.series} series, ${r.folders} series folders, batch.csv, batch.json and forecasts.csv in ${out}\n`);
+      if (!opts.quiet) io.out(`merged ${r.shards} shards: ${r.series} series, ${r.folders} series folders, batch.csv, batch.json, forecasts.csv${r.report ? ' and index.html' : ''} in ${out}\n`);
     });
   program.addHelpText('after', '\nJoin the shards of an array job:\n  certa merge out/shard-1 out/shard-2 out/shard-3 --out out/all\n');
 }

@@ -13,7 +13,8 @@ export interface BatchIndexRow {
   series: string;
   /** The series' output folder, relative to the index page (its report is `<folder>/report.html`). */
   folder: string;
-  status: 'ok' | 'failed' | 'skipped' | string;
+  /** `forecast` (linked to its report) or `failed`, as batch.csv says. */
+  status: 'forecast' | 'failed' | string;
   /** Why the series failed or was skipped; null when it ran. */
   reason: string | null;
   /** Label of the asserted structure; null when none was asserted. */
@@ -50,14 +51,14 @@ const FILTER_SCRIPT = `(function () {
 
 /** The whole index page of a batch, rows in the order given. */
 export function renderBatchIndex(rows: readonly BatchIndexRow[], title = 'certa batch'): string {
-  const ok = rows.filter((r) => r.status === 'ok').length;
+  const ok = rows.filter((r) => r.status === 'forecast').length;
   const beaten = rows.filter((r) => r.holdoutMase !== null && r.bestBaseline !== null && r.bestBaseline.mase < r.holdoutMase).length;
   const body = rows
     .map((r) => {
-      const linked = r.status === 'ok' ? `<a href="${esc(href(r.folder))}">${esc(r.series)}</a>` : esc(r.series);
-      const statusTag = `<span class="tag${r.status === 'ok' ? ' good' : ' bad'}">${esc(r.status)}</span>`;
+      const linked = r.status === 'forecast' ? `<a href="${esc(href(r.folder))}">${esc(r.series)}</a>` : esc(r.series);
+      const statusTag = `<span class="tag${r.status === 'forecast' ? ' good' : ' bad'}">${esc(r.status)}</span>`;
       const base = r.bestBaseline ? `${esc(r.bestBaseline.name)} ${mase(r.bestBaseline.mase)}` : '';
-      return `<tr><td>${linked}</td><td>${statusTag}${r.reason ? ` <span class="note">${esc(r.reason)}</span>` : ''}</td><td>${esc(r.structure ?? '')}</td><td class="n">${mase(r.holdoutMase)}</td><td>${base}</td></tr>`;
+      return `<tr><td>${linked}</td><td class="status">${statusTag}${r.reason ? ` <span class="note">${esc(r.reason)}</span>` : ''}</td><td>${esc(r.structure ?? '')}</td><td class="n">${mase(r.holdoutMase)}</td><td class="nowrap">${base}</td></tr>`;
     })
     .join('\n');
   const html = [

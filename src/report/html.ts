@@ -71,6 +71,9 @@ table { border-collapse: collapse; margin: 6px 0; font-variant-numeric: tabular-
 th, td { padding: 3px 10px 3px 0; text-align: left; vertical-align: top; border-bottom: 1px solid #eef0f2; }
 th { color: var(--muted); font-weight: 600; border-bottom: 1px solid var(--rule); }
 td.n, th.n { text-align: right; }
+td.status { max-width: 22em; }
+td.status .note { display: block; }
+td.nowrap { white-space: nowrap; }
 tr.best td { font-weight: 600; }
 .chart { position: relative; height: 360px; margin: 6px 0 4px; }
 .chart.small { height: 300px; }

@@ -75,8 +75,21 @@ describe('certa forecast on a file of several series', () => {
     const shortFolder = folders[NAMES.indexOf('short')];
     expect(existsSync(join(out, shortFolder))).toBe(false);
     const listed = readdirSync(out).sort();
-    expect(listed).toEqual([...folders.filter((f) => f !== shortFolder), 'batch.csv', 'batch.json', 'forecasts.csv'].sort());
+    expect(listed).toEqual([...folders.filter((f) => f !== shortFolder), 'batch.csv', 'batch.json', 'forecasts.csv', 'index.html'].sort());
     for (const f of folders.filter((x) => x !== shortFolder)) expect(existsSync(join(out, f, 'forecast.csv'))).toBe(true);
+
+    // index.html links the report of every forecast series by its folder, and not the failed one.
+    const index = readFileSync(join(out, 'index.html'), 'utf8');
+    for (const f of folders.filter((x) => x !== shortFolder)) {
+      expect(existsSync(join(out, f, 'report.html'))).toBe(true);
+      expect(index).toContain(`href="${f.split('/').map(encodeURIComponent).join('/')}/report.html"`);
+    }
+    expect(index).toContain('8 series: 7 forecast, 1 not');
+    expect(index).not.toContain(`${encodeURIComponent(shortFolder)}/report.html`);
+    // batch.json holds the rows of batch.csv as data.
+    const manifest = JSON.parse(readFileSync(join(out, 'batch.json'), 'utf8'));
+    expect(manifest.report).toBe(true);
+    expect(manifest.series.map((x: { status: string }) => x.status)).toEqual(NAMES.map((n) => (n === 'short' ? 'failed' : 'forecast')));
 
     const batch = rawRecords(readFileSync(join(out, 'batch.csv'), 'utf8'));
     expect(batch[0].text).toBe('position,series,folder,status,reason,structure,holdout_mase,best_baseline,baseline_mase,warnings\r\n');

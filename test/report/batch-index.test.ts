@@ -12,8 +12,8 @@ import { renderBatchIndex, type BatchIndexRow } from '../../src/report/batch-ind
 import { browserSkipReason, launchBrowser, openFile } from './browser.js';
 
 const rows: BatchIndexRow[] = [
-  { series: 'Tarnby ovens', folder: 'tarnby-ovens', status: 'ok', reason: null, structure: 'ARX lags 1-2, trend', holdoutMase: 0.81, bestBaseline: { name: 'last-season', mase: 0.97 } },
-  { series: '<img src=x onerror=alert(1)>', folder: 'odd name/ü', status: 'ok', reason: null, structure: 'logistic growth path', holdoutMase: 1.2, bestBaseline: { name: 'last-value', mase: 1.1 } },
+  { series: 'Tarnby ovens', folder: 'tarnby-ovens', status: 'forecast', reason: null, structure: 'ARX lags 1-2, trend', holdoutMase: 0.81, bestBaseline: { name: 'last-season', mase: 0.97 } },
+  { series: '<img src=x onerror=alert(1)>', folder: 'odd name/ü', status: 'forecast', reason: null, structure: 'logistic growth path', holdoutMase: 1.2, bestBaseline: { name: 'last-value', mase: 1.1 } },
   { series: 'Brenn kettles', folder: 'brenn', status: 'failed', reason: 'too short: 5 points, need 12', structure: null, holdoutMase: null, bestBaseline: null },
 ];
 
