@@ -228,7 +228,7 @@ export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>)
   const body = [
     '<main>',
     `<header class="top"><h1>${esc(series.name)}</h1><p class="sub">${esc(cadenceName(f, series.step))}, ${n} points, ${esc(formatTime(series.time[0], f))} to ${esc(formatTime(series.time[n - 1], f))} · certa forecast report</p></header>`,
-    `<section class="caution" id="caution"><p><b>Read this first.</b> ${esc(FORECAST_CAUTION)} In short: statistical extrapolation under the asserted model, not a physical climate projection or financial advice.</p></section>`,
+    `<section class="caution" id="caution"><p><b>Read this first.</b> ${esc(FORECAST_CAUTION)}</p></section>`,
     headline,
     warn,
     equationSection(run),

@@ -57,7 +57,7 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
     for (const id of ['chart-forecast', 'chart-holdout', 'chart-periodogram']) expect(await inkShare(page, id), id).toBeGreaterThan(0.01);
     // the caution and the sections are there
     const text = await page.locator('body').innerText();
-    expect(text).toMatch(/not a physical climate projection or financial advice/);
+    expect(text).toMatch(/not physical climate projections and not financial advice/);
     for (const heading of ['The asserted equation', 'Coefficients', 'Residual checks', 'Candidates and why the winner won']) expect(text).toContain(heading);
     await page.close();
   }, 60_000);
