@@ -18,7 +18,7 @@ export function browserSkipReason(): string | null {
 
 export async function launchBrowser(): Promise<Browser> {
   if (!browserPresent) throw new Error(`CERTA_BROWSER_TESTS=required but there is no chromium at ${CHROMIUM}`);
-  return chromium.launch({ executablePath: CHROMIUM, headless: true, args: ['--headless', '--no-sandbox', '--disable-gpu'] });
+  return chromium.launch({ executablePath: CHROMIUM, headless: true, args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'] });
 }
 
 /** What happened while a page opened: console errors, page errors, requests, dialogs. */
