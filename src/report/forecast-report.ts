@@ -245,8 +245,11 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   });
   out['residuals.png'] = residualChart({
     title: `${title}: are the one-step residuals white?${asserted.structure.transform === 'log' ? ' (log scale)' : ''}`,
-    subtitle: run.search.winner.whiteness.pValue !== undefined ? `Ljung–Box p = ${fmt(run.search.winner.whiteness.pValue)}` : undefined,
+    subtitle: `one-step residuals of the asserted equation, ${formatTime(series.time[asserted.from], f)} to ${formatTime(series.time[n - 1], f)}${Number.isFinite(run.search.winner.whiteness.pValue) ? `; Ljung–Box over ${run.search.winner.whiteness.lags} lags p = ${fmt(run.search.winner.whiteness.pValue)}` : ''}`,
     residuals: run.fitted.residuals,
+    time: Float64Array.from(run.fitted.index, (t) => series.time[t]),
+    frequency: f,
+    scale: Math.sqrt(asserted.estimate.sigma2),
   });
   return out;
 }
