@@ -499,21 +499,27 @@ export function holdoutChart(input: HoldoutChartInput): Buffer {
 }
 
 /**
- * A label broken into lines of at most `width` characters at spaces or after commas (a word
- * longer than a line stays whole), so no part of it is cut off.
- * @example wrapLabel('AR lags 1-3, trend, 1 harmonic', 14) → ['AR lags 1-3,', 'trend, 1', 'harmonic']
+ * A label broken into lines of at most `width` characters, whole phrases first: it breaks after
+ * a comma when the comma-separated parts fit, and inside a part (at spaces) only when the part
+ * alone is longer than a line; a word longer than a line stays whole, so nothing is cut off.
+ * @example wrapLabel('AR lags 1-3, trend, 1 harmonic', 14) → ['AR lags 1-3,', 'trend,', '1 harmonic']
  */
 export function wrapLabel(name: string, width: number): string[] {
-  const words = name.split(' ');
+  // phrases keep their comma: "AR lags 1-3," "trend," "1 harmonic"
+  const phrases = name.split(/(?<=,) /);
   const lines: string[] = [];
   let line = '';
-  for (const w of words) {
-    if (line === '') line = w;
-    else if (line.length + 1 + w.length <= width) line += ` ${w}`;
+  const push = (piece: string): void => {
+    if (line === '') line = piece;
+    else if (line.length + 1 + piece.length <= width) line += ` ${piece}`;
     else {
       lines.push(line);
-      line = w;
+      line = piece;
     }
+  };
+  for (const phrase of phrases) {
+    if (phrase.length <= width) push(phrase);
+    else for (const w of phrase.split(' ')) push(w);
   }
   if (line !== '' || lines.length === 0) lines.push(line);
   return lines;

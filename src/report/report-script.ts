@@ -29,7 +29,8 @@ function drawReport(ChartLib: any, data: any): void {
     },
     scales: {
       x: { type: 'category', ticks: { maxRotation: 0, autoSkip: true, maxTicksLimit: 12 }, grid: { color: look.grid } },
-      y: { title: { display: true, text: yTitle }, grid: { color: look.grid }, ...(floor !== null ? { min: floor } : {}) },
+      // a never-negative series: the axis may not run below the floor, but need not reach it
+      y: { title: { display: true, text: yTitle }, grid: { color: look.grid }, ...(floor !== null ? { afterDataLimits: (axis: any) => { if (axis.min < floor) axis.min = floor; } } : {}) },
     },
   });
   const line = (label: string, values: any[], c: string, extra: any = {}): any => ({

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { createCanvas, loadImage } from '@napi-rs/canvas';
 import { stepTime } from '../../src/data/calendar.js';
-import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from '../../src/report/charts.js';
+import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart, wrapLabel } from '../../src/report/charts.js';
 import { palette } from '../../src/report/palette.js';
 import { lumoForecast, lumoHistory, lumoHoldout, lumoRanking, lumoResiduals } from './chart-fixtures.js';
 
@@ -143,6 +143,26 @@ describe('forecastChart bands', () => {
   });
   it('rejects a size outside 200–4000 pixels', () => {
     expect(() => forecastChart({ ...lumoForecast, width: 50 })).toThrow(RangeError);
+  });
+});
+
+describe('wrapLabel', () => {
+  it('breaks after commas when the parts fit, so a phrase such as "1 seasonal harmonic" stays on one line', () => {
+    expect(wrapLabel('AR lags 1-3, trend, 1 harmonic', 14)).toEqual(['AR lags 1-3,', 'trend,', '1 harmonic']);
+    expect(wrapLabel('logistic growth path, level effects of subsidy, frost_index, 1 seasonal harmonic', 62)).toEqual([
+      'logistic growth path, level effects of subsidy, frost_index,',
+      '1 seasonal harmonic',
+    ]);
+  });
+  it('breaks inside a part longer than a line, keeps a word longer than a line whole, and loses nothing', () => {
+    const names = ['AR lags 1-3, subsidy lags 0-1, frost_index lag 0 after delay 1, trend, 1 harmonic', 'x'.repeat(80), 'a, b', ''];
+    for (const name of names) {
+      for (const width of [8, 20, 62]) {
+        const lines = wrapLabel(name, width);
+        expect(lines.join(' ')).toBe(name);
+        for (const l of lines) if (l.includes(' ')) expect(l.length).toBeLessThanOrEqual(width);
+      }
+    }
   });
 });
 
