@@ -56,7 +56,7 @@ function equationWords(run: ForecastRun): string[] {
     `The equation below gives each value${s.transform === 'log' ? ' (on the log scale)' : ''} from the terms on its right-hand side, with coefficients estimated from ${formatTime(series.time[asserted.from], f)} to ${formatTime(series.time[n - 1], f)} (${n - asserted.from} points). ` +
       `e[t] is what the equation leaves unexplained: about ±${formatTableNumber(sigma)}${s.transform === 'log' ? ' on the log scale' : ''} in a typical period (one standard deviation).`,
   );
-  if (series.inputs.length > 0) words.push(`It uses the inputs ${series.inputs.map((i) => i.name).join(', ')}; their future values are ${run.forecast.inputs.source}.`);
+  if (series.inputs.length > 0) words.push(`It uses the inputs ${series.inputs.map((i) => i.name).join(', ')}; in the forecast, ${run.forecast.inputs.source}.`);
   return words;
 }
 
