@@ -8,7 +8,7 @@
  * each gets `<out>/<series name>` (default `output/<series name>`). Files are replaced
  * atomically (store/atomic.ts, store/model-file.ts).
  */
-import { coefficientLines, coefficientRows, COEFFICIENT_LEVEL } from '../report/coefficients.js';
+import { coefficientLines, coefficientRows, coefficientTerms, COEFFICIENT_LEVEL } from '../report/coefficients.js';
 import { formatTableNumber } from '../report/table-numbers.js';
 import type { Command } from 'commander';
 import { join } from 'node:path';
@@ -155,6 +155,11 @@ export interface SearchDocument {
     terms: string[];
     theta: number[];
     se: number[];
+    /** Level (percent) of the coefficient intervals below, the one the text table prints. */
+    coefficientLevel: number;
+    /** Interval bounds of each coefficient, aligned with `terms` (null where the se is not finite). */
+    lower: (number | null)[];
+    upper: (number | null)[];
     sigma2: number;
     equation: string;
     derived: { name: string; value: number | string | boolean; unit: string | null }[];
@@ -187,6 +192,7 @@ function rankingRow(c: CandidateResult): RankingRow {
 
 export function searchDocument(result: SearchResult, top: number, files: Written): SearchDocument {
   const w = result.winner;
+  const coefficients = coefficientTerms(coefficientRows(w.structure.terms, w.estimate.theta, w.estimate.se, w.structure.terms.map(() => true), COEFFICIENT_LEVEL));
   return {
     series: result.series,
     criterion: result.criterion,
@@ -201,6 +207,9 @@ export function searchDocument(result: SearchResult, top: number, files: Written
       terms: [...w.structure.terms],
       theta: Array.from(w.estimate.theta),
       se: Array.from(w.estimate.se),
+      coefficientLevel: COEFFICIENT_LEVEL,
+      lower: coefficients.map((c) => c.lower),
+      upper: coefficients.map((c) => c.upper),
       sigma2: w.estimate.sigma2,
       equation: w.equation,
       derived: w.derived.map((d) => ({ name: d.name, value: typeof d.value === 'number' ? (finiteOrNull(d.value) ?? String(d.value)) : d.value, unit: d.unit ?? null })),

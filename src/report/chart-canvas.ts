@@ -127,3 +127,74 @@ function encodePng(canvas: Canvas): Buffer {
 export function renderChart(config: ChartConfiguration, width: number, height: number): Buffer {
   return withChart(config, width, height, encodePng);
 }
+
+let measureContext: ReturnType<Canvas['getContext']> | null = null;
+
+/** Width in pixels of `text` in the chart font at `size` and `weight`. */
+export function textWidth(text: string, size: number, weight: 'normal' | 'bold' = 'normal'): number {
+  if (measureContext === null) measureContext = createCanvas(8, 8).getContext('2d');
+  measureContext.font = `${weight === 'bold' ? 'bold ' : ''}${size}px ${chartFontFamily()}`;
+  return measureContext.measureText(text).width;
+}
+
+/**
+ * `text` broken at spaces into lines no wider than `maxWidth` pixels in the chart font (a word
+ * wider than a line stays whole), so a long title is wrapped instead of squeezed.
+ * @example wrapText('a b', 12, 10_000) → ['a b']
+ */
+export function wrapText(text: string, size: number, maxWidth: number, weight: 'normal' | 'bold' = 'normal'): string[] {
+  const words = text.split(' ');
+  const lines: string[] = [];
+  let line = '';
+  for (const w of words) {
+    const next = line === '' ? w : `${line} ${w}`;
+    if (line !== '' && textWidth(next, size, weight) > maxWidth) {
+      lines.push(line);
+      line = w;
+    } else line = next;
+  }
+  if (line !== '' || lines.length === 0) lines.push(line);
+  return lines;
+}
+
+/** Title and subtitle drawn across the top of a multi-panel image. */
+export interface PanelHeader {
+  title: string;
+  subtitle?: string;
+}
+
+/** Line height of header text, as a multiple of the font size. */
+const HEADER_LINE = 1.25;
+
+/**
+ * PNG bytes of panels side by side under one header: the title (bold) and the subtitle
+ * (muted, wrapped to the image width) at the top left, then each panel, a Chart.js configuration
+ * drawn `width` pixels wide from left to right over the rest of the height. The panel widths
+ * must add up to the image width.
+ */
+export function renderSideBySide(header: PanelHeader, panels: ReadonlyArray<{ config: ChartConfiguration; width: number }>, width: number, height: number): Buffer {
+  const sum = panels.reduce((s, p) => s + p.width, 0);
+  if (sum !== width) throw new RangeError(`renderSideBySide: panel widths add up to ${sum} pixels, the image is ${width} wide`);
+  const left = 10;
+  const subtitle = header.subtitle ? wrapText(header.subtitle, look.subtitleSize, width - 2 * left) : [];
+  const headerHeight = Math.ceil(4 + look.titleSize * HEADER_LINE + (subtitle.length > 0 ? 2 + subtitle.length * look.subtitleSize * HEADER_LINE : 0) + 6);
+  if (headerHeight >= height - 100) throw new RangeError(`renderSideBySide: a header of ${headerHeight} pixels leaves no room for the panels in ${height}`);
+  const canvas = createCanvas(width, height);
+  const ctx = canvas.getContext('2d');
+  ctx.fillStyle = palette.background;
+  ctx.fillRect(0, 0, width, height);
+  ctx.textBaseline = 'top';
+  ctx.textAlign = 'left';
+  ctx.fillStyle = palette.text;
+  ctx.font = `bold ${look.titleSize}px ${chartFontFamily()}`;
+  ctx.fillText(header.title, left, 4);
+  ctx.fillStyle = palette.mutedText;
+  ctx.font = `${look.subtitleSize}px ${chartFontFamily()}`;
+  subtitle.forEach((line, i) => ctx.fillText(line, left, 4 + look.titleSize * HEADER_LINE + 2 + i * look.subtitleSize * HEADER_LINE));
+  let x = 0;
+  for (const p of panels) {
+    withChart(p.config, p.width, height - headerHeight, (panel) => ctx.drawImage(panel, x, headerHeight));
+    x += p.width;
+  }
+  return encodePng(canvas);
+}

@@ -10,8 +10,9 @@
 import { Chart, type ChartConfiguration, type ChartDataset, type LegendItem, type Plugin, type Scale } from 'chart.js';
 import type { Frequency } from '../data/calendar.js';
 import { cumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
+import { OUTSIDE_TWO_SIGMA, RESIDUAL_BOUND, standardisedResiduals } from '../evaluate/standardised-residuals.js';
 import { axisValue, formatValueTick, tickLabelChars, timeRange, timeTicks, type AxisTick } from './chart-axis.js';
-import { font, renderChart, resolveSize, type ChartSize } from './chart-canvas.js';
+import { font, renderChart, renderSideBySide, resolveSize, wrapText, type ChartSize } from './chart-canvas.js';
 import { look, palette } from './palette.js';
 
 export type { ChartSize } from './chart-canvas.js';
@@ -111,7 +112,20 @@ export interface ResidualChartInput extends ChartSize {
   subtitle?: string;
   /** One-step residuals in time order; missing (NaN) values are dropped. */
   residuals: ArrayLike<number>;
+  /** Time stamps of the residuals (aligned); without them the panel over time counts steps 1, 2, … */
+  time?: ArrayLike<number>;
+  frequency?: Frequency;
+  /**
+   * The standard deviation the residuals are divided by, e.g. the asserted equation's σ̂ (on the
+   * residuals' scale); default the root mean square of the finite residuals.
+   */
+  scale?: number;
+  /** Name of the scale in the axis title (default "σ̂"). */
+  scaleLabel?: string;
 }
+
+/** Default width of the two-panel residual chart, pixels. */
+const RESIDUAL_WIDTH = 1200;
 
 type Point = { x: number; y: number | null };
 /** How a dataset appears in the legend: a line sample, a filled box, or not at all. */
@@ -238,20 +252,27 @@ function valueScale(title: string, extra: Record<string, unknown> = {}, floor?: 
   };
 }
 
-/** Title, subtitle, legend (above the plot; legend styles by dataset), no tooltips. */
-function frame(title: string, subtitle: string | undefined, styles: LegendStyle[]): Record<string, unknown> {
+const LAYOUT = { padding: { left: 10, right: 22, top: 8, bottom: 6 } };
+
+/**
+ * Title, subtitle, legend (above the plot; legend styles by dataset), no tooltips. Title and
+ * subtitle wrap to the chart's `width` (less the layout padding) rather than being squeezed.
+ */
+function frame(title: string, subtitle: string | undefined, styles: LegendStyle[], width: number, sizes: { title?: number } = {}): Record<string, unknown> {
+  const room = width - LAYOUT.padding.left - LAYOUT.padding.right - 4;
+  const titleSize = sizes.title ?? look.titleSize;
   return {
     title: {
       display: true,
-      text: title,
+      text: wrapText(title, titleSize, room, 'bold'),
       align: 'start',
       color: palette.text,
-      font: font(look.titleSize, 'bold'),
+      font: font(titleSize, 'bold'),
       padding: { top: 4, bottom: subtitle ? 2 : 8 },
     },
     subtitle: {
       display: subtitle !== undefined && subtitle !== '',
-      text: subtitle ?? '',
+      text: subtitle ? wrapText(subtitle, look.subtitleSize, room) : '',
       align: 'start',
       color: palette.mutedText,
       font: font(look.subtitleSize),
@@ -286,8 +307,6 @@ function frame(title: string, subtitle: string | undefined, styles: LegendStyle[
     tooltip: { enabled: false },
   };
 }
-
-const LAYOUT = { padding: { left: 10, right: 22, top: 8, bottom: 6 } };
 
 /** Dashed vertical marker at axis value `x` with a small label, the region after it shaded. */
 function markerPlugin(x: number | null, label: string, shade: boolean): Plugin {
@@ -391,7 +410,7 @@ function renderTimeLines(
     data: { datasets },
     options: {
       layout: LAYOUT,
-      plugins: { ...frame(text.title, text.subtitle, styles), filler: { propagate: false } },
+      plugins: { ...frame(text.title, text.subtitle, styles, width), filler: { propagate: false } },
       scales: { x: timeScale(bounds.first, bounds.last, text.frequency, width), y: valueScale(valueTitle(text), {}, text.floor) },
     },
     plugins: marker === null ? [] : [markerPlugin(marker, 'holdout', true)],
@@ -480,21 +499,27 @@ export function holdoutChart(input: HoldoutChartInput): Buffer {
 }
 
 /**
- * A label broken into lines of at most `width` characters at spaces or after commas (a word
- * longer than a line stays whole), so no part of it is cut off.
- * @example wrapLabel('AR lags 1-3, trend, 1 harmonic', 14) → ['AR lags 1-3,', 'trend, 1', 'harmonic']
+ * A label broken into lines of at most `width` characters, whole phrases first: it breaks after
+ * a comma when the comma-separated parts fit, and inside a part (at spaces) only when the part
+ * alone is longer than a line; a word longer than a line stays whole, so nothing is cut off.
+ * @example wrapLabel('AR lags 1-3, trend, 1 harmonic', 14) → ['AR lags 1-3,', 'trend,', '1 harmonic']
  */
 export function wrapLabel(name: string, width: number): string[] {
-  const words = name.split(' ');
+  // phrases keep their comma: "AR lags 1-3," "trend," "1 harmonic"
+  const phrases = name.split(/(?<=,) /);
   const lines: string[] = [];
   let line = '';
-  for (const w of words) {
-    if (line === '') line = w;
-    else if (line.length + 1 + w.length <= width) line += ` ${w}`;
+  const push = (piece: string): void => {
+    if (line === '') line = piece;
+    else if (line.length + 1 + piece.length <= width) line += ` ${piece}`;
     else {
       lines.push(line);
-      line = w;
+      line = piece;
     }
+  };
+  for (const phrase of phrases) {
+    if (phrase.length <= width) push(phrase);
+    else for (const w of phrase.split(' ')) push(w);
   }
   if (line !== '' || lines.length === 0) lines.push(line);
   return lines;
@@ -570,7 +595,7 @@ export function rankingChart(input: RankingChartInput): Buffer {
     options: {
       indexAxis: 'y',
       layout: { padding: { left: 10, right: 30, top: 8, bottom: 6 } },
-      plugins: frame(input.title, notes.join(' · '), [NO_LEGEND]),
+      plugins: frame(input.title, notes.join(' · '), [NO_LEGEND], width),
       scales: {
         x: valueScale(`Δ${input.criterion} (difference from the best candidate; lower is better)`, {
           min: 0,
@@ -590,41 +615,129 @@ export function rankingChart(input: RankingChartInput): Buffer {
   return renderChart(config, width, height);
 }
 
-/**
- * Residual whiteness in one panel: the normalised cumulative periodogram of the residuals
- * (`cumulativePeriodogram`, a step line against frequency in cycles per period), the white-noise
- * diagonal, and Bartlett's 95 % Kolmogorov–Smirnov band around it (dashed). A residual series
- * with a cycle or trend left in it climbs early and leaves the band; the subtitle gives D, the
- * band half-width and the p-value. Source: Box, Jenkins, Reinsel & Ljung (2015), §8.2.4.
- */
-export function residualChart(input: ResidualChartInput): Buffer {
-  const { width, height } = resolveSize(input);
-  const cp = cumulativePeriodogram(input.residuals);
+/** Shaded horizontal band between values `from` and `to` of the y axis, under the datasets. */
+function bandPlugin(from: number, to: number, color: string): Plugin {
+  return {
+    id: 'certaValueBand',
+    beforeDatasetsDraw(chart) {
+      const y = chart.scales.y;
+      const area = chart.chartArea;
+      const top = Math.max(area.top, Math.min(area.bottom, y.getPixelForValue(to)));
+      const bottom = Math.max(area.top, Math.min(area.bottom, y.getPixelForValue(from)));
+      const ctx = chart.ctx;
+      ctx.save();
+      ctx.fillStyle = color;
+      ctx.fillRect(area.left, top, area.right - area.left, bottom - top);
+      ctx.strokeStyle = palette.axis;
+      ctx.lineWidth = 1;
+      const zero = y.getPixelForValue(0);
+      if (zero > area.top && zero < area.bottom) {
+        ctx.beginPath();
+        ctx.moveTo(area.left, zero);
+        ctx.lineTo(area.right, zero);
+        ctx.stroke();
+      }
+      ctx.restore();
+    },
+  };
+}
+
+/** The left panel: the cumulative periodogram with the white-noise diagonal and its band. */
+function periodogramPanel(residuals: ArrayLike<number>, width: number): ChartConfiguration {
+  const cp = cumulativePeriodogram(residuals);
   const q = cp.frequency.length;
   const fx = Array.from(cp.frequency);
   const diag = fx.map((x, j) => ({ x, y: (j + 1) / q }));
   const step = fx.map((x, j) => ({ x, y: Number.isFinite(cp.cumulative[j]) ? cp.cumulative[j] : null }));
   const band = Number.isFinite(cp.band95) ? cp.band95 : Number.NaN;
   const edge = (sign: number) => diag.map((p) => ({ x: p.x, y: Number.isFinite(band) ? Math.min(1, Math.max(0, p.y + sign * band)) : null }));
-  const cumulative = { ...lineDataset('cumulative periodogram of the residuals', step, palette.observed, { order: 0 }), stepped: 'before' as const };
+  const cumulative = { ...lineDataset('cumulative periodogram', step, palette.observed, { order: 0 }), stepped: 'before' as const };
   const white = lineDataset('white noise', diag, palette.marker, { width: 1, order: 1 });
-  const upper = lineDataset('95 % band (Kolmogorov–Smirnov)', edge(1), palette.bound, { width: look.thinLineWidth, dash: [6, 4], order: 2 });
+  const upper = lineDataset('95 % band', edge(1), palette.bound, { width: look.thinLineWidth, dash: [6, 4], order: 2 });
   const lower = lineDataset('', edge(-1), palette.bound, { width: look.thinLineWidth, dash: [6, 4], order: 2 });
   const verdict = Number.isFinite(cp.statistic)
-    ? `n = ${cp.n} residuals; D = ${cp.statistic.toFixed(3)} against a band of ±${band.toFixed(3)}, p = ${cp.pValue < 0.001 ? '< 0.001' : cp.pValue.toFixed(3)}: ${cp.statistic <= band ? 'inside, no evidence of structure left' : 'outside, a cycle or trend is left'}`
-    : `n = ${cp.n} residuals: too few or constant, no periodogram`;
-  const notes = [input.subtitle, verdict].filter((t): t is string => t !== undefined && t !== '').join(' · ');
-  const config: ChartConfiguration = {
+    ? `D = ${cp.statistic.toFixed(3)}, band ±${band.toFixed(3)}, ${cp.pValue < 0.001 ? 'p < 0.001' : `p = ${cp.pValue.toFixed(3)}`}: ${cp.statistic <= band ? 'inside, no structure left' : 'outside, a cycle or trend is left'}`
+    : `${cp.n} residuals: too few or constant, no periodogram`;
+  return {
     type: 'line',
     data: { datasets: [cumulative, white, upper, lower] },
     options: {
       layout: LAYOUT,
-      plugins: frame(input.title, notes, [lineLegend(cumulative), lineLegend(white), lineLegend(upper), NO_LEGEND]),
+      plugins: frame('Cumulative periodogram (Bartlett, Kolmogorov–Smirnov band)', verdict, [lineLegend(cumulative), lineLegend(white), lineLegend(upper), NO_LEGEND], width, { title: look.panelTitleSize }),
       scales: {
-        x: { type: 'linear', min: 0, max: 0.5, grid: { color: palette.grid }, border: { color: palette.axis }, ticks: { color: palette.mutedText, font: font(look.tickSize) }, title: axisTitle('frequency (cycles per period; 0.5 = alternating)') },
+        x: { type: 'linear', min: 0, max: 0.5, grid: { color: palette.grid }, border: { color: palette.axis }, ticks: { color: palette.mutedText, font: font(look.tickSize), maxTicksLimit: 6 }, title: axisTitle('frequency (cycles per period; 0.5 = alternating)') },
         y: valueScale('cumulative share of the residual variance', { min: 0, max: 1, grace: 0 }),
       },
     },
   } as ChartConfiguration;
-  return renderChart(config, width, height);
+}
+
+/** The right panel: standardised one-step residuals over time, the ±2 band shaded, points outside it marked. */
+function overTimePanel(input: ResidualChartInput, width: number): ChartConfiguration {
+  const f: Frequency = input.time !== undefined ? (input.frequency ?? 'index') : 'index';
+  const time = input.time ?? Float64Array.from({ length: input.residuals.length }, (_, i) => i + 1);
+  if (time.length !== input.residuals.length) throw new RangeError(`residualChart: ${time.length} time stamps but ${input.residuals.length} residuals; pass aligned arrays`);
+  const bound = RESIDUAL_BOUND;
+  const { values, scale, n, outside: out, largest } = standardisedResiduals(input.residuals, input.scale, bound);
+  const inside = values.map((v) => (Math.abs(v) <= bound ? v : Number.NaN));
+  const outside = values.map((v) => (Math.abs(v) > bound ? v : Number.NaN));
+  const dots = (label: string, v: Float64Array, color: string, radius: number): ChartDataset<'line', Point[]> => ({
+    ...lineDataset(label, points(time, v, f), color, { points: true, order: 0 }),
+    showLine: false,
+    pointRadius: radius,
+    // points on the first and last time stamp sit on the plot edge: draw them whole
+    clip: 8,
+    pointStyle: 'circle',
+  });
+  const within = dots('standardised residual', inside, palette.observed, look.pointRadius);
+  const beyond = { ...dots(`outside ±${bound}`, outside, palette.second, look.pointRadius + 1.5), pointStyle: 'rectRot' as const };
+  const scaleText = Number.isFinite(scale) ? `residual ÷ ${input.scaleLabel ?? 'σ̂'} (${input.scaleLabel ?? 'σ̂'} = ${Number(scale.toPrecision(4))})` : 'residual ÷ σ̂';
+  const expected = (n * OUTSIDE_TWO_SIGMA).toFixed(1);
+  const verdict = n > 0 ? `${out} of ${n} outside ±${bound} (about ${expected} expected of white normal noise); largest |value| ${largest.toFixed(2)}` : 'no residuals to standardise (none, or no spread)';
+  const styles: LegendStyle[] = [
+    { kind: 'rect', color: palette.observed },
+    { kind: 'rect', color: palette.second },
+  ];
+  const bounds = finiteBounds(time);
+  const limit = Math.max(3, Math.ceil(largest + 0.25));
+  const shade: LegendStyle = { kind: 'rect', color: palette.residualBand };
+  // a dataset without points carries the band's legend entry; the band itself is drawn by the plugin
+  const bandLegend = { ...lineDataset(`±${bound} band`, [], palette.residualBand, { width: 0, order: 2 }) };
+  return {
+    type: 'line',
+    data: { datasets: [within, beyond, bandLegend] },
+    options: {
+      layout: LAYOUT,
+      plugins: frame('Standardised one-step residuals over time', verdict, [...styles, shade], width, { title: look.panelTitleSize }),
+      scales: {
+        x: Number.isFinite(bounds.first) ? timeScale(bounds.first, bounds.last, f, width) : { type: 'linear', min: 0, max: 1, title: axisTitle(timeTitle(f)) },
+        y: valueScale(scaleText, { min: -limit, max: limit, grace: 0 }),
+      },
+    },
+    plugins: [bandPlugin(-bound, bound, palette.residualBand)],
+  } as ChartConfiguration;
+}
+
+/**
+ * Residual checks in two panels side by side under one title. Left, whiteness: the normalised
+ * cumulative periodogram of the residuals (`cumulativePeriodogram`, a step line against
+ * frequency in cycles per period), the white-noise diagonal and Bartlett's 95 %
+ * Kolmogorov–Smirnov band around it (dashed); a residual series with a cycle or trend left in it
+ * climbs early and leaves the band (Box, Jenkins, Reinsel & Ljung 2015, §8.2.4). Right, size
+ * over time: each one-step residual divided by the equation's standard deviation
+ * (`standardisedResiduals`), as points, the band ±2 shaded and the points outside it marked in
+ * magenta; under white normal errors about 4.55 % fall outside (P(|Z| > 2) = 0.0455).
+ */
+export function residualChart(input: ResidualChartInput): Buffer {
+  const { width, height } = resolveSize({ width: input.width ?? RESIDUAL_WIDTH, height: input.height });
+  const leftWidth = Math.round(width * 0.46);
+  return renderSideBySide(
+    { title: input.title, subtitle: input.subtitle },
+    [
+      { config: periodogramPanel(input.residuals, leftWidth), width: leftWidth },
+      { config: overTimePanel(input, width - leftWidth), width: width - leftWidth },
+    ],
+    width,
+    height,
+  );
 }

@@ -42,3 +42,15 @@ export function coefficientLines(rows: readonly CoefficientRow[], level = COEFFI
     ...rows.map((r) => cells(r.term, format(r.estimate), r.active ? format(r.se) : 'left out', r.active && Number.isFinite(r.lower) ? `${format(r.lower)} to ${format(r.upper)}` : '')),
   ];
 }
+
+/**
+ * The coefficient table as JSON terms (summary.json, `--json`): name, estimate, standard error,
+ * the interval bounds of the table (null where the table leaves the interval blank: a term left
+ * out or a non-finite standard error) and whether the term is active.
+ */
+export function coefficientTerms(rows: readonly CoefficientRow[]): Array<{ name: string; estimate: number; se: number; lower: number | null; upper: number | null; active: boolean }> {
+  return rows.map((r) => {
+    const shown = r.active && Number.isFinite(r.lower) && Number.isFinite(r.upper);
+    return { name: r.term, estimate: r.estimate, se: r.se, lower: shown ? r.lower : null, upper: shown ? r.upper : null, active: r.active };
+  });
+}

@@ -11,7 +11,7 @@ import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
 import { setAsideWords } from '../select/search.js';
 import { candidatesCsv } from './candidates.js';
-import { coefficientLines, coefficientRows, COEFFICIENT_LEVEL } from './coefficients.js';
+import { coefficientLines, coefficientRows, coefficientTerms, COEFFICIENT_LEVEL } from './coefficients.js';
 import { formatTableNumber } from './table-numbers.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
@@ -123,7 +123,8 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
       transform: asserted.structure.transform,
       equation: asserted.equation,
       fittedOn: { start: formatTime(series.time[asserted.from], f), end: formatTime(series.time[n - 1], f), n: n - asserted.from },
-      terms: asserted.structure.terms.map((t, j) => ({ name: t, estimate: asserted.estimate.theta[j], se: asserted.estimate.se[j], active: asserted.estimate.active[j] })),
+      coefficientLevel: COEFFICIENT_LEVEL,
+      terms: coefficientTerms(coefficientRows(asserted.structure.terms, asserted.estimate.theta, asserted.estimate.se, asserted.estimate.active, COEFFICIENT_LEVEL)),
       sigma2: asserted.estimate.sigma2,
       derived: asserted.derived,
       whiteness: winner.whiteness,
@@ -245,8 +246,11 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   });
   out['residuals.png'] = residualChart({
     title: `${title}: are the one-step residuals white?${asserted.structure.transform === 'log' ? ' (log scale)' : ''}`,
-    subtitle: run.search.winner.whiteness.pValue !== undefined ? `Ljung–Box p = ${fmt(run.search.winner.whiteness.pValue)}` : undefined,
+    subtitle: `one-step residuals of the asserted equation, ${formatTime(series.time[asserted.from], f)} to ${formatTime(series.time[n - 1], f)}${Number.isFinite(run.search.winner.whiteness.pValue) ? `; Ljung–Box over ${run.search.winner.whiteness.lags} lags p = ${fmt(run.search.winner.whiteness.pValue)}` : ''}`,
     residuals: run.fitted.residuals,
+    time: Float64Array.from(run.fitted.index, (t) => series.time[t]),
+    frequency: f,
+    scale: Math.sqrt(asserted.estimate.sigma2),
   });
   return out;
 }

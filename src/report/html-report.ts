@@ -7,10 +7,12 @@
  * Sections: the caution, the headline, the asserted equation in plain words with its
  * coefficient table, the forecast chart with bands and a table of its values, the holdout view
  * with bands and the baseline scores, the candidates and why the winner won, the residual
- * checks (Ljung–Box and the cumulative periodogram with its Kolmogorov–Smirnov band), warnings.
+ * checks (Ljung–Box, the cumulative periodogram with its Kolmogorov–Smirnov band and, beside it,
+ * the standardised one-step residuals over time with their ±2 band), warnings.
  */
 import { cadenceName, formatTime } from '../data/calendar.js';
 import { cumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
+import { OUTSIDE_TWO_SIGMA, RESIDUAL_BOUND, standardisedResiduals } from '../evaluate/standardised-residuals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
 import { criterionLabel } from '../select/criteria.js';
 import { FORECAST_CAUTION } from './cautions.js';
@@ -54,7 +56,7 @@ function equationWords(run: ForecastRun): string[] {
     `The equation below gives each value${s.transform === 'log' ? ' (on the log scale)' : ''} from the terms on its right-hand side, with coefficients estimated from ${formatTime(series.time[asserted.from], f)} to ${formatTime(series.time[n - 1], f)} (${n - asserted.from} points). ` +
       `e[t] is what the equation leaves unexplained: about ±${formatTableNumber(sigma)}${s.transform === 'log' ? ' on the log scale' : ''} in a typical period (one standard deviation).`,
   );
-  if (series.inputs.length > 0) words.push(`It uses the inputs ${series.inputs.map((i) => i.name).join(', ')}; their future values are ${run.forecast.inputs.source}.`);
+  if (series.inputs.length > 0) words.push(`It uses the inputs ${series.inputs.map((i) => i.name).join(', ')}; in the forecast, ${run.forecast.inputs.source}.`);
   return words;
 }
 
@@ -81,6 +83,7 @@ function pageData(run: ForecastRun): Record<string, unknown> {
       bound: palette.bound,
       bandFill: palette.bands[0],
       bandEdge: palette.bandEdge,
+      residualBand: palette.residualBand,
       grid: palette.grid,
     },
     forecast: {
@@ -109,6 +112,10 @@ function pageData(run: ForecastRun): Record<string, unknown> {
   const cp = cumulativePeriodogram(run.fitted.residuals);
   if (cp.frequency.length >= 2 && Number.isFinite(cp.statistic)) {
     data.periodogram = { frequency: Array.from(cp.frequency), cumulative: arr(cp.cumulative), band: cp.band95 };
+  }
+  const st = standardisedResiduals(run.fitted.residuals, Math.sqrt(run.asserted.estimate.sigma2));
+  if (st.n > 0) {
+    data.residuals = { labels: Array.from(run.fitted.index, (t) => formatTime(series.time[t], f)), values: arr(st.values), bound: RESIDUAL_BOUND, scale: st.scale };
   }
   return data;
 }
@@ -187,6 +194,7 @@ ${table(['rank', `Δ${crit}`, 'weight', 'structure'], rows, [true, true, true, f
 function residualSection(run: ForecastRun): string {
   const lb = run.search.winner.whiteness;
   const cp = cumulativePeriodogram(run.fitted.residuals);
+  const st = standardisedResiduals(run.fitted.residuals, Math.sqrt(run.asserted.estimate.sigma2));
   const lines: string[] = [];
   if (Number.isFinite(lb.pValue)) {
     lines.push(`Ljung–Box over ${lb.lags} lags: Q = ${num(lb.q)}, p = ${num(lb.pValue)} — ${lb.white ? 'no evidence against white residuals' : 'the residuals are not white: some structure is left in them'}.`);
@@ -194,10 +202,17 @@ function residualSection(run: ForecastRun): string {
   if (Number.isFinite(cp.statistic)) {
     lines.push(`Cumulative periodogram (Bartlett): largest distance from the white-noise line D = ${num(cp.statistic)} against a 95 % band of ±${num(cp.band95)}, p = ${num(cp.pValue)} — ${cp.statistic <= cp.band95 ? 'inside the band' : 'outside the band: a cycle or trend is left in the residuals'}.`);
   }
-  const chart = Number.isFinite(cp.statistic) && cp.frequency.length >= 2 ? '<div class="chart small"><canvas id="chart-periodogram" role="img" aria-label="cumulative periodogram of the residuals"></canvas></div>' : '';
+  if (st.n > 0) {
+    lines.push(
+      `Over time: ${st.outside} of ${st.n} standardised residuals lie outside ±${RESIDUAL_BOUND} (about ${(st.n * OUTSIDE_TWO_SIGMA).toFixed(1)} expected of white normal noise); the largest is ${st.largest.toFixed(2)} standard deviations (σ̂ = ${num(st.scale)}).`,
+    );
+  }
+  const periodogram = Number.isFinite(cp.statistic) && cp.frequency.length >= 2 ? '<div class="chart small"><canvas id="chart-periodogram" role="img" aria-label="cumulative periodogram of the residuals"></canvas></div>' : '';
+  const overTime = st.n > 0 ? '<div class="chart small"><canvas id="chart-residuals" role="img" aria-label="standardised one-step residuals over time"></canvas></div>' : '';
+  const charts = periodogram || overTime ? `<div class="pair">${periodogram ? `<figure>${periodogram}<figcaption>Whiteness: the cumulative periodogram against the white-noise diagonal and its dashed 95 % band.</figcaption></figure>` : ''}${overTime ? `<figure>${overTime}<figcaption>Size over time: each residual divided by σ̂; the shaded band is ±${RESIDUAL_BOUND}, points outside it are marked.</figcaption></figure>` : ''}</div>` : '';
   const scale = run.asserted.structure.transform === 'log' ? ' (on the log scale)' : '';
-  return `<section id="residuals"><h2>Residual checks</h2><p class="note">One-step residuals of the asserted equation${scale}, n = ${cp.n}. White residuals rise along the diagonal; a bulge outside the dashed band means a cycle or trend the equation missed.</p>
-${chart}<ul>${lines.map((l) => `<li>${l}</li>`).join('')}</ul></section>`;
+  return `<section id="residuals"><h2>Residual checks</h2><p class="note">One-step residuals of the asserted equation${scale}, n = ${cp.n}. White residuals rise along the diagonal; a bulge outside the dashed band means a cycle or trend the equation missed. Over time, runs on one side of zero or many points outside the band mean the equation misses something at those times.</p>
+${charts}<ul>${lines.map((l) => `<li>${l}</li>`).join('')}</ul></section>`;
 }
 
 function equationSection(run: ForecastRun): string {

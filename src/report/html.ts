@@ -77,6 +77,10 @@ td.nowrap { white-space: nowrap; }
 tr.best td { font-weight: 600; }
 .chart { position: relative; height: 360px; margin: 6px 0 4px; }
 .chart.small { height: 300px; }
+.pair { display: grid; grid-template-columns: minmax(0, 1fr) minmax(0, 1fr); gap: 18px; }
+.pair figure { margin: 0; min-width: 0; }
+.pair figcaption { color: var(--muted); font-size: 13px; }
+@media (max-width: 760px) { .pair { grid-template-columns: minmax(0, 1fr); } }
 .note { color: var(--muted); font-size: 13.5px; }
 .tag { display: inline-block; padding: 0 6px; border-radius: 3px; font-size: 12.5px; background: #eef0fa; color: var(--accent); }
 .tag.bad { background: #fbeaea; color: var(--bad); }

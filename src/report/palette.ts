@@ -24,6 +24,8 @@ export const palette = {
   second: '#b0306a',
   bound: '#b86e00',
   marker: '#98a2ad',
+  /** Shade of the ±2 band of standardised residuals (olive, the colour of what the model fitted). */
+  residualBand: 'rgba(107, 142, 35, 0.2)',
   holdoutShade: 'rgba(31, 42, 54, 0.045)',
   bar: '#93a5b8',
   bestBar: '#3b4cc0',
@@ -36,6 +38,8 @@ export const look = {
   width: 1000,
   height: 560,
   titleSize: 17,
+  /** Title of one panel inside a multi-panel image. */
+  panelTitleSize: 14,
   subtitleSize: 12.5,
   labelSize: 12,
   tickSize: 11.5,

@@ -24,12 +24,13 @@ function drawReport(ChartLib: any, data: any): void {
     maintainAspectRatio: false,
     interaction: { mode: 'index', intersect: false },
     plugins: {
-      legend: { position: 'top', align: 'end', labels: { usePointStyle: true, boxHeight: 8, color: ink, filter: (item: any) => item.text !== '' } },
+      legend: { position: 'top', align: 'end', labels: { usePointStyle: true, boxHeight: 8, color: ink, filter: (item: any) => item.text !== '', sort: (a: any, b: any) => a.datasetIndex - b.datasetIndex } },
       tooltip: { callbacks: { label: (ctx: any) => (ctx.dataset.label ? `${ctx.dataset.label}: ${fmt(ctx.parsed.y)}` : null) }, filter: (item: any) => item.dataset.label !== '' && item.parsed.y !== null },
     },
     scales: {
       x: { type: 'category', ticks: { maxRotation: 0, autoSkip: true, maxTicksLimit: 12 }, grid: { color: look.grid } },
-      y: { title: { display: true, text: yTitle }, grid: { color: look.grid }, ...(floor !== null ? { min: floor } : {}) },
+      // a never-negative series: the axis may not run below the floor, but need not reach it
+      y: { title: { display: true, text: yTitle }, grid: { color: look.grid }, ...(floor !== null ? { afterDataLimits: (axis: any) => { if (axis.min < floor) axis.min = floor; } } : {}) },
     },
   });
   const line = (label: string, values: any[], c: string, extra: any = {}): any => ({
@@ -85,20 +86,51 @@ function drawReport(ChartLib: any, data: any): void {
   }
   if (data.periodogram) {
     const p = data.periodogram;
-    const diag = p.frequency.map((_: number, j: number) => (j + 1) / p.frequency.length);
+    const q = p.frequency.length;
+    const xy = (values: any[]): any[] => values.map((y: any, j: number) => ({ x: p.frequency[j], y }));
+    const diag = p.frequency.map((_: number, j: number) => (j + 1) / q);
     const opts = baseOptions('cumulative share of variance', null);
+    opts.scales.x = { type: 'linear', min: 0, max: 0.5, title: { display: true, text: 'frequency (cycles per period)' }, grid: { color: look.grid } };
     opts.scales.y.min = 0;
     opts.scales.y.max = 1;
-    opts.scales.x.title = { display: true, text: 'frequency (cycles per period)' };
+    opts.interaction = { mode: 'nearest', axis: 'x', intersect: false };
     draw('chart-periodogram', {
       type: 'line',
       data: {
-        labels: p.frequency.map((x: number) => x.toFixed(3)),
         datasets: [
-          line('residuals', p.cumulative, look.observed, { stepped: true, order: 0 }),
-          line('white noise', diag, look.context, { borderWidth: 1, order: 1 }),
-          line('95 % band', diag.map((d: number) => Math.min(1, d + p.band)), look.bound, { borderWidth: 1.25, borderDash: [5, 4], order: 2 }),
-          line('', diag.map((d: number) => Math.max(0, d - p.band)), look.bound, { borderWidth: 1.25, borderDash: [5, 4], order: 2 }),
+          line('residuals', xy(p.cumulative), look.observed, { stepped: true, order: 0 }),
+          line('white noise', xy(diag), look.context, { borderWidth: 1, order: 1 }),
+          line('95 % band', xy(diag.map((d: number) => Math.min(1, d + p.band))), look.bound, { borderWidth: 1.25, borderDash: [5, 4], order: 2 }),
+          line('', xy(diag.map((d: number) => Math.max(0, d - p.band))), look.bound, { borderWidth: 1.25, borderDash: [5, 4], order: 2 }),
+        ],
+      },
+      options: opts,
+    });
+  }
+  if (data.residuals) {
+    const r = data.residuals;
+    const b = r.bound;
+    const pick = (outside: boolean): any[] => r.values.map((v: any) => (v === null ? null : Math.abs(v) > b === outside ? v : null));
+    const largest = r.values.reduce((m: number, v: any) => (v === null ? m : Math.max(m, Math.abs(v))), 0);
+    const limit = Math.max(3, Math.ceil(largest + 0.25));
+    const opts = baseOptions(`residual ÷ σ̂ (σ̂ = ${fmt(r.scale)})`, null);
+    opts.scales.x.ticks.maxTicksLimit = 6;
+    opts.scales.y.min = -limit;
+    opts.scales.y.max = limit;
+    opts.interaction = { mode: 'nearest', axis: 'x', intersect: false };
+    opts.plugins.tooltip.filter = (item: any) => !item.dataset.certaBand && item.parsed.y !== null;
+    const dots = (label: string, values: any[], c: string, extra: any = {}): any => line(label, values, c, { showLine: false, pointRadius: 2.5, pointHoverRadius: 4, ...extra });
+    const flat = (v: number): number[] => r.values.map(() => v);
+    draw('chart-residuals', {
+      type: 'line',
+      data: {
+        labels: r.labels,
+        datasets: [
+          dots('standardised residual', pick(false), look.observed, { order: 0 }),
+          dots(`outside ±${b}`, pick(true), look.second, { pointStyle: 'rectRot', pointRadius: 4.5, pointHoverRadius: 6, order: 0 }),
+          line(`±${b} band`, flat(b), look.residualBand, { borderWidth: 0, fill: '+1', backgroundColor: look.residualBand, pointStyle: 'rect', pointHoverRadius: 0, order: 5, certaBand: true }),
+          line('', flat(-b), look.residualBand, { borderWidth: 0, pointHoverRadius: 0, order: 5, certaBand: true }),
+          line('', flat(0), look.context, { borderWidth: 1, pointHoverRadius: 0, order: 4, certaBand: true }),
         ],
       },
       options: opts,

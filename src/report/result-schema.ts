@@ -11,6 +11,18 @@ const looseSnake = (shape: z.ZodRawShape) => z.looseObject(shape).and(z.record(s
 
 const seriesInfo = z.looseObject({ name: z.string(), frequency: z.string(), length: z.number().int(), start: z.string(), end: z.string() });
 
+/** One row of the coefficient table: the interval bounds are null where the table leaves them blank. */
+const term = z.looseObject({
+  name: z.string(),
+  estimate: z.number().nullable(),
+  se: z.number().nullable(),
+  lower: z.number().nullable(),
+  upper: z.number().nullable(),
+  active: z.boolean(),
+});
+/** The asserted model with its coefficient table at `coefficient_level` percent. */
+const model = z.looseObject({ key: z.string(), label: z.string(), equation: z.string(), coefficient_level: z.number(), terms: z.array(term) });
+
 const forecastDetail = looseSnake({
   format: z.literal('certa-summary'),
   version: z.number().int(),
@@ -18,7 +30,7 @@ const forecastDetail = looseSnake({
   caution: z.string(),
   series: seriesInfo,
   options: z.looseObject({ horizon: z.number().int(), holdout: z.number().int(), levels: z.array(z.number()) }),
-  model: z.looseObject({ key: z.string(), label: z.string(), equation: z.string() }),
+  model,
   evaluation: z.union([z.null(), z.looseObject({ holdout: z.number().int(), model_mase: z.number().nullable() })]),
   forecast: z.looseObject({ rows: z.array(z.looseObject({ time: z.string(), point: z.number().nullable() })) }),
   warnings: z.array(z.string()),
@@ -30,6 +42,7 @@ const updateDetail = looseSnake({
   format: z.literal('certa-summary'),
   version: z.number().int(),
   command: z.literal('update'),
+  model,
   warnings: z.array(z.string()),
   files: z.array(z.string()),
   out_dir: z.string(),
@@ -39,7 +52,17 @@ const searchDetail = looseSnake({
   series: z.looseObject({ name: z.string() }),
   criterion: z.string(),
   ranking: z.array(z.looseObject({ structure: z.string(), key: z.string() })),
-  winner: z.looseObject({ structure: z.string(), key: z.string(), equation: z.string() }),
+  winner: z.looseObject({
+    structure: z.string(),
+    key: z.string(),
+    equation: z.string(),
+    terms: z.array(z.string()),
+    theta: z.array(z.number().nullable()),
+    se: z.array(z.number().nullable()),
+    coefficient_level: z.number(),
+    lower: z.array(z.number().nullable()),
+    upper: z.array(z.number().nullable()),
+  }),
   warnings: z.array(z.string()),
   files: z.looseObject({ candidates: z.string(), model: z.string() }),
 });

@@ -8,6 +8,7 @@ import { formatTime, type Frequency } from '../data/calendar.js';
 import type { DriftAlarm } from '../forecast/drift.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
+import { coefficientRows, coefficientTerms, COEFFICIENT_LEVEL } from './coefficients.js';
 import { forecastChart } from './charts.js';
 import { combinationJson, fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
 import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
@@ -55,6 +56,13 @@ export interface UpdateContext {
   warnings?: string[];
 }
 
+/** The coefficient table of the updated model (coefficients.ts) as JSON terms. */
+function updateTerms(result: UpdateResult): ReturnType<typeof coefficientTerms> {
+  const { body } = result;
+  const active = Array.isArray(body.state.active) ? (body.state.active as number[]).map((a) => a === 1) : body.terms.map(() => true);
+  return coefficientTerms(coefficientRows(body.terms, body.theta, body.se, active, COEFFICIENT_LEVEL));
+}
+
 /** `summary.json` of an update. */
 export function updateSummary(result: UpdateResult, ctx: UpdateContext): Record<string, unknown> {
   const { body, series } = result;
@@ -83,7 +91,7 @@ export function updateSummary(result: UpdateResult, ctx: UpdateContext): Record<
       after: result.policy.after,
     },
     drift: { method: d.method, k: d.k, h: d.h, window: d.window, varianceRate: d.varianceRate, varianceThreshold: d.varianceThreshold, alarmsSinceCreated: d.alarms },
-    model: { key: result.policy.after.key, label: result.policy.after.label, equation: result.policy.after.equation, lambda: body.lambda, sigma2: body.sigma2, terms: body.terms.map((t, j) => ({ name: t, estimate: body.theta[j], se: body.se[j] })) },
+    model: { key: result.policy.after.key, label: result.policy.after.label, equation: result.policy.after.equation, lambda: body.lambda, sigma2: body.sigma2, coefficientLevel: COEFFICIENT_LEVEL, terms: updateTerms(result) },
     forecast: fc
       ? {
           horizon: fc.horizon,

@@ -75,6 +75,23 @@ describe('certa forecast', () => {
     expect(summary.forecast.rows.length).toBe(24);
     expect(Array.isArray(summary.warnings)).toBe(true);
     expect(summary.caution).toMatch(/statistical extrapolations/);
+    // the coefficient table in summary.json: the bounds the text table prints, estimate ∓ z·se
+    // with z = Φ⁻¹(0.95) = 1.6448536269514722 (the 90 % level; Abramowitz & Stegun, Table 26.5)
+    expect(summary.model.coefficient_level).toBe(90);
+    expect(r.stdout).toMatch(/term\s+estimate\s+std\. error\s+90 % interval/);
+    expect(summary.model.terms.length).toBeGreaterThan(0);
+    for (const t of summary.model.terms) {
+      expect(Object.keys(t).sort()).toEqual(['active', 'estimate', 'lower', 'name', 'se', 'upper']);
+      if (!t.active) {
+        expect([t.lower, t.upper]).toEqual([null, null]);
+        continue;
+      }
+      expect(t.lower).toBeCloseTo(t.estimate - 1.6448536269514722 * t.se, 9);
+      expect(t.upper).toBeCloseTo(t.estimate + 1.6448536269514722 * t.se, 9);
+      const six = (x: number) => String(Number(x.toPrecision(6)));
+      const row = r.stdout.split('\n').find((l) => l.trimStart().startsWith(`${t.name} `));
+      expect(row, t.name).toContain(`${six(t.lower)} to ${six(t.upper)}`);
+    }
   });
 
   it('--json prints the one result document, whose detail is summary.json', () => {

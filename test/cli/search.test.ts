@@ -75,6 +75,12 @@ describe('certa search', () => {
     expect(doc.ranking[0].rank).toBe(1);
     expect(doc.ranking[0].delta).toBe(0);
     expect(doc.winner.terms.length).toBe(doc.winner.theta.length);
+    // the interval bounds of the printed coefficient table: estimate ∓ Φ⁻¹(0.95)·se at 90 %
+    expect(doc.winner.coefficient_level).toBe(90);
+    doc.winner.theta.forEach((theta: number, j: number) => {
+      expect(doc.winner.lower[j]).toBeCloseTo(theta - 1.6448536269514722 * doc.winner.se[j], 9);
+      expect(doc.winner.upper[j]).toBeCloseTo(theta + 1.6448536269514722 * doc.winner.se[j], 9);
+    });
     expect(doc.winner.whiteness.dof).toBeGreaterThan(0);
     expect(existsSync(doc.files.model)).toBe(true);
   });

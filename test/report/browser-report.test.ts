@@ -54,7 +54,7 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
     expect(log.errors).toEqual([]);
     expect(log.requests).toEqual([]);
     expect(log.dialogs).toEqual([]);
-    for (const id of ['chart-forecast', 'chart-holdout', 'chart-periodogram']) expect(await inkShare(page, id), id).toBeGreaterThan(0.01);
+    for (const id of ['chart-forecast', 'chart-holdout', 'chart-periodogram', 'chart-residuals']) expect(await inkShare(page, id), id).toBeGreaterThan(0.01);
     // the caution and the sections are there
     const text = await page.locator('body').innerText();
     expect(text).toMatch(/not physical climate projections and not financial advice/);

@@ -121,4 +121,6 @@ export const lumoResiduals: ResidualChartInput = {
   title: 'Lumo kettles: residuals of the asserted model',
   subtitle: 'one-step prediction errors, 2017-02 to 2023-12',
   residuals: lumoFitted.map((fv, i) => lumoSales[i] - fv),
+  time: lumoTime,
+  frequency: 'monthly',
 };

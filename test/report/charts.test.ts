@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { createCanvas, loadImage } from '@napi-rs/canvas';
 import { stepTime } from '../../src/data/calendar.js';
-import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from '../../src/report/charts.js';
+import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart, wrapLabel } from '../../src/report/charts.js';
 import { palette } from '../../src/report/palette.js';
 import { lumoForecast, lumoHistory, lumoHoldout, lumoRanking, lumoResiduals } from './chart-fixtures.js';
 
@@ -84,7 +84,7 @@ const cases: Array<[string, () => Buffer, number, number]> = [
   ['forecastChart', () => forecastChart(lumoForecast), 1000, 560],
   ['holdoutChart', () => holdoutChart(lumoHoldout), 1000, 560],
   ['rankingChart', () => rankingChart(lumoRanking), 1000, 560],
-  ['residualChart', () => residualChart(lumoResiduals), 1000, 560],
+  ['residualChart', () => residualChart(lumoResiduals), 1200, 560],
 ];
 
 describe.each(cases)('%s', (_name, render, width, height) => {
@@ -143,6 +143,53 @@ describe('forecastChart bands', () => {
   });
   it('rejects a size outside 200–4000 pixels', () => {
     expect(() => forecastChart({ ...lumoForecast, width: 50 })).toThrow(RangeError);
+  });
+});
+
+describe('wrapLabel', () => {
+  it('breaks after commas when the parts fit, so a phrase such as "1 seasonal harmonic" stays on one line', () => {
+    expect(wrapLabel('AR lags 1-3, trend, 1 harmonic', 14)).toEqual(['AR lags 1-3,', 'trend,', '1 harmonic']);
+    expect(wrapLabel('logistic growth path, level effects of subsidy, frost_index, 1 seasonal harmonic', 62)).toEqual([
+      'logistic growth path, level effects of subsidy, frost_index,',
+      '1 seasonal harmonic',
+    ]);
+  });
+  it('breaks inside a part longer than a line, keeps a word longer than a line whole, and loses nothing', () => {
+    const names = ['AR lags 1-3, subsidy lags 0-1, frost_index lag 0 after delay 1, trend, 1 harmonic', 'x'.repeat(80), 'a, b', ''];
+    for (const name of names) {
+      for (const width of [8, 20, 62]) {
+        const lines = wrapLabel(name, width);
+        expect(lines.join(' ')).toBe(name);
+        for (const l of lines) if (l.includes(' ')) expect(l.length).toBeLessThanOrEqual(width);
+      }
+    }
+  });
+});
+
+describe('residualChart panels', () => {
+  // the ±2 band of palette.ts, rgba(107, 142, 35, 0.2), over white
+  const SHADE = over([107, 142, 35], 0.2, WHITE).map(Math.round);
+  const MAGENTA = parseRgb(palette.second);
+  // below the panel legends (about row 105), above the time axis
+  const plotRows = [130, 500] as const;
+  it('draws the periodogram on the left and the shaded ±2 band of the residuals over time on the right', async () => {
+    const img = await pixels(residualChart(lumoResiduals));
+    expect(countFilled(img, SHADE, 0, 552, 3, ...plotRows)).toBe(0);
+    expect(countFilled(img, SHADE, 560, 1200, 3, ...plotRows)).toBeGreaterThan(20_000);
+    // the periodogram's step line is ink on the left
+    expect(countNear(img, parseRgb(palette.observed), 60, 540, 30, ...plotRows)).toBeGreaterThan(300);
+  });
+  it('marks points outside ±2 in magenta, and only those', async () => {
+    const calm = Array.from({ length: 60 }, (_, i) => Math.sin(i * 1.7));
+    const time = Float64Array.from({ length: 60 }, (_, i) => stepTime(Date.UTC(2019, 0, 1), 'monthly', i));
+    // scale 1: the sines stay inside ±2; one value of 3.5 lies outside
+    const without = await pixels(residualChart({ title: 'calm', residuals: calm, time, frequency: 'monthly', scale: 1 }));
+    const withOne = await pixels(residualChart({ title: 'one outlier', residuals: calm.map((v, i) => (i === 30 ? 3.5 : v)), time, frequency: 'monthly', scale: 1 }));
+    expect(countNear(without, MAGENTA, 560, 1200, 6, ...plotRows)).toBe(0);
+    expect(countNear(withOne, MAGENTA, 560, 1200, 6, ...plotRows)).toBeGreaterThan(15);
+  });
+  it('refuses time stamps not aligned with the residuals (RangeError)', () => {
+    expect(() => residualChart({ title: 'bad', residuals: [1, 2, 3], time: [1, 2], frequency: 'index' })).toThrow(RangeError);
   });
 });
 

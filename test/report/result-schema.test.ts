@@ -21,6 +21,36 @@ describe('the result schema', () => {
   });
 });
 
+describe('the coefficient table in the result', () => {
+  const term = { name: 'K', estimate: 428.44, se: 6.68, lower: 417.45, upper: 439.43, active: true };
+  const forecastDetail = (terms: unknown[]) => ({
+    format: 'certa-summary',
+    version: 2,
+    command: 'forecast',
+    caution: 'c',
+    series: { name: 's', frequency: 'monthly', length: 3, start: '2024-01', end: '2024-03' },
+    options: { horizon: 1, holdout: 0, levels: [50, 90] },
+    model: { key: 'k', label: 'l', equation: 'y[t] = e[t]', coefficient_level: 90, terms },
+    evaluation: null,
+    forecast: { rows: [{ time: '2024-04', point: 1 }] },
+    warnings: [],
+    files: [],
+    out_dir: 'o',
+  });
+  const doc = (terms: unknown[]) => ({ ...resultDocument('forecast', []), results: [{ series: 's', status: 'ok', folder: 'o', reason: null, detail: forecastDetail(terms) }] });
+
+  it('accepts terms with interval bounds, null bounds for a term left out', () => {
+    expect(resultSchema.safeParse(doc([term, { ...term, name: 'r', active: false, lower: null, upper: null }])).success).toBe(true);
+  });
+  it('refuses a term without its bounds, and a model without the coefficient level', () => {
+    const { lower: _lower, upper: _upper, ...bare } = term;
+    expect(resultSchema.safeParse(doc([bare])).success).toBe(false);
+    const noLevel = doc([term]);
+    delete (noLevel.results[0].detail.model as { coefficient_level?: number }).coefficient_level;
+    expect(resultSchema.safeParse(noLevel).success).toBe(false);
+  });
+});
+
 describe('snakeKeys', () => {
   it('turns camelCase keys into snake_case at every depth and leaves values alone', () => {
     expect(snakeCase('beatenByBaseline')).toBe('beaten_by_baseline');
