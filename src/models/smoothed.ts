@@ -115,6 +115,9 @@ export class SmoothedStructure implements Structure {
     const values = series.values;
     const m = this.lastScale;
     if (m !== null && m.values === values && sameValues(m.copy, values)) return m.z;
+    // A leading part of the kept values (a history cut at an origin, sharing its buffer): g is
+    // elementwise, so its z is the leading part of the kept z.
+    if (m !== null && isLeadingView(values, m.values) && sameValues(m.copy.subarray(0, values.length), values)) return m.z.subarray(0, values.length);
     if (this.transform === 'log' && !isStrictlyPositive(values)) {
       throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
         expected: 'all values > 0',
@@ -307,6 +310,11 @@ export class SmoothedStructure implements Structure {
     }
     return out;
   }
+}
+
+/** True when `part` is a view of the first `part.length` values of `whole` (same buffer, same start). */
+function isLeadingView(part: Float64Array, whole: Float64Array): boolean {
+  return part.buffer === whole.buffer && part.byteOffset === whole.byteOffset && part.length <= whole.length;
 }
 
 /** True when two arrays hold the same values. */
