@@ -35,7 +35,7 @@ import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { checkChangeTerms, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
+import { checkChangeTerms, deterministicCombination, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
 import { linearEquation } from './equation.js';
 import { isStableRecursion, spectralRadius } from './roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
@@ -175,16 +175,7 @@ export class DampedStructure implements Structure {
 
   /** The deterministic part of the change at time t (drift plus harmonics), from θ. */
   private deterministicChange(theta: Float64Array): (t: number) => number {
-    const m = this.terms.length - this.lags;
-    if (m === 0) return () => 0;
-    const fill = deterministicFiller(this.deterministic);
-    const row = new Float64Array(m);
-    return (t) => {
-      fill(t, row, 0);
-      let s = 0;
-      for (let j = 0; j < m; j++) s += theta[this.lags + j] * row[j];
-      return s;
-    };
+    return deterministicCombination(this.deterministic, theta, this.lags);
   }
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {

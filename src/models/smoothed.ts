@@ -41,7 +41,7 @@ import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { checkChangeTerms, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
+import { checkChangeTerms, deterministicCombination, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
 import { formatCoefficient, linearEquation } from './equation.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 
@@ -156,13 +156,31 @@ export class SmoothedStructure implements Structure {
     return { w, x };
   }
 
+  /**
+   * `filtered` over the whole of `series` (z its scale), kept with a copy of the values and the
+   * window start it came from: the filter runs forward from t = 1, so the rows of any range, and
+   * those of a leading part of the same values, are read from the one result. Online learning
+   * asks for a few rows of the same history at a time.
+   */
+  private filteredOf(series: Series, z: Float64Array): { w: Float64Array; x: Float64Array } {
+    const values = series.values;
+    const origin = series.before?.count ?? 0;
+    const m = this.lastFilter;
+    if (m !== null && m.origin === origin && (m.values === values || isLeadingView(values, m.values)) && sameValues(m.copy.subarray(0, values.length), values)) return m;
+    const f = this.filtered(series, z, z.length);
+    this.lastFilter = { values, copy: values.slice(), origin, w: f.w, x: f.x };
+    return f;
+  }
+
+  private lastFilter: { values: Float64Array; copy: Float64Array; origin: number; w: Float64Array; x: Float64Array } | null = null;
+
   regression(series: Series, from: number, to: number): Regression {
     const z = this.scale(series);
     const end = Math.min(to, z.length);
     const start = Math.max(from, this.history);
     const rows = Math.max(0, end - start);
     const p = this.terms.length;
-    const { w, x } = this.filtered(series, z, end);
+    const { w, x } = this.filteredOf(series, z);
     const phi: DesignMatrix = { rows, cols: p, data: x.slice((start - 1) * p, (start - 1 + rows) * p) };
     const index = Int32Array.from({ length: rows }, (_, r) => start + r);
     return { index, y: w.slice(start - 1, start - 1 + rows), phi };
@@ -209,15 +227,7 @@ export class SmoothedStructure implements Structure {
 
   /** The deterministic change d_t at time t (drift plus harmonics), from θ. */
   private change(theta: Float64Array): (t: number) => number {
-    const p = this.terms.length;
-    if (p === 0) return () => 0;
-    const row = new Float64Array(p);
-    return (t) => {
-      this.fill(t, row, 0);
-      let s = 0;
-      for (let j = 0; j < p; j++) s += theta[j] * row[j];
-      return s;
-    };
+    return deterministicCombination(this.deterministic, theta);
   }
 
   /**
