@@ -191,7 +191,7 @@ export function rollingErrors(members: readonly CalibrationMember[], history: Se
       if (learner === null) continue;
       // Rows before o only use observations before o: the learner catches up on the whole history.
       try {
-        if (learner.next < o) learner.learn(history, o);
+        if (learner.next < o) learner.advance(history, o);
       } catch {
         learners[i] = null;
         started[i] = false;

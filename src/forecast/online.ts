@@ -16,7 +16,7 @@
 import type { Series } from '../data/series.js';
 import type { Regression, Structure } from '../models/structure.js';
 import { lstsq } from '../linalg/lstsq.js';
-import { Rls, type RlsJson } from '../linalg/rls.js';
+import { Rls, type RlsJson, type RlsStep } from '../linalg/rls.js';
 import { zeros, type DesignMatrix } from '../linalg/matrix.js';
 import { ModelError } from '../data/errors.js';
 
@@ -103,8 +103,21 @@ export class Learner {
    * step each, and returns the steps (innovations for drift detection and evaluation).
    */
   learn(series: Series, to: number = series.values.length): LearnStep[] {
-    if (to <= this.next) return [];
     const steps: LearnStep[] = [];
+    this.learnTo(series, to, steps);
+    return steps;
+  }
+
+  /**
+   * The same RLS steps as `learn`, without recording them: for callers that only need the
+   * learner's state at `to` (calibration re-runs from its origins).
+   */
+  advance(series: Series, to: number = series.values.length): void {
+    this.learnTo(series, to, null);
+  }
+
+  private learnTo(series: Series, to: number, steps: LearnStep[] | null): void {
+    if (to <= this.next) return;
     if (!this.structure.linearized) {
       this.learnRows(this.structure.regression(series, this.next, to), steps);
     } else {
@@ -112,20 +125,24 @@ export class Learner {
       for (let t = this.next; t < to; t++) this.learnRows(this.structure.regression(series, t, t + 1, this.theta), steps);
     }
     if (this.next < to) this.next = to;
-    return steps;
   }
 
-  private learnRows(reg: Regression, steps: LearnStep[]): void {
-    const cols = activeColumns(this.active);
+  private learnRows(reg: Regression, steps: LearnStep[] | null): void {
+    const cols = (this.columns ??= activeColumns(this.active));
     const p = reg.phi.cols;
     const phi = new Float64Array(cols.length);
+    // One record for every step's results (read before the next step overwrites them).
+    const s: RlsStep = { prediction: 0, innovation: 0, innovationVariance: 0, gain: new Float64Array(cols.length) };
     for (let r = 0; r < reg.y.length; r++) {
       for (let a = 0; a < cols.length; a++) phi[a] = reg.phi.data[r * p + cols[a]];
-      const s = this.rls.update(phi, reg.y[r]);
-      steps.push({ t: reg.index[r], innovation: s.innovation, variance: s.innovationVariance });
+      this.rls.update(phi, reg.y[r], s);
+      if (steps !== null) steps.push({ t: reg.index[r], innovation: s.innovation, variance: s.innovationVariance });
       this.next = reg.index[r] + 1;
     }
   }
+
+  /** Positions of the active terms (`active` is fixed for the learner's life). */
+  private columns: number[] | null = null;
 }
 
 export interface LearnerJson {

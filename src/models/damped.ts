@@ -35,7 +35,7 @@ import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { checkChangeTerms, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
+import { checkChangeTerms, deterministicCombination, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
 import { linearEquation } from './equation.js';
 import { isStableRecursion, spectralRadius } from './roots.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
@@ -116,10 +116,15 @@ export class DampedStructure implements Structure {
   }
 
   regression(series: Series, from: number, to: number): Regression {
-    const z = this.scale(series, series.values);
+    // Only observations from start − p − 1 on enter the rows: transform just those (online
+    // learning asks for a few rows of a long history at a time).
+    this.checkScale(series, series.values);
     const start = Math.max(from, this.history);
-    const end = Math.min(to, z.length);
+    const end = Math.min(to, series.values.length);
     const rows = Math.max(0, end - start);
+    const lo = start - this.history;
+    const part = forward(this.transform, series.values.subarray(lo, Math.max(lo, end)));
+    const z = (t: number): number => part[t - lo];
     const p = this.terms.length;
     const phi: DesignMatrix = { rows, cols: p, data: new Float64Array(rows * p) };
     const y = new Float64Array(rows);
@@ -129,8 +134,8 @@ export class DampedStructure implements Structure {
     for (let r = 0; r < rows; r++) {
       const t = start + r;
       index[r] = t;
-      y[r] = z[t] - z[t - 1];
-      for (let i = 1; i <= this.lags; i++) phi.data[r * p + i - 1] = z[t - i] - z[t - i - 1];
+      y[r] = z(t) - z(t - 1);
+      for (let i = 1; i <= this.lags; i++) phi.data[r * p + i - 1] = z(t - i) - z(t - i - 1);
       fill(origin + t, phi.data, r * p + this.lags);
     }
     return { index, y, phi };
@@ -170,16 +175,7 @@ export class DampedStructure implements Structure {
 
   /** The deterministic part of the change at time t (drift plus harmonics), from θ. */
   private deterministicChange(theta: Float64Array): (t: number) => number {
-    const m = this.terms.length - this.lags;
-    if (m === 0) return () => 0;
-    const fill = deterministicFiller(this.deterministic);
-    const row = new Float64Array(m);
-    return (t) => {
-      fill(t, row, 0);
-      let s = 0;
-      for (let j = 0; j < m; j++) s += theta[this.lags + j] * row[j];
-      return s;
-    };
+    return deterministicCombination(this.deterministic, theta, this.lags);
   }
 
   oneStep(theta: Float64Array, series: Series, from: number, to: number): Float64Array {

@@ -41,7 +41,7 @@ import { lstsq } from '../linalg/lstsq.js';
 import type { DesignMatrix } from '../linalg/matrix.js';
 import type { Derived, Estimate, Regression, Structure, StructureSpec, Transform } from './structure.js';
 import { forward, inverse, isStrictlyPositive, transformedName } from './transforms.js';
-import { checkChangeTerms, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
+import { checkChangeTerms, deterministicCombination, deterministicFiller, deterministicNames, specFieldError, type ChangeTerms, type DeterministicTerms } from './terms.js';
 import { formatCoefficient, linearEquation } from './equation.js';
 import type { CandidateBounds, FamilyDefinition } from './registry.js';
 
@@ -115,6 +115,9 @@ export class SmoothedStructure implements Structure {
     const values = series.values;
     const m = this.lastScale;
     if (m !== null && m.values === values && sameValues(m.copy, values)) return m.z;
+    // A leading part of the kept values (a history cut at an origin, sharing its buffer): g is
+    // elementwise, so its z is the leading part of the kept z.
+    if (m !== null && isLeadingView(values, m.values) && sameValues(m.copy.subarray(0, values.length), values)) return m.z.subarray(0, values.length);
     if (this.transform === 'log' && !isStrictlyPositive(values)) {
       throw new ModelError('not-positive', `the log transform needs a strictly positive series; "${series.name}" has values ≤ 0`, {
         expected: 'all values > 0',
@@ -153,13 +156,31 @@ export class SmoothedStructure implements Structure {
     return { w, x };
   }
 
+  /**
+   * `filtered` over the whole of `series` (z its scale), kept with a copy of the values and the
+   * window start it came from: the filter runs forward from t = 1, so the rows of any range, and
+   * those of a leading part of the same values, are read from the one result. Online learning
+   * asks for a few rows of the same history at a time.
+   */
+  private filteredOf(series: Series, z: Float64Array): { w: Float64Array; x: Float64Array } {
+    const values = series.values;
+    const origin = series.before?.count ?? 0;
+    const m = this.lastFilter;
+    if (m !== null && m.origin === origin && (m.values === values || isLeadingView(values, m.values)) && sameValues(m.copy.subarray(0, values.length), values)) return m;
+    const f = this.filtered(series, z, z.length);
+    this.lastFilter = { values, copy: values.slice(), origin, w: f.w, x: f.x };
+    return f;
+  }
+
+  private lastFilter: { values: Float64Array; copy: Float64Array; origin: number; w: Float64Array; x: Float64Array } | null = null;
+
   regression(series: Series, from: number, to: number): Regression {
     const z = this.scale(series);
     const end = Math.min(to, z.length);
     const start = Math.max(from, this.history);
     const rows = Math.max(0, end - start);
     const p = this.terms.length;
-    const { w, x } = this.filtered(series, z, end);
+    const { w, x } = this.filteredOf(series, z);
     const phi: DesignMatrix = { rows, cols: p, data: x.slice((start - 1) * p, (start - 1 + rows) * p) };
     const index = Int32Array.from({ length: rows }, (_, r) => start + r);
     return { index, y: w.slice(start - 1, start - 1 + rows), phi };
@@ -206,15 +227,7 @@ export class SmoothedStructure implements Structure {
 
   /** The deterministic change d_t at time t (drift plus harmonics), from θ. */
   private change(theta: Float64Array): (t: number) => number {
-    const p = this.terms.length;
-    if (p === 0) return () => 0;
-    const row = new Float64Array(p);
-    return (t) => {
-      this.fill(t, row, 0);
-      let s = 0;
-      for (let j = 0; j < p; j++) s += theta[j] * row[j];
-      return s;
-    };
+    return deterministicCombination(this.deterministic, theta);
   }
 
   /**
@@ -307,6 +320,11 @@ export class SmoothedStructure implements Structure {
     }
     return out;
   }
+}
+
+/** True when `part` is a view of the first `part.length` values of `whole` (same buffer, same start). */
+function isLeadingView(part: Float64Array, whole: Float64Array): boolean {
+  return part.buffer === whole.buffer && part.byteOffset === whole.byteOffset && part.length <= whole.length;
 }
 
 /** True when two arrays hold the same values. */

@@ -124,6 +124,41 @@ export function deterministicFiller(d: DeterministicTerms): (t: number, out: Flo
 }
 
 /**
+ * The deterministic part Σ_j θ_{offset+j}·d_j(t) as a function of t, summed in column order
+ * exactly as a filled row times θ would be. Without a trend the row depends on t only through
+ * t mod s (the harmonics' repeat; not at all without harmonics), so each phase is summed once
+ * per θ and then read back: recursions over a long history cost one lookup per step.
+ */
+export function deterministicCombination(d: DeterministicTerms, theta: ArrayLike<number>, offset = 0): (t: number) => number {
+  const { s, m, table, intercept, trend } = layout(d);
+  const count = (intercept ? 1 : 0) + (trend ? 1 : 0) + m;
+  if (count === 0) return () => 0;
+  const sumAt = (t: number): number => {
+    let sum = 0;
+    let j = offset;
+    if (intercept) sum += theta[j++] * 1;
+    if (trend) sum += theta[j++] * t;
+    if (m > 0) {
+      const base = (((t % s) + s) % s) * m;
+      for (let c = 0; c < m; c++) sum += theta[j++] * table[base + c];
+    }
+    return sum;
+  };
+  if (trend) return sumAt;
+  const period = m > 0 ? s : 1;
+  const known = new Float64Array(period);
+  const ready = new Uint8Array(period);
+  return (t) => {
+    const r = m > 0 ? ((t % s) + s) % s : 0;
+    if (ready[r] === 0) {
+      known[r] = sumAt(t);
+      ready[r] = 1;
+    }
+    return known[r];
+  };
+}
+
+/**
  * A filler writing the values `deterministicFiller(d)` writes for times t0 … t0 + rows − 1 into
  * the rows of a row-major matrix `out` with `stride` columns, from column `offset`, column by
  * column.
