@@ -3,7 +3,7 @@
  * (store/lock.ts) around read → update → write; reads the new file with the shared data options
  * (the model's inputs by default; the model's series chosen by name when the file has several);
  * learns the rows after the model's last time stamp (forecast/update.ts); writes forecast.csv,
- * summary.json and forecast.png (unless --no-charts) into --out (default: the model's folder),
+ * summary.json, forecast.png (unless --no-charts) and report.html (unless --no-report) into --out (default: the model's folder),
  * then the updated model (the previous version kept as model.prev.json). Forecast files are
  * written before the model, so a run cut short can simply be repeated. With 0 new rows nothing
  * is written. Exit code 3 with --fail-on-drift when a drift alarm fired.
@@ -14,6 +14,7 @@ import { DataError, UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { DRIFT_POLICIES, update, type DriftPolicy, type UpdateOptions, type UpdateResult } from '../forecast/update.js';
 import { updateCharts, updateFiles, updateSummary, updateSummaryJson, updateText } from '../report/update-report.js';
+import { updateHtml } from '../report/update-html.js';
 import { withLock } from '../store/lock.js';
 import { readModelFile, writeModelFile, type ModelBody } from '../store/model-file.js';
 import { addDataOptions, loadSeriesFromCli, parseDataOptions } from './data-options.js';
@@ -33,6 +34,8 @@ export interface CliUpdateOptions {
   bands?: IntervalMethod;
   out?: string;
   charts: boolean;
+  /** Write report.html (`--no-report` turns it off). */
+  report: boolean;
   json: boolean;
 }
 
@@ -53,6 +56,7 @@ export function parseUpdateOptions(opts: Record<string, unknown>): CliUpdateOpti
     failOnDrift: Boolean(opts.failOnDrift),
     acceptRevisions: Boolean(opts.acceptRevisions),
     charts: opts.charts !== false,
+    report: opts.report !== false,
     json: Boolean(opts.json),
   };
   if (opts.horizon !== undefined) out.horizon = num('--horizon', opts.horizon, (v) => v >= 1 && v <= 10_000, 'a whole number of periods from 1 to 10000', true);
@@ -120,9 +124,10 @@ export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpd
       const files: Record<string, string | Uint8Array> = { ...updateFiles(result) };
       if (cli.charts) Object.assign(files, updateCharts(result));
       const modelName = join(folder, 'model.json') === modelPath ? ['model.json'] : [];
-      const names = [...Object.keys(files), 'summary.json', ...modelName].sort();
+      const names = [...Object.keys(files), 'summary.json', ...modelName, ...(cli.report ? ['report.html'] : [])].sort();
       const summary = updateSummary(result, { model: modelPath, data: dataFile, files: names, outDir: folder, warnings });
       files['summary.json'] = updateSummaryJson(summaryDocument('update', summary));
+      if (cli.report) files['report.html'] = updateHtml(result, summary);
       await writeFiles(folder, files);
       const written = await writeModelFile(modelPath, result.body);
       if (written.note) warnings.push(written.note);
@@ -149,6 +154,7 @@ export function register(program: Command, io: CliIO): void {
     .option('--bands <method>', `${BANDS_HELP}; default: as when the model was made`)
     .option('--out <folder>', 'folder for forecast.csv, summary.json and charts (default: the model file’s folder)')
     .option('--no-charts', 'do not render PNG charts')
+    .option('--no-report', 'do not write report.html (written anew, so it never shows an older forecast than forecast.csv)')
     .option('--json', 'print summary.json instead of the text summary');
   addDataOptions(command);
   command.action(async (model: string, file: string, opts: Record<string, unknown>) => {

@@ -10,7 +10,9 @@
  * checks (Ljung–Box, the cumulative periodogram with its Kolmogorov–Smirnov band and, beside it,
  * the standardised one-step residuals over time with their ±2 band), warnings.
  */
-import { cadenceName, formatTime } from '../data/calendar.js';
+import { cadenceName, formatTime, type Frequency } from '../data/calendar.js';
+import type { Series } from '../data/series.js';
+import type { ForecastPaths } from '../forecast/intervals.js';
 import { cumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
 import { OUTSIDE_TWO_SIGMA, RESIDUAL_BOUND, standardisedResiduals } from '../evaluate/standardised-residuals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
@@ -24,11 +26,12 @@ import { reportScript } from './report-script.js';
 import { formatTableNumber } from './table-numbers.js';
 
 /** A number for a table cell of the page. */
-function num(x: number): string {
+export function num(x: number): string {
   return esc(formatTableNumber(x));
 }
 
-function table(head: string[], rows: string[][], numeric: boolean[], rowClass: (i: number) => string = () => ''): string {
+/** An HTML table of cells already escaped; `numeric` right-aligns columns. */
+export function table(head: string[], rows: string[][], numeric: boolean[], rowClass: (i: number) => string = () => ''): string {
   const th = head.map((h, i) => `<th${numeric[i] ? ' class="n"' : ''}>${esc(h)}</th>`).join('');
   const body = rows.map((r, i) => `<tr${rowClass(i) ? ` class="${rowClass(i)}"` : ''}>${r.map((c, j) => `<td${numeric[j] ? ' class="n"' : ''}>${c}</td>`).join('')}</tr>`).join('\n');
   return `<table><thead><tr>${th}</tr></thead><tbody>\n${body}\n</tbody></table>`;
@@ -60,20 +63,23 @@ function equationWords(run: ForecastRun): string[] {
   return words;
 }
 
-/** The page data the script draws. */
-function pageData(run: ForecastRun): Record<string, unknown> {
-  const { series } = run;
+const pad = (k: number): null[] => new Array<null>(k).fill(null);
+
+/**
+ * The page data of the forecast chart (and the look every chart of a page uses): the last
+ * stretch of the history, then the point and bands anchored at the last observation.
+ */
+export function forecastPageData(series: Series, times: ArrayLike<number>, paths: ForecastPaths, horizon: number): Record<string, unknown> {
   const f = series.frequency;
   const n = series.values.length;
   const floor = neverNegative(series.values) ? 0 : null;
-  const show = Math.min(n, Math.max(series.season ? 6 * series.season : 40, 3 * run.horizon));
-  const h = run.forecast.times.length;
-  const labels = [...Array.from(series.time.subarray(n - show), (t) => formatTime(t, f)), ...Array.from(run.forecast.times, (t) => formatTime(t, f))];
-  const pad = (k: number): null[] => new Array<null>(k).fill(null);
+  const show = Math.min(n, Math.max(series.season ? 6 * series.season : 40, 3 * horizon));
+  const h = times.length;
+  const labels = [...Array.from(series.time.subarray(n - show), (t) => formatTime(t, f)), ...Array.from(times, (t) => formatTime(t, f))];
   const last = series.values[n - 1];
   const anchored = (a: ArrayLike<number>): (number | null)[] => [...pad(show - 1), Number.isFinite(last) ? last : null, ...arr(a)];
-  const bandsSorted = [...run.forecast.paths.bands].sort((a, b) => a.level - b.level);
-  const data: Record<string, unknown> = {
+  const bandsSorted = [...paths.bands].sort((a, b) => a.level - b.level);
+  return {
     valueLabel: series.name,
     look: {
       observed: palette.observed,
@@ -89,11 +95,19 @@ function pageData(run: ForecastRun): Record<string, unknown> {
     forecast: {
       labels,
       observed: [...arr(series.values.subarray(n - show)), ...pad(h)],
-      point: anchored(run.forecast.paths.point),
+      point: anchored(paths.point),
       bands: bandsSorted.map((b) => ({ level: b.level, lower: anchored(b.lower), upper: anchored(b.upper) })),
       floor,
     },
   };
+}
+
+/** The page data the script draws. */
+function pageData(run: ForecastRun): Record<string, unknown> {
+  const { series } = run;
+  const f = series.frequency;
+  const floor = neverNegative(series.values) ? 0 : null;
+  const data = forecastPageData(series, run.forecast.times, run.forecast.paths, run.horizon);
   const ev = run.evaluation;
   if (ev) {
     const ctxLen = Math.min(ev.nTrain, series.season ? 3 * series.season : 24);
@@ -120,17 +134,19 @@ function pageData(run: ForecastRun): Record<string, unknown> {
   return data;
 }
 
-function forecastSection(run: ForecastRun): string {
-  const f = run.series.frequency;
-  const paths = run.forecast.paths;
+/** The forecast section: its chart (drawn by the page script from forecastPageData) and a table of its values. */
+export function forecastSectionHtml(frequency: Frequency, times: ArrayLike<number>, paths: ForecastPaths, horizon: number, bandsText: string): string {
   const levels = [...paths.bands].sort((a, b) => a.level - b.level);
   const head = ['time', 'point', ...levels.flatMap((b) => [`${b.level} % low`, `${b.level} % high`])];
-  const rows = Array.from(run.forecast.times, (t, j) => [esc(formatTime(t, f)), num(paths.point[j]), ...levels.flatMap((b) => [num(b.lower[j]), num(b.upper[j])])]);
-  const story = runStory(run);
-  return `<section id="forecast"><h2>Forecast, ${run.horizon} periods</h2>
-<p class="note">${esc(story.bands.text)}. The inner band is filled; the outer band is drawn as dashed edges. Hover the chart for values.</p>
+  const rows = Array.from(times, (t, j) => [esc(formatTime(t, frequency)), num(paths.point[j]), ...levels.flatMap((b) => [num(b.lower[j]), num(b.upper[j])])]);
+  return `<section id="forecast"><h2>Forecast, ${horizon} periods</h2>
+<p class="note">${esc(bandsText)}. The inner band is filled; the outer band is drawn as dashed edges. Hover the chart for values.</p>
 <div class="chart"><canvas id="chart-forecast" role="img" aria-label="forecast chart"></canvas></div>
 <details><summary>Forecast values</summary>${table(head, rows, head.map((_, i) => i > 0))}</details></section>`;
+}
+
+function forecastSection(run: ForecastRun): string {
+  return forecastSectionHtml(run.series.frequency, run.forecast.times, run.forecast.paths, run.horizon, runStory(run).bands.text);
 }
 
 function holdoutSection(run: ForecastRun): string {
@@ -215,14 +231,18 @@ function residualSection(run: ForecastRun): string {
 ${charts}<ul>${lines.map((l) => `<li>${l}</li>`).join('')}</ul></section>`;
 }
 
-function equationSection(run: ForecastRun): string {
-  const a = run.asserted;
-  const rows = coefficientRows(a.structure.terms, a.estimate.theta, a.estimate.se, a.estimate.active);
-  const coef = table(
+/** The coefficient table of an equation: estimate, standard error and interval of each term. */
+export function coefficientTableHtml(rows: ReturnType<typeof coefficientRows>): string {
+  return table(
     ['term', 'estimate', 'standard error', `${COEFFICIENT_LEVEL} % interval`],
     rows.map((r) => [esc(r.term), num(r.estimate), r.active ? num(r.se) : 'left out', r.active && Number.isFinite(r.lower) ? `${num(r.lower)} to ${num(r.upper)}` : '']),
     [false, true, true, true],
   );
+}
+
+function equationSection(run: ForecastRun): string {
+  const a = run.asserted;
+  const coef = coefficientTableHtml(coefficientRows(a.structure.terms, a.estimate.theta, a.estimate.se, a.estimate.active));
   const derived = a.derived.length
     ? `<h3>What the coefficients imply</h3><ul>${a.derived.map((d) => `<li><b>${esc(d.name)}</b>: ${esc(typeof d.value === 'number' ? formatTableNumber(d.value) : String(d.value))}${d.unit ? ` ${esc(d.unit)}` : ''}${d.note ? ` <span class="note">(${esc(d.note)})</span>` : ''}</li>`).join('')}</ul>`
     : '';

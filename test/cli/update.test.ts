@@ -63,13 +63,31 @@ describe('certa update', () => {
     expect(csv.filter((l) => l.includes(',forecast,'))).toHaveLength(12);
     const summary = JSON.parse(readFileSync(join(dir, 'summary.json'), 'utf8'));
     expect(summary.update.rows_added).toBe(12);
-    expect(summary.files).toEqual(['forecast.csv', 'model.json', 'summary.json']);
+    expect(summary.files).toEqual(['forecast.csv', 'model.json', 'report.html', 'summary.json']);
+    // report.html is made anew by the update: its forecast is the one of forecast.csv.
+    const html = readFileSync(join(dir, 'report.html'), 'utf8');
+    expect(html).toContain('certa update report');
+    expect(html).toContain('12 new observations (2008-05 to 2009-04) learnt by recursive least squares; the model now runs to 2009-04.');
+    const firstForecast = csv.find((l) => l.includes(',forecast,'))!.split(',');
+    expect(html).toContain(`<td>${firstForecast[1]}</td>`);
+    expect(html).toContain('not physical climate projections and not financial advice');
 
     const bytes = readFileSync(model, 'utf8');
     const again = runCli(['update', model, data, '--no-charts']);
     expect(again.code).toBe(0);
     expect(again.stdout).toContain('0 new rows');
     expect(readFileSync(model, 'utf8')).toBe(bytes);
+  });
+
+  it('--no-report leaves report.html out', () => {
+    const { dir, sim, model, initial } = setup('no-report', 22);
+    place(dir, model, initial);
+    const data = join(work, 'no-report.csv');
+    writeFileSync(data, csvRows(sim.series, 90, 106));
+    const r = runCli(['update', model, data, '--no-charts', '--no-report']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(existsSync(join(dir, 'report.html'))).toBe(false);
+    expect(JSON.parse(readFileSync(join(dir, 'summary.json'), 'utf8')).files).toEqual(['forecast.csv', 'model.json', 'summary.json']);
   });
 
   it('refuses a revised history naming the time and column (exit 2, one certa: line and a hint); --accept-revisions re-estimates', () => {

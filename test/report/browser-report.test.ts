@@ -43,6 +43,14 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
     writeFileSync(join(dir, 'in.csv'), [header.join(','), ...csv.slice(1)].join('\n'));
     const r = runCli(['forecast', join(dir, 'in.csv'), '--value', HOSTILE, '--inputs', 'subsidy,frost_index', '--no-charts', '--out', join(dir, 'out')]);
     expect(r.code, r.stderr).toBe(0);
+    // a model fitted to 2024-06, then updated with the whole file: the update's own report.html
+    const lines = [header.join(','), ...csv.slice(1)].filter((l) => l.trim() !== '');
+    const cut = lines.findIndex((l) => l.startsWith('2024-07'));
+    writeFileSync(join(dir, 'in-cut.csv'), `${lines.slice(0, cut).join('\n')}\n`);
+    const f = runCli(['forecast', join(dir, 'in-cut.csv'), '--value', HOSTILE, '--inputs', 'subsidy,frost_index', '--no-charts', '--no-report', '--holdout', '0', '--out', join(dir, 'up')]);
+    expect(f.code, f.stderr).toBe(0);
+    const u = runCli(['update', join(dir, 'up', 'model.json'), join(dir, 'in.csv'), '--value', HOSTILE, '--no-charts']);
+    expect(u.code, u.stderr).toBe(0);
   }, 120_000);
   afterAll(async () => {
     await browser?.close();
@@ -68,6 +76,22 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
     expect(await page.locator('img').count()).toBe(0);
     expect(await page.title()).toContain(HOSTILE);
     expect(log.dialogs).toEqual([]);
+    await page.close();
+  }, 60_000);
+
+  it('the report of certa update loads cleanly, draws its forecast and keeps markup as text', async () => {
+    const { page, log } = await openFile(browser, join(dir, 'up', 'report.html'));
+    await page.waitForFunction(() => (globalThis as any).document.documentElement.getAttribute('data-charts') === 'drawn', undefined, { timeout: 10_000 });
+    expect(log.errors).toEqual([]);
+    expect(log.requests).toEqual([]);
+    expect(log.dialogs).toEqual([]);
+    expect(await inkShare(page, 'chart-forecast')).toBeGreaterThan(0.01);
+    expect(await page.locator('h1').innerText()).toBe(HOSTILE);
+    expect(await page.locator('img').count()).toBe(0);
+    const text = await page.locator('body').innerText();
+    expect(text).toContain('What this update did');
+    expect(text).toMatch(/6 new observations \(2024-07 to 2024-12\)/);
+    expect(text).toMatch(/not physical climate projections and not financial advice/);
     await page.close();
   }, 60_000);
 
