@@ -105,6 +105,12 @@ export interface LoadReport {
   failed: LoadFailure[];
 }
 
+/** A series whose own cells could not be read (with keepGoing), kept with its error. */
+interface ReadFailure {
+  name: string;
+  failure: CertaError;
+}
+
 /** A series of a file that could not be read, kept with its position (see `LoadOptions.keepGoing`). */
 export interface LoadFailure {
   index: number;
@@ -198,7 +204,20 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     return out;
   };
 
-  let raws: RawSeries[];
+  // With keepGoing, a series whose own cells are not numbers is left out (its error kept) and the
+  // others are read; without it, the first such cell stops the file as before.
+  const perSeries = options.keepGoing === true;
+  /** The numbers of one series' own column or rows, or its error when perSeries. */
+  const ownNumbers = (name: string, read: () => Float64Array): Float64Array | ReadFailure => {
+    if (!perSeries) return read();
+    try {
+      return read();
+    } catch (e) {
+      if (!isCertaError(e)) throw e;
+      return { failure: e, name };
+    }
+  };
+  let raws: (RawSeries | ReadFailure)[];
   if (layout.kind === 'wide') {
     const idx = all ? Int32Array.from({ length: times.length }, (_, i) => i) : Int32Array.from(keep);
     const t = all ? times : Float64Array.from(idx, (r) => times[r]);
@@ -210,9 +229,12 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
       names = picked.indices.map((i) => names[i]);
     }
     const inputs = layout.inputs.map((name) => ({ name, values: numbers(name, idx) }));
-    raws = names.map((name) => ({ name, times: t, values: numbers(name, idx), inputs, rows }));
+    raws = names.map((name) => {
+      const values = ownNumbers(name, () => numbers(name, idx));
+      return values instanceof Float64Array ? { name, times: t, values, inputs, rows } : values;
+    });
   } else {
-    raws = groupLong(table, layout, keep, times, numbers, options.series);
+    raws = groupLong(table, layout, keep, times, numbers, options.series, perSeries);
   }
 
   const labelFreq = kindFrequency(timeCol.kind);
@@ -231,9 +253,10 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
     }
   };
   const resolvedAt = raws.map((raw, index) =>
-    attempt(index, raw.name, () =>
-      sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq),
-    ),
+    attempt(index, raw.name, () => {
+      if ('failure' in raw) throw raw.failure;
+      return sortAndResolveDuplicates(raw, duplicatePolicy, { file, timeColumn: layout.time, valueColumn: layout.kind === 'wide' ? raw.name : layout.values[0] }, labelFreq);
+    }),
   );
   const positions = resolvedAt.flatMap((r, i) => (r ? [i] : []));
   const resolved = resolvedAt.filter((r): r is NonNullable<typeof r> => r !== undefined);
@@ -324,7 +347,8 @@ function groupLong(
   times: Float64Array,
   numbers: (name: string, idx: ArrayLike<number>) => Float64Array,
   only: string | undefined,
-): RawSeries[] {
+  perSeries = false,
+): (RawSeries | ReadFailure)[] {
   const idCells = table.columns[table.header.indexOf(layout.id as string)];
   const groupIndex = new Map<string, number>();
   const names: string[] = [];
@@ -374,15 +398,37 @@ function groupLong(
   const order = new Int32Array(keep.length);
   for (let i = 0; i < keep.length; i++) order[fill[groupOf[i]]++] = keep[i];
   const value = layout.values[0];
-  const allValues = numbers(value, order);
-  const allInputs = layout.inputs.map((name) => ({ name, values: numbers(name, order) }));
+  const columns = [value, ...layout.inputs];
+  let all: Float64Array[];
+  /** Per group, the error of its first unreadable cell (only when perSeries and a cell failed). */
+  const broken = new Map<number, CertaError>();
+  try {
+    all = columns.map((name) => numbers(name, order));
+  } catch (e) {
+    if (!perSeries || !isCertaError(e)) throw e;
+    // Read group by group, so each series' own first bad cell is named and the others are kept.
+    all = columns.map(() => new Float64Array(order.length));
+    for (const g of wanted) {
+      const part = order.subarray(offsets[g], offsets[g + 1]);
+      try {
+        columns.forEach((name, c) => all[c].set(numbers(name, part), offsets[g]));
+      } catch (err) {
+        if (!isCertaError(err)) throw err;
+        broken.set(g, err);
+      }
+    }
+  }
+  const allValues = all[0];
+  const allInputs = layout.inputs.map((name, c) => ({ name, values: all[c + 1] }));
   const allTimes = new Float64Array(order.length);
   const allRows = new Int32Array(order.length);
   for (let i = 0; i < order.length; i++) {
     allTimes[i] = times[order[i]];
     allRows[i] = table.rows[order[i]];
   }
-  return wanted.map((g) => {
+  return wanted.map((g): RawSeries | ReadFailure => {
+    const failure = broken.get(g);
+    if (failure) return { name: names[g], failure };
     const a = offsets[g];
     const b = offsets[g + 1];
     return {

@@ -199,6 +199,29 @@ describe('certa forecast on a file of several series', () => {
     expect(existsSync(join(out, folderNames(NAMES)[NAMES.indexOf('a b')]))).toBe(true);
   });
 
+  it('keeps going past a series with a cell that is not a number, naming its row; without it the file reads as before', () => {
+    const rows = readFileSync(file, 'utf8').trim().split('\n');
+    const at = rows.findIndex((l) => l.startsWith('"a b",')) + 3;
+    const cells = rows[at].split(',');
+    cells[cells.length - 1] = 'n/a?';
+    rows[at] = cells.join(',');
+    const p = join(dir, 'cell.csv');
+    writeFileSync(p, `${rows.join('\n')}\n`);
+    const out = join(dir, 'cell');
+    const r = runCli(['forecast', p, '--id', 'kiosk', '--no-charts', '--horizon', '6', '--out', out, '--quiet']);
+    expect(r.code, r.stderr).toBe(4);
+    expect(r.stderr).toContain(`cell.csv:${at + 1}: column "sales": the cell is not a number`);
+    expect(r.stderr).toContain('n/a?');
+    const batch = rawRecords(readFileSync(join(out, 'batch.csv'), 'utf8')).slice(1);
+    expect(batch.map((x) => x.fields[1])).toEqual(NAMES);
+    expect(batch.map((x) => x.fields[3])).toEqual(NAMES.map((n) => (n === 'a b' || n === 'short' ? 'failed' : 'forecast')));
+    expect(batch[NAMES.indexOf('a b')].fields[4]).toMatch(/not a number/);
+    // --fail-fast: the bad cell stops the file with exit 2, as a file of one series does
+    const fast = runCli(['forecast', p, '--id', 'kiosk', '--no-charts', '--horizon', '6', '--out', join(dir, 'cell-fast'), '--fail-fast']);
+    expect(fast.code).toBe(2);
+    expect(fast.stderr).toContain('n/a?');
+  });
+
   it('certa search on the file: one folder per series by the same rule, the short series reported, exit 4', () => {
     const out = join(dir, 'search');
     const r = runCli(['search', file, '--id', 'kiosk', '--families', 'arx', '--json', '--out', out]);
