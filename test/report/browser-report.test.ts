@@ -29,6 +29,16 @@ async function inkShare(page: Page, id: string): Promise<number> {
   }, id);
 }
 
+/** Opens a report, waits until its charts are drawn and checks it stayed clean: no console error, request or dialog. */
+async function openDrawn(browser: Browser, file: string): Promise<Page> {
+  const { page, log } = await openFile(browser, file);
+  await page.waitForFunction(() => (globalThis as any).document.documentElement.getAttribute('data-charts') === 'drawn', undefined, { timeout: 10_000 });
+  expect(log.errors).toEqual([]);
+  expect(log.requests).toEqual([]);
+  expect(log.dialogs).toEqual([]);
+  return page;
+}
+
 describe.skipIf(skip !== null)('report.html in chromium', () => {
   let browser: Browser;
   let dir: string;
@@ -57,11 +67,7 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
   });
 
   it('loads without console errors, requests or dialogs and draws every chart', async () => {
-    const { page, log } = await openFile(browser, join(dir, 'out', 'report.html'));
-    await page.waitForFunction(() => (globalThis as any).document.documentElement.getAttribute('data-charts') === 'drawn', undefined, { timeout: 10_000 });
-    expect(log.errors).toEqual([]);
-    expect(log.requests).toEqual([]);
-    expect(log.dialogs).toEqual([]);
+    const page = await openDrawn(browser, join(dir, 'out', 'report.html'));
     for (const id of ['chart-forecast', 'chart-holdout', 'chart-periodogram', 'chart-residuals']) expect(await inkShare(page, id), id).toBeGreaterThan(0.01);
     // the caution and the sections are there
     const text = await page.locator('body').innerText();
@@ -80,11 +86,7 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
   }, 60_000);
 
   it('the report of certa update loads cleanly, draws its forecast and keeps markup as text', async () => {
-    const { page, log } = await openFile(browser, join(dir, 'up', 'report.html'));
-    await page.waitForFunction(() => (globalThis as any).document.documentElement.getAttribute('data-charts') === 'drawn', undefined, { timeout: 10_000 });
-    expect(log.errors).toEqual([]);
-    expect(log.requests).toEqual([]);
-    expect(log.dialogs).toEqual([]);
+    const page = await openDrawn(browser, join(dir, 'up', 'report.html'));
     expect(await inkShare(page, 'chart-forecast')).toBeGreaterThan(0.01);
     expect(await page.locator('h1').innerText()).toBe(HOSTILE);
     expect(await page.locator('img').count()).toBe(0);
