@@ -13,7 +13,7 @@
 import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../data/errors.js';
-import { writeFileAtomic } from '../store/atomic.js';
+import { isAnyTemporaryName, writeFileAtomic } from '../store/atomic.js';
 import { BATCH_FORMAT, BATCH_VERSION, batchIndexHtml, batchManifest, batchRowFromJson, type BatchRow } from './batch-table.js';
 import { rawRecords, type RawRecord } from './csv-records.js';
 
@@ -64,16 +64,24 @@ async function readManifest(dir: string): Promise<Manifest> {
   };
 }
 
-/** A temporary file of an atomic write cut short (store/atomic.ts names them `.<name>.<pid>.<n>.tmp`). */
-function isTemporary(name: string): boolean {
-  return /^\..+\.\d+\.\d+\.tmp$/.test(name);
+/**
+ * The records of one of a shard's tables after its header, which must be the header of the
+ * shards read before (`seen`, set from the first shard); a one-line error naming the file else.
+ */
+async function shardRecords(dir: string, name: string, seen: { header: RawRecord | null }): Promise<RawRecord[]> {
+  const file = join(dir, name);
+  const [head, ...records] = rawRecords(await readText(file, name));
+  if (!head) throw new DataError('merge-empty', `${name} is empty`, { file });
+  if (seen.header && head.text !== seen.header.text) throw new DataError('merge-header', `${name} has another header than the other shards`, { file, found: head.text.trim() });
+  seen.header = head;
+  return records;
 }
 
 async function copyTree(from: string, to: string): Promise<void> {
   for (const entry of (await fsp.readdir(from, { withFileTypes: true })).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))) {
     const src = join(from, entry.name);
     if (entry.isDirectory()) await copyTree(src, join(to, entry.name));
-    else if (entry.isFile() && !isTemporary(entry.name)) {
+    else if (entry.isFile() && !isAnyTemporaryName(entry.name)) {
       await writeFileAtomic(join(to, entry.name), await fsp.readFile(src), { mkdir: true });
     }
   }
@@ -115,28 +123,18 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   const missing = Array.from({ length: n }, (_, j) => j + 1).filter((k) => !seen.has(k));
   if (missing.length > 0) throw new UsageError('merge-incomplete', `shard${missing.length === 1 ? '' : 's'} ${missing.map((k) => `${k}/${n}`).join(', ')} missing`, { found: `${dirs.length} of ${n} shards`, expected: 'every shard 1 … n' });
 
-  let batchHeader: RawRecord | null = null;
-  let forecastsHeader: RawRecord | null = null;
+  const batchTable = { header: null as RawRecord | null };
+  const forecastsTable = { header: null as RawRecord | null };
   const rows: { position: number; record: RawRecord }[] = [];
   const groups = new Map<string, string[]>();
   const folders = new Map<string, string>();
   for (const dir of dirs) {
-    const batchFile = join(dir, 'batch.csv');
-    const [head, ...records] = rawRecords(await readText(batchFile, 'batch.csv'));
-    if (!head) throw new DataError('merge-empty', 'batch.csv is empty', { file: batchFile });
-    if (batchHeader && head.text !== batchHeader.text) throw new DataError('merge-header', 'batch.csv has another header than the other shards', { file: batchFile, found: head.text.trim() });
-    batchHeader = head;
-    for (const r of records) {
+    for (const r of await shardRecords(dir, 'batch.csv', batchTable)) {
       const position = Number(r.fields[0]);
-      if (!Number.isInteger(position) || position < 1) throw new DataError('merge-position', 'a batch.csv record has no position', { file: batchFile, found: r.fields[0] });
+      if (!Number.isInteger(position) || position < 1) throw new DataError('merge-position', 'a batch.csv record has no position', { file: join(dir, 'batch.csv'), found: r.fields[0] });
       rows.push({ position, record: r });
     }
-    const forecastsFile = join(dir, 'forecasts.csv');
-    const [fhead, ...frecords] = rawRecords(await readText(forecastsFile, 'forecasts.csv'));
-    if (!fhead) throw new DataError('merge-empty', 'forecasts.csv is empty', { file: forecastsFile });
-    if (forecastsHeader && fhead.text !== forecastsHeader.text) throw new DataError('merge-header', 'forecasts.csv has another header than the other shards', { file: forecastsFile, found: fhead.text.trim() });
-    forecastsHeader = fhead;
-    for (const r of frecords) {
+    for (const r of await shardRecords(dir, 'forecasts.csv', forecastsTable)) {
       const key = r.fields[0];
       const list = groups.get(key);
       if (list) list.push(r.text);
@@ -156,13 +154,13 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   if (rows.length !== first.seriesInFile) {
     throw new DataError('merge-count', 'the shards do not hold every series of the file', { found: `${rows.length} series`, expected: `${first.seriesInFile}, as batch.json says` });
   }
-  let forecasts = forecastsHeader!.text;
+  let forecasts = forecastsTable.header!.text;
   for (const r of rows) {
     const list = groups.get(r.record.fields[1]);
     if (list) forecasts += list.join('');
   }
   for (const [name, dir] of [...folders.entries()].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))) await copyTree(join(dir, name), join(out, name));
-  await writeFileAtomic(join(out, 'batch.csv'), batchHeader!.text + rows.map((r) => r.record.text).join(''), { mkdir: true });
+  await writeFileAtomic(join(out, 'batch.csv'), batchTable.header!.text + rows.map((r) => r.record.text).join(''), { mkdir: true });
   await writeFileAtomic(join(out, 'forecasts.csv'), forecasts, { mkdir: true });
   const merged = manifests.flatMap((m) => m.rows).sort((a, b) => a.position - b.position);
   await writeFileAtomic(join(out, 'batch.json'), batchManifest({ seriesInFile: first.seriesInFile, shard: null, levels: first.levels, report: first.report, rows: merged }), { mkdir: true });

@@ -12,7 +12,7 @@ import { writeFileAtomic } from '../store/atomic.js';
 import { batchCsv, batchIndexHtml, batchManifest, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
 import { folderNames } from './folder-names.js';
 import { runPool } from './pool.js';
-import type { JobSettings, SeriesOutcome, SeriesTask } from './series-job.js';
+import { failureText, jobError, type JobSettings, type SeriesOutcome, type SeriesTask } from './series-job.js';
 import { shardOf, type Shard } from './shard.js';
 
 export interface BatchOptions {
@@ -21,7 +21,7 @@ export interface BatchOptions {
   workers: number;
   shard: Shard | null;
   failFast: boolean;
-  /** Interval levels as asked (for the forecasts.csv header when every series failed). */
+  /** Interval levels of every series (the forecasts.csv columns). */
   levels: number[];
   /** Write each series' report.html and the batch's index.html. */
   report: boolean;
@@ -65,10 +65,9 @@ export function batchTasks(series: readonly Series[], failedAtLoad: readonly Loa
 }
 
 function loadFailureOutcome(position: number, f: LoadFailure): SeriesOutcome {
-  const e = f.error;
-  const error = { code: e.code, message: e.message, line: e.line(), hint: e.context.hint ?? null, exitCode: e.exitCode, internal: false };
+  const error = jobError(f.error);
   const row: BatchRow = { position, series: f.name, folder: null, status: 'failed', reason: error.line, structure: null, holdoutMase: null, bestBaseline: null, baselineMase: null, warnings: [] };
-  return { row, forecasts: '', columns: null, summary: null, error };
+  return { row, forecasts: '', summary: null, error };
 }
 
 export async function runBatch(series: readonly Series[], failedAtLoad: readonly LoadFailure[], options: BatchOptions): Promise<BatchResult> {
@@ -89,8 +88,7 @@ export async function runBatch(series: readonly Series[], failedAtLoad: readonly
   }
   const done = outcomes as SeriesOutcome[];
   const rows = done.map((o) => o.row);
-  const columns = done.find((o) => o.columns)?.columns ?? forecastsColumns(options.levels);
-  const header = csvHeader(columns);
+  const header = csvHeader(forecastsColumns(options.levels));
   const forecasts = header + done.map((o) => o.forecasts).join('');
   await writeFileAtomic(join(options.out, 'batch.csv'), batchCsv(rows), { mkdir: true });
   await writeFileAtomic(join(options.out, 'forecasts.csv'), forecasts, { mkdir: true });
@@ -108,6 +106,5 @@ export async function runBatch(series: readonly Series[], failedAtLoad: readonly
 export function outcomeError(o: SeriesOutcome): Error {
   const e = o.error!;
   if (e.internal) return new Error(`series "${o.row.series}": ${e.message}`);
-  const tag = `series "${o.row.series}"`;
-  return new CertaError(e.code, e.line.includes(tag) ? e.line : `${tag}: ${e.line}`, e.hint ? { hint: e.hint } : {}, e.exitCode);
+  return new CertaError(e.code, failureText(o.row.series, e.line), e.hint ? { hint: e.hint } : {}, e.exitCode);
 }

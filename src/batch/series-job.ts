@@ -8,7 +8,6 @@ import { existsSync, rmSync } from 'node:fs';
 import { isCertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { forecastTable } from '../report/forecast-report.js';
-import { summaryDocument } from '../report/result-json.js';
 import { parseForecastOptions, runForecast } from '../cli/forecast.js';
 import type { CliIO } from '../cli/main.js';
 import { forecastsColumns, forecastsRecords, type BatchRow } from './batch-table.js';
@@ -46,8 +45,6 @@ export interface SeriesOutcome {
   row: BatchRow;
   /** forecasts.csv records of this series (no header); '' when it failed. */
   forecasts: string;
-  /** The forecasts.csv columns this series used (levels as the run resolved them). */
-  columns: string[] | null;
   summary: Record<string, unknown> | null;
   error: JobError | null;
 }
@@ -58,6 +55,11 @@ const quietIO: CliIO = {
   stdin: () => Promise.reject(new Error('standard input is read by the main thread only')),
   isTTY: false,
 };
+
+/** A failure's line, naming the series unless the line already does. */
+export function failureText(series: string, line: string): string {
+  return line.includes(`series "${series}"`) ? line : `series "${series}": ${line}`;
+}
 
 /** Warnings of one series: those of its run and the load notes that name it. */
 function seriesWarnings(name: string, runWarnings: string[], notes: string[]): string[] {
@@ -81,10 +83,11 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
   };
   try {
     const cli = parseForecastOptions(settings.opts);
-    const { run, summary } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
+    const { run, document } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
     const table = forecastTable(run);
     const columns = forecastsColumns(run.levels);
-    const pick = [0, 1, 2, 3, 4, ...run.levels.flatMap((_, j) => [6 + 2 * j, 7 + 2 * j])];
+    // forecasts.csv keeps these columns of the series' forecast.csv, by name
+    const pick = columns.map((c) => table.columns.indexOf(c));
     const rows = table.rows.filter((r) => r[2] === 'holdout' || r[2] === 'forecast').map((r) => pick.map((j) => r[j]));
     const verdict = run.evaluation?.verdict ?? null;
     return {
@@ -99,18 +102,18 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
         warnings: seriesWarnings(task.series.name, run.warnings, settings.loadNotes),
       },
       forecasts: forecastsRecords(columns, rows),
-      columns,
-      summary: settings.keepSummary ? summaryDocument('forecast', summary) : null,
+      summary: settings.keepSummary ? document : null,
       error: null,
     };
   } catch (e) {
     if (!existed) rmSync(task.path, { recursive: true, force: true });
     const error = jobError(e);
-    return { row: { ...base, reason: error.line }, forecasts: '', columns: null, summary: null, error };
+    return { row: { ...base, reason: error.line }, forecasts: '', summary: null, error };
   }
 }
 
-function jobError(e: unknown): JobError {
+/** A failure as the data an outcome carries (a CertaError, or a bug). */
+export function jobError(e: unknown): JobError {
   if (isCertaError(e)) {
     return { code: e.code, message: e.message, line: e.line(), hint: e.context.hint ?? null, exitCode: e.exitCode, internal: false };
   }

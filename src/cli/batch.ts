@@ -12,6 +12,7 @@ import type { Series } from '../data/series.js';
 import type { LoadFailure } from '../data/load.js';
 import { defaultWorkers } from '../batch/pool.js';
 import { outcomeError, runBatch } from '../batch/run.js';
+import { failureText } from '../batch/series-job.js';
 import { parseShard, type Shard } from '../batch/shard.js';
 import type { BatchRow } from '../batch/batch-table.js';
 import { FORECAST_CAUTION } from '../report/cautions.js';
@@ -53,11 +54,6 @@ export function parseBatchOptions(opts: Record<string, unknown>): CliBatchOption
 
 function fixed(x: number | null): string {
   return x === null ? '—' : x.toFixed(3);
-}
-
-/** A failure's line, naming the series unless the message already does. */
-export function failureText(series: string, line: string): string {
-  return line.includes(`series "${series}"`) ? line : `series "${series}": ${line}`;
 }
 
 /** The line of one series in the text summary of a batch. */

@@ -122,7 +122,11 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
   return { ...s, inputs: [{ name: names[0], values: s.values }, ...s.inputs] };
 }
 
-/** Runs the main job on one loaded series and writes its outputs; returns the summary. */
+/**
+ * Runs the main job on one loaded series and writes its outputs; returns the run, its summary
+ * and the summary document summary.json holds (the text summary is the caller's: a batch prints
+ * none).
+ */
 export async function runForecast(
   series: Series,
   cli: CliForecastOptions,
@@ -131,7 +135,7 @@ export async function runForecast(
   io: CliIO,
   loadWarnings: string[] = [],
   shownFolder: string = folder,
-): Promise<{ run: ForecastRun; summary: Record<string, unknown>; text: string }> {
+): Promise<{ run: ForecastRun; summary: Record<string, unknown>; document: Record<string, unknown> }> {
   let futureSeries: Series | undefined;
   if (cli.future !== undefined) futureSeries = await loadFuture(cli.future, series, opts, io);
   const progress = new ProgressReporter(io, `searching ${series.name}`);
@@ -149,7 +153,8 @@ export async function runForecast(
   if (cli.charts) Object.assign(files, forecastCharts(run));
   const names = [...Object.keys(files), 'model.json', 'summary.json', ...(cli.report !== false ? ['report.html'] : [])].sort();
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
-  files['summary.json'] = summaryJson(summaryDocument('forecast', summary));
+  const document = summaryDocument('forecast', summary);
+  files['summary.json'] = summaryJson(document);
   if (cli.report !== false) files['report.html'] = forecastHtml(run, summary);
   await writeFiles(folder, files);
   const a = run.asserted;
@@ -172,7 +177,7 @@ export async function runForecast(
     combination: run.forecast.combination && replacesOwn(run.forecast.combination, a.structure.key) ? storedCombination(run.forecast.combination.members) : undefined,
   });
   await writeModelFile(join(folder, 'model.json'), body, { mkdir: true });
-  return { run, summary, text: forecastText(run, summary) };
+  return { run, summary, document };
 }
 
 export function register(program: Command, io: CliIO): void {
@@ -191,10 +196,10 @@ export function register(program: Command, io: CliIO): void {
     if (series.length === 1 && report.failed.length === 0 && batch.shard === null) {
       const s = series[0];
       const folder = outputFolder(s, cli.out);
-      const { summary, text } = await runForecast(s, cli, folder, opts, io, report.notes);
-      const entry = { series: s.name, status: 'ok' as const, folder, reason: null, detail: summaryDocument('forecast', summary) };
+      const { run, summary, document } = await runForecast(s, cli, folder, opts, io, report.notes);
+      const entry = { series: s.name, status: 'ok' as const, folder, reason: null, detail: document };
       if (cli.json) io.out(toJson(resultDocument('forecast', [entry])));
-      else if (!batch.quiet) io.out(text);
+      else if (!batch.quiet) io.out(forecastText(run, summary));
       return;
     }
     await runForecastBatch(series, report.failed, report.notes, cli, batch, opts, io);

@@ -30,6 +30,7 @@ import { ExitRequest, type CliIO } from './main.js';
 import { isCertaError } from '../data/errors.js';
 import { resultDocument, type ResultEntry } from '../report/result-json.js';
 import { EXIT_SOME_FAILED } from './batch.js';
+import { failureText } from '../batch/series-job.js';
 
 interface CliSearchOptions {
   search: SearchOptions;
@@ -78,7 +79,7 @@ export function register(program: Command, io: CliIO): void {
       } catch (e) {
         // One series: its error is the command's. Several: report it and go on (exit code 4).
         if (series.length === 1 || !isCertaError(e)) throw e;
-        const line = e.line().includes(`series "${s.name}"`) ? e.line() : `series "${s.name}": ${e.line()}`;
+        const line = failureText(s.name, e.line());
         io.err(`certa: ${line}\n`);
         entries.push({ series: s.name, status: 'failed', folder: null, reason: line, detail: null });
         texts.push(`series "${s.name}": failed: ${e.line()}\n`);

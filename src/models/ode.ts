@@ -621,9 +621,9 @@ class OdeStructure implements Structure {
       }
       return sums;
     };
-    // Raised step counts (fast dynamics) keep their own sums by phase: the same θ, phase and
-    // step count give the same nodes, so an interval at a phase already seen reuses them.
-    let raised: Map<number, Float64Array> | null = null;
+    // Raised step counts (fast dynamics) keep their own sums by phase, for the last raised count:
+    // the same θ, phase and step count give the same nodes, so a phase already seen reuses them.
+    let raised = new Map<number, Float64Array>();
     let raisedSteps = 0;
     return (tauA, x0, ua, ub, steps) => {
       const nodes = 2 * steps + 1;
@@ -631,22 +631,15 @@ class OdeStructure implements Structure {
       let sums: Float64Array | undefined;
       if (nh > 0) {
         const phase = ((tauA % season) + season) % season;
-        if (steps === cachedSteps) {
-          sums = byPhase.get(phase);
-          if (sums === undefined) {
-            sums = harmonicPart(phase, nodes, half);
-            byPhase.set(phase, sums);
-          }
-        } else {
-          if (raised === null || raisedSteps !== steps) {
-            raised = new Map();
-            raisedSteps = steps;
-          }
-          sums = raised.get(phase);
-          if (sums === undefined) {
-            sums = harmonicPart(phase, nodes, half);
-            raised.set(phase, sums);
-          }
+        if (steps !== cachedSteps && steps !== raisedSteps) {
+          raised = new Map();
+          raisedSteps = steps;
+        }
+        const known = steps === cachedSteps ? byPhase : raised;
+        sums = known.get(phase);
+        if (sums === undefined) {
+          sums = harmonicPart(phase, nodes, half);
+          known.set(phase, sums);
         }
       }
       if (ni === 0 && nr === 0) {

@@ -175,3 +175,13 @@ export function formatValueTick(value: number, step: number, maxAbs: number): st
   const clean = /^-0(\.0*)?$/.test(text) ? text.slice(1) : text;
   return /^0(\.0+)?$/.test(clean) ? '0' : `${clean}${suffix}`;
 }
+
+/**
+ * The lowest value a chart's value axis shows: 0 for a series that is never negative (NaN gaps
+ * ignored), so a band's lower edge below zero does not stretch the axis under the data; null
+ * when the series goes negative.
+ */
+export function valueFloor(values: ArrayLike<number>): 0 | null {
+  for (let i = 0; i < values.length; i++) if (values[i] < 0) return null;
+  return 0;
+}

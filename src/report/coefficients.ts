@@ -33,6 +33,11 @@ export function coefficientRows(terms: readonly string[], theta: ArrayLike<numbe
   });
 }
 
+/** The coefficient table of a fitted structure (its terms, θ, se and active terms). */
+export function estimateRows(fit: { structure: { terms: readonly string[] }; estimate: { theta: ArrayLike<number>; se: ArrayLike<number>; active: ArrayLike<boolean> } }): CoefficientRow[] {
+  return coefficientRows(fit.structure.terms, fit.estimate.theta, fit.estimate.se, fit.estimate.active);
+}
+
 /** The coefficient table as text lines for the terminal summary (term, estimate, se, interval). */
 export function coefficientLines(rows: readonly CoefficientRow[], level = COEFFICIENT_LEVEL, format: (x: number) => string = String): string[] {
   const width = Math.max(4, ...rows.map((r) => r.term.length));

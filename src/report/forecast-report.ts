@@ -11,8 +11,9 @@ import { FORECAST_CAUTION } from './cautions.js';
 import { criterionLabel } from '../select/criteria.js';
 import { setAsideWords } from '../select/search.js';
 import { candidatesCsv } from './candidates.js';
-import { coefficientLines, coefficientRows, coefficientTerms, COEFFICIENT_LEVEL } from './coefficients.js';
+import { coefficientLines, coefficientTerms, COEFFICIENT_LEVEL, estimateRows } from './coefficients.js';
 import { formatTableNumber } from './table-numbers.js';
+import { valueFloor } from './chart-axis.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
@@ -124,7 +125,7 @@ export function forecastSummary(run: ForecastRun, ctx: SummaryContext): Record<s
       equation: asserted.equation,
       fittedOn: { start: formatTime(series.time[asserted.from], f), end: formatTime(series.time[n - 1], f), n: n - asserted.from },
       coefficientLevel: COEFFICIENT_LEVEL,
-      terms: coefficientTerms(coefficientRows(asserted.structure.terms, asserted.estimate.theta, asserted.estimate.se, asserted.estimate.active, COEFFICIENT_LEVEL)),
+      terms: coefficientTerms(estimateRows(asserted)),
       sigma2: asserted.estimate.sigma2,
       derived: asserted.derived,
       whiteness: winner.whiteness,
@@ -189,7 +190,7 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   if (ev0 && outOfSample) for (let j = 0; j < ev0.holdout; j++) outOfSample[nTrain + j] = ev0.fixed.point[j];
   const holdoutStart = ev0 ? series.time[ev0.nTrain] : undefined;
   // a series that is never negative gets a value axis that stops at zero
-  const floor = series.values.every((v) => !(v < 0)) ? 0 : undefined;
+  const floor = valueFloor(series.values) ?? undefined;
   out['history.png'] = historyChart({
     title: `${title}: history, one-step fitted values${ev0 ? ' and the holdout forecast' : ''}`,
     subtitle: `${asserted.structure.label}${ev0 ? `; fitted values are in-sample (refit on all data) and stop at the holdout, where the forecast made without it is drawn` : ''}`,
@@ -282,7 +283,7 @@ export function forecastText(run: ForecastRun, summary: Record<string, unknown>)
   const share = story.point.kind === 'combined' ? ` (share of the point forecast: ${(100 * story.point.assertedShare).toFixed(0)} %)` : '';
   lines.push(`Asserted model${share}: ${asserted.structure.label}`);
   lines.push(`  ${asserted.equation}`);
-  lines.push(...coefficientLines(coefficientRows(asserted.structure.terms, asserted.estimate.theta, asserted.estimate.se, asserted.estimate.active), COEFFICIENT_LEVEL, fmt));
+  lines.push(...coefficientLines(estimateRows(asserted), COEFFICIENT_LEVEL, fmt));
   for (const d of asserted.derived) lines.push(`  ${d.name}: ${typeof d.value === 'number' ? fmt(d.value) : String(d.value)}${d.unit ? ` ${d.unit}` : ''}${d.note ? `  (${d.note})` : ''}`);
   lines.push('');
   const aside = search.failed > 0 ? `, ${search.failed} set aside (${setAsideWords(search.setAside)})` : '';

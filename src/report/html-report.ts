@@ -11,6 +11,7 @@
  * the standardised one-step residuals over time with their ±2 band), warnings.
  */
 import { cadenceName, formatTime, type Frequency } from '../data/calendar.js';
+import { valueFloor } from './chart-axis.js';
 import type { Series } from '../data/series.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
 import { cumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
@@ -18,7 +19,7 @@ import { OUTSIDE_TWO_SIGMA, RESIDUAL_BOUND, standardisedResiduals } from '../eva
 import type { ForecastRun } from '../forecast/pipeline.js';
 import { criterionLabel } from '../select/criteria.js';
 import { FORECAST_CAUTION } from './cautions.js';
-import { coefficientRows, COEFFICIENT_LEVEL } from './coefficients.js';
+import { COEFFICIENT_LEVEL, estimateRows, type CoefficientRow } from './coefficients.js';
 import { runStory } from './forecast-report.js';
 import { chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
 import { palette } from './palette.js';
@@ -35,11 +36,6 @@ export function table(head: string[], rows: string[][], numeric: boolean[], rowC
   const th = head.map((h, i) => `<th${numeric[i] ? ' class="n"' : ''}>${esc(h)}</th>`).join('');
   const body = rows.map((r, i) => `<tr${rowClass(i) ? ` class="${rowClass(i)}"` : ''}>${r.map((c, j) => `<td${numeric[j] ? ' class="n"' : ''}>${c}</td>`).join('')}</tr>`).join('\n');
   return `<table><thead><tr>${th}</tr></thead><tbody>\n${body}\n</tbody></table>`;
-}
-
-function neverNegative(values: ArrayLike<number>): boolean {
-  for (let i = 0; i < values.length; i++) if (values[i] < 0) return false;
-  return true;
 }
 
 function arr(a: ArrayLike<number>): (number | null)[] {
@@ -72,7 +68,7 @@ const pad = (k: number): null[] => new Array<null>(k).fill(null);
 export function forecastPageData(series: Series, times: ArrayLike<number>, paths: ForecastPaths, horizon: number): Record<string, unknown> {
   const f = series.frequency;
   const n = series.values.length;
-  const floor = neverNegative(series.values) ? 0 : null;
+  const floor = valueFloor(series.values);
   const show = Math.min(n, Math.max(series.season ? 6 * series.season : 40, 3 * horizon));
   const h = times.length;
   const labels = [...Array.from(series.time.subarray(n - show), (t) => formatTime(t, f)), ...Array.from(times, (t) => formatTime(t, f))];
@@ -106,7 +102,7 @@ export function forecastPageData(series: Series, times: ArrayLike<number>, paths
 function pageData(run: ForecastRun): Record<string, unknown> {
   const { series } = run;
   const f = series.frequency;
-  const floor = neverNegative(series.values) ? 0 : null;
+  const floor = valueFloor(series.values);
   const data = forecastPageData(series, run.forecast.times, run.forecast.paths, run.horizon);
   const ev = run.evaluation;
   if (ev) {
@@ -232,7 +228,7 @@ ${charts}<ul>${lines.map((l) => `<li>${l}</li>`).join('')}</ul></section>`;
 }
 
 /** The coefficient table of an equation: estimate, standard error and interval of each term. */
-export function coefficientTableHtml(rows: ReturnType<typeof coefficientRows>): string {
+export function coefficientTableHtml(rows: readonly CoefficientRow[]): string {
   return table(
     ['term', 'estimate', 'standard error', `${COEFFICIENT_LEVEL} % interval`],
     rows.map((r) => [esc(r.term), num(r.estimate), r.active ? num(r.se) : 'left out', r.active && Number.isFinite(r.lower) ? `${num(r.lower)} to ${num(r.upper)}` : '']),
@@ -242,7 +238,7 @@ export function coefficientTableHtml(rows: ReturnType<typeof coefficientRows>): 
 
 function equationSection(run: ForecastRun): string {
   const a = run.asserted;
-  const coef = coefficientTableHtml(coefficientRows(a.structure.terms, a.estimate.theta, a.estimate.se, a.estimate.active));
+  const coef = coefficientTableHtml(estimateRows(a));
   const derived = a.derived.length
     ? `<h3>What the coefficients imply</h3><ul>${a.derived.map((d) => `<li><b>${esc(d.name)}</b>: ${esc(typeof d.value === 'number' ? formatTableNumber(d.value) : String(d.value))}${d.unit ? ` ${esc(d.unit)}` : ''}${d.note ? ` <span class="note">(${esc(d.note)})</span>` : ''}</li>`).join('')}</ul>`
     : '';

@@ -10,12 +10,11 @@
 import { cadenceName, formatTime } from '../data/calendar.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
-import { coefficientRows, COEFFICIENT_LEVEL } from './coefficients.js';
 import { coefficientTableHtml, forecastPageData, forecastSectionHtml } from './html-report.js';
 import { chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
 import { reportScript } from './report-script.js';
 import { formatTableNumber } from './table-numbers.js';
-import { describeAlarm, updateStory } from './update-report.js';
+import { describeAlarm, updateCoefficientRows, updateStory } from './update-report.js';
 
 /** The plain-words account of what the update did. */
 function updateWords(result: UpdateResult): string[] {
@@ -31,9 +30,8 @@ function updateWords(result: UpdateResult): string[] {
 }
 
 function equationSection(result: UpdateResult): string {
-  const { body, policy } = result;
-  const active = Array.isArray(body.state.active) ? (body.state.active as number[]).map((a) => a === 1) : body.terms.map(() => true);
-  const rows = coefficientRows(body.terms, body.theta, body.se, active, COEFFICIENT_LEVEL);
+  const { policy } = result;
+  const rows = updateCoefficientRows(result);
   const before =
     policy.before.equation !== policy.after.equation
       ? `<h3>Before the update: ${esc(policy.before.label)}</h3><div class="eq">${esc(policy.before.equation)}</div><h3>After: ${esc(policy.after.label)}</h3>`

@@ -8,7 +8,7 @@ import { formatTime, type Frequency } from '../data/calendar.js';
 import type { DriftAlarm } from '../forecast/drift.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
-import { coefficientRows, coefficientTerms, COEFFICIENT_LEVEL } from './coefficients.js';
+import { coefficientRows, coefficientTerms, COEFFICIENT_LEVEL, type CoefficientRow } from './coefficients.js';
 import { forecastChart } from './charts.js';
 import { combinationJson, fmt, footerLines, forecastRows, forecastTableLines } from './forecast-report.js';
 import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
@@ -56,11 +56,11 @@ export interface UpdateContext {
   warnings?: string[];
 }
 
-/** The coefficient table of the updated model (coefficients.ts) as JSON terms. */
-function updateTerms(result: UpdateResult): ReturnType<typeof coefficientTerms> {
+/** The coefficient table of the updated model (coefficients.ts): its terms, θ, se and active terms. */
+export function updateCoefficientRows(result: UpdateResult): CoefficientRow[] {
   const { body } = result;
   const active = Array.isArray(body.state.active) ? (body.state.active as number[]).map((a) => a === 1) : body.terms.map(() => true);
-  return coefficientTerms(coefficientRows(body.terms, body.theta, body.se, active, COEFFICIENT_LEVEL));
+  return coefficientRows(body.terms, body.theta, body.se, active, COEFFICIENT_LEVEL);
 }
 
 /** `summary.json` of an update. */
@@ -91,7 +91,7 @@ export function updateSummary(result: UpdateResult, ctx: UpdateContext): Record<
       after: result.policy.after,
     },
     drift: { method: d.method, k: d.k, h: d.h, window: d.window, varianceRate: d.varianceRate, varianceThreshold: d.varianceThreshold, alarmsSinceCreated: d.alarms },
-    model: { key: result.policy.after.key, label: result.policy.after.label, equation: result.policy.after.equation, lambda: body.lambda, sigma2: body.sigma2, coefficientLevel: COEFFICIENT_LEVEL, terms: updateTerms(result) },
+    model: { key: result.policy.after.key, label: result.policy.after.label, equation: result.policy.after.equation, lambda: body.lambda, sigma2: body.sigma2, coefficientLevel: COEFFICIENT_LEVEL, terms: coefficientTerms(updateCoefficientRows(result)) },
     forecast: fc
       ? {
           horizon: fc.horizon,

@@ -47,6 +47,11 @@ export function isTemporaryName(name: string, targetBase: string): boolean {
   return /^\d+\.\d+$/.test(middle);
 }
 
+/** True for a name `temporaryPath` produces for any target: a write cut short left it behind. */
+export function isAnyTemporaryName(name: string): boolean {
+  return /^\..+\.\d+\.\d+\.tmp$/.test(name);
+}
+
 /** Replaces `path` with `data` atomically (see the module comment). */
 export async function writeFileAtomic(path: string, data: string | Uint8Array, options: AtomicWriteOptions = {}): Promise<void> {
   const dir = nodePath.dirname(path);
