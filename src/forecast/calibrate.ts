@@ -12,13 +12,18 @@
  *
  * Method (split-conformal style, with a smoothed horizon profile and the members' spread as
  * the local difficulty):
- *  1. Origins. The members re-run are the largest of each group of the combination (at most 2,
- *     holding 90 % of the group's share: `calibrationSubset`), their shares scaled up to their
- *     group's; the origins are every position the data allow, or 24 of them evenly spread
- *     (`originsFrom`). Every member joins at the first origin o that leaves it
- *     `minRows(p)` estimation rows after the sample start `from` (p its active terms); its
- *     coefficients at o are those of least squares on [from, o), carried from origin to origin
- *     by recursive least squares at λ = 1 (online.ts; equal to a batch refit on each prefix).
+ *  1. Origins. The members re-run are the largest of each group of the combination
+ *     (`calibrationSubset`; `perGroup` 1 by default: re-running a second member where the first
+ *     holds less than 90 % of its group's share cost a third more time and changed the
+ *     benchmark's interval scores by under 1 %), their shares scaled up to their group's. The
+ *     origins are a regular grid from the estimation sample's start `from`: every s-th position,
+ *     s the smallest power of two that leaves at most 32 (between 17 and 32 once the data allow
+ *     more than 32: `originGrid`). Every member joins at the first origin o that leaves it
+ *     `minRows(p)` estimation rows after `from` (p its active terms); its coefficients at o are
+ *     those of least squares on [from, o), carried from origin to origin by recursive least
+ *     squares at λ = 1 (online.ts; equal to a batch refit on each prefix). The holdout's
+ *     calibration and the final one share the members' paths from the origins they have in
+ *     common (`OriginPaths`).
  *     From each origin every member forecasts y_o … y_{o+h−1} from the history before o, inputs
  *     as observed (ex post); the members are averaged with their shares in the delivered
  *     combination, renormalised over the members present whose path passes the checks the
@@ -52,7 +57,8 @@
  * bands (and says so).
  *
  * Cost: per member re-run one batch fit at its first origin, one RLS step per observation after
- * it, and one h-step simulation per origin: at most 2 members × groups × 24 simulations.
+ * it, and one h-step simulation per origin: at most groups × 32 simulations, most of them shared
+ * by the holdout's and the final calibration.
  */
 import type { Series } from '../data/series.js';
 import { sliceSeries } from '../data/series.js';
@@ -87,9 +93,9 @@ export interface CalibrationOptions {
   originsPerDof?: number;
   /** Weight, in origins, of the power-law fit against the raw mean squared error of each lead (default 10). */
   prior?: number;
-  /** Most origins re-run (default 24, evenly spread over those the data allow, the last always in). */
+  /** Most origins re-run (default 32, a regular grid over those the data allow: `originGrid`). */
   maxOrigins?: number;
-  /** Members re-run per group and the share of the group they must hold (defaults 2 and 0.9: `calibrationSubset`). */
+  /** Members re-run per group and the share of the group they must hold (defaults 1 and 0.9: `calibrationSubset`). */
   perGroup?: number;
   groupMass?: number;
   /** Estimation rows per active term a member needs before its first origin (default 2; at least 4 more than the terms). */
@@ -145,21 +151,29 @@ export interface RollingErrors {
  * and 2), or null when the history is too short for one origin. `from` is the start of the
  * members' estimation sample.
  */
-export function rollingErrors(members: readonly CalibrationMember[], history: Series, from: number, h: number, options: CalibrationOptions = {}): RollingErrors | null {
+export function rollingErrors(
+  members: readonly CalibrationMember[],
+  history: Series,
+  from: number,
+  h: number,
+  options: CalibrationOptions = {},
+  shared?: OriginPaths,
+): RollingErrors | null {
   const n = history.values.length;
-  const used = calibrationSubset(members, options.perGroup ?? 2, options.groupMass ?? 0.9);
+  const used = calibrationSubset(members, options.perGroup ?? DEFAULT_PER_GROUP, options.groupMass ?? 0.9);
   if (used.length === 0 || n < 2) return null;
   const window = options.window ?? n;
   // Each member joins at the first origin with enough estimation rows for it.
   const starts = used.map((m) => Math.max(n - window, from + minRows(m.estimate.active.filter(Boolean).length, options.rowsPerTerm)));
   const first = Math.min(...starts);
   if (first >= n) return null;
-  const origins = originsFrom(first, n, options.maxOrigins ?? 24);
+  const origins = originGrid(from, first, n, options.maxOrigins ?? DEFAULT_MAX_ORIGINS);
+  if (origins.length === 0) return null;
+  // A window counted back from the end is a different set of origins for each history: not shared.
+  const runs = shared !== undefined && options.window === undefined && shared.covers(history, from, h) ? shared : new OriginPaths(history, from, h);
   const positive = history.values.every((v) => v > 0);
   const lists = () => Array.from({ length: h }, (): number[] => []);
 
-  const learners: (Learner | null)[] = used.map(() => null);
-  const started = used.map(() => false);
   const out: RollingErrors = {
     actual: lists(),
     point: lists(),
@@ -176,34 +190,12 @@ export function rollingErrors(members: readonly CalibrationMember[], history: Se
     for (; seen < o; seen++) summary = extendSummary(summary, history.values[seen]);
     const logRange = positive ? Math.log(summary.max / summary.min) : null;
     const lead = Math.min(h, n - o);
-    const past = sliceSeries(history, 0, o);
-    const future = history.inputs.map((i) => i.values.subarray(o, o + lead));
     let total = 0;
     for (let i = 0; i < used.length; i++) {
       paths[i] = null;
-      // A member joins at its first origin; one whose fit cannot start there (too few rows for
-      // a nonlinear fit, say) tries again at the next origin.
-      if (!started[i] && o >= starts[i]) {
-        learners[i] = startLearner(used[i], history, from, o);
-        started[i] = learners[i] !== null;
-      }
-      const learner = learners[i];
-      if (learner === null) continue;
-      // Rows before o only use observations before o: the learner catches up on the whole history.
-      try {
-        if (learner.next < o) learner.advance(history, o);
-      } catch {
-        learners[i] = null;
-        started[i] = false;
-        continue;
-      }
-      let f: Float64Array;
-      try {
-        f = used[i].structure.simulate(learner.theta, past, future, lead);
-      } catch {
-        continue;
-      }
-      if (!f.every(Number.isFinite) || pathFault(summary, f) !== null || (logRange !== null && collapses(summary.last, logRange, f))) continue;
+      if (o < starts[i]) continue;
+      const f = runs.path(used[i], o, lead);
+      if (f === null || !f.every(Number.isFinite) || pathFault(summary, f) !== null || (logRange !== null && collapses(summary.last, logRange, f))) continue;
       paths[i] = f;
       total += used[i].share;
     }
@@ -226,6 +218,120 @@ export function rollingErrors(members: readonly CalibrationMember[], history: Se
   return out.origins === 0 ? null : out;
 }
 
+/** Members re-run per group by default (`calibrationSubset`). */
+export const DEFAULT_PER_GROUP = 1;
+/** Most origins re-run by default (`originGrid`). */
+export const DEFAULT_MAX_ORIGINS = 32;
+
+/**
+ * The members' forecasts from rolling origins of one series, kept so that calibrations of the
+ * same run share them: the holdout's calibration (on the history before the holdout) and the
+ * final one (on all data) re-run the same members from the same grid of origins
+ * (`originGrid`), so the second finds most paths made.
+ *
+ * A member's coefficients at origin o are those of its learner (online.ts: a batch fit on
+ * [from, start) carried on by recursive least squares at λ = 1), which uses only the
+ * observations before o; its path from o is its simulation over `lead` steps with the inputs as
+ * observed, a path over fewer steps being the first steps of a longer one. A calibration on a
+ * history that ends before the series does only reads the steps inside that history, so sharing
+ * the paths uses nothing it could not have seen. A member whose learner cannot start at an origin
+ * (too few rows for its fit) has no path there and tries again at the next; one whose learner
+ * fails to advance starts afresh at the next origin asked for, as does a request for an origin
+ * the learner has already passed.
+ */
+export class OriginPaths {
+  private readonly entries = new Map<string, OriginEntry>();
+
+  /**
+   * @param series the series whose prefixes the calibrations use (the longest history).
+   * @param from start of the members' estimation sample.
+   * @param lead steps each path is simulated over (at most the data left after its origin): the
+   *   longest lead any calibration sharing these paths asks for.
+   */
+  constructor(
+    readonly series: Series,
+    readonly from: number,
+    readonly lead: number,
+  ) {}
+
+  /** True when a calibration of `history` from `from` over h leads can use these paths. */
+  covers(history: Series, from: number, h: number): boolean {
+    return from === this.from && h <= this.lead && history.values.length <= this.series.values.length && prefixOf(history, this.series);
+  }
+
+  /** The member's path from origin o over `lead` steps, or null when it has none there. */
+  path(member: CalibrationMember, o: number, lead: number): Float64Array | null {
+    const key = `${member.structure.key}#${member.estimate.active.map((a) => (a ? 1 : 0)).join('')}`;
+    let entry = this.entries.get(key);
+    if (entry === undefined) {
+      entry = { learner: null, thetas: new Map(), paths: new Map() };
+      this.entries.set(key, entry);
+    }
+    const known = entry.paths.get(o);
+    if (known !== undefined && known.length >= lead) return known.subarray(0, lead);
+    const theta = this.thetaAt(entry, member, o);
+    if (theta === null) return null;
+    const past = sliceSeries(this.series, 0, o);
+    const long = Math.min(this.lead, this.series.values.length - o);
+    const simulate = (steps: number): Float64Array | null => {
+      try {
+        return member.structure.simulate(theta, past, this.series.inputs.map((i) => i.values.subarray(o, o + steps)), steps);
+      } catch {
+        return null;
+      }
+    };
+    const f = simulate(long);
+    if (f !== null) {
+      entry.paths.set(o, f);
+      return f.subarray(0, lead);
+    }
+    return long > lead ? simulate(lead) : null;
+  }
+
+  /** The member's coefficients at origin o (null when its learner cannot start or advance there). */
+  private thetaAt(entry: OriginEntry, member: CalibrationMember, o: number): Float64Array | null {
+    const known = entry.thetas.get(o);
+    if (known !== undefined) return known;
+    if (entry.learner !== null && entry.learner.next > o) entry.learner = null;
+    let theta: Float64Array | null = null;
+    if (entry.learner === null) {
+      entry.learner = startLearner(member, this.series, this.from, o);
+      if (entry.learner !== null) theta = entry.learner.theta;
+    } else {
+      try {
+        // Rows before o only use observations before o: the learner catches up on the whole history.
+        entry.learner.advance(this.series, o);
+        theta = entry.learner.theta;
+      } catch {
+        entry.learner = null;
+      }
+    }
+    entry.thetas.set(o, theta);
+    return theta;
+  }
+}
+
+interface OriginEntry {
+  learner: Learner | null;
+  thetas: Map<number, Float64Array | null>;
+  paths: Map<number, Float64Array>;
+}
+
+/** True when `history` holds the first observations of `series` (the same values and inputs). */
+function prefixOf(history: Series, series: Series): boolean {
+  if (history === series) return true;
+  const m = history.values.length;
+  if ((history.before?.count ?? 0) !== (series.before?.count ?? 0) || history.inputs.length !== series.inputs.length) return false;
+  for (let t = 0; t < m; t++) if (history.values[t] !== series.values[t]) return false;
+  for (let j = 0; j < history.inputs.length; j++) {
+    const a = history.inputs[j];
+    const b = series.inputs[j];
+    if (a.name !== b.name) return false;
+    for (let t = 0; t < m; t++) if (a.values[t] !== b.values[t]) return false;
+  }
+  return true;
+}
+
 function startLearner(m: CalibrationMember, history: Series, from: number, to: number): Learner | null {
   try {
     return Learner.start(m.structure, m.estimate.active, history, from, to);
@@ -235,15 +341,19 @@ function startLearner(m: CalibrationMember, history: Series, from: number, to: n
 }
 
 /**
- * The origins re-run: every position from `first` to n − 1, or, when there are more than `most`,
- * `most` of them evenly spread, the last (n − 1) always among them; ascending.
+ * The origins re-run: the positions anchor + j·s (j = 0, 1, …) from `first` to n − 1, with the
+ * stride s the smallest power of two that leaves at most `most` of them; ascending. The grid is
+ * anchored at the estimation sample's start and its stride only doubles as the history grows,
+ * so the origins of a shorter history of the same series are (a superset of) those of a longer
+ * one up to its end: the holdout's and the final calibration share most of their origins
+ * (`OriginPaths`), and the origins do not move when one observation is added.
  */
-export function originsFrom(first: number, n: number, most: number): number[] {
-  const count = n - first;
-  if (count <= most) return Array.from({ length: count }, (_, j) => first + j);
-  const stride = count / most;
+export function originGrid(anchor: number, first: number, n: number, most: number): number[] {
+  const count = (s: number): number => (n <= first ? 0 : Math.floor((n - 1 - anchor) / s) - Math.ceil((first - anchor) / s) + 1);
+  let s = 1;
+  while (count(s) > Math.max(1, most)) s *= 2;
   const out: number[] = [];
-  for (let j = most - 1; j >= 0; j--) out.push(n - 1 - Math.floor(j * stride));
+  for (let o = anchor + s * Math.ceil((first - anchor) / s); o < n; o += s) out.push(o);
   return out;
 }
 
@@ -344,8 +454,9 @@ export function calibrate(
   h: number,
   levels: readonly number[],
   options: CalibrationOptions = {},
+  shared?: OriginPaths,
 ): Calibration | null {
-  const rolled = rollingErrors(members, history, from, h, options);
+  const rolled = rollingErrors(members, history, from, h, options, shared);
   if (rolled === null) return null;
   const want = options.scale ?? 'auto';
   const none = profileOf(rolled.none, rolled, levels, options);
@@ -358,7 +469,8 @@ export function calibrate(
 /**
  * The delivered forecast with calibrated bands: `calibrate` over `members` (the point's members
  * with their shares), bands around `point` with the members' spread `forecasts` (each member's
- * forecast and share, those used). Null when the history is too short to calibrate.
+ * forecast and share, those used). Null when the history is too short to calibrate. `shared`:
+ * members' paths kept from another calibration of the same series (`OriginPaths`).
  */
 export function calibratedPaths(
   point: Float64Array,
@@ -368,8 +480,9 @@ export function calibratedPaths(
   from: number,
   levels: readonly number[],
   options: CalibrationOptions = {},
+  shared?: OriginPaths,
 ): ForecastPaths | null {
-  const calibration = calibrate(members, history, from, point.length, levels, options);
+  const calibration = calibrate(members, history, from, point.length, levels, options, shared);
   if (calibration === null) return null;
   const spread = memberSpread(forecasts, point, calibration.scale);
   return { point, bands: calibratedBands(point, calibration, levels, spread), method: 'calibrated', calibration };

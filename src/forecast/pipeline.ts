@@ -28,7 +28,7 @@ import { DEFAULT_LEVELS, forecastWithIntervals, type ForecastPaths, type Interva
 import { defaultInputPolicy, futureByPolicy, type FutureInputs, type InputPolicy } from './future.js';
 import { Learner } from './online.js';
 import { combinationMembers, combineForecasts, combinedPaths, replacesOwn, type Combination, type CombineOptions, type Member } from './combine.js';
-import { calibratedPaths, type CalibrationOptions } from './calibrate.js';
+import { calibratedPaths, OriginPaths, type CalibrationOptions } from './calibrate.js';
 
 export interface ForecastOptions {
   search?: SearchOptions;
@@ -143,9 +143,12 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
   }
   const combine = options.combine === false || options.point === 'asserted' ? null : options.combine ?? {};
   let evaluation: Backtest | null = null;
+  // The calibrations of the holdout forecast and of the final one re-run the same members from
+  // mostly the same origins: their paths are made once (calibrate.ts, OriginPaths).
+  const shared = new OriginPaths(series, from, Math.max(horizon, holdout));
   if (holdout > 0) {
     const fixedInputs = series.inputs.map((i) => i.values.slice(nTrain, n));
-    const fixed = deliveredForecast(found, structure, found.winner.estimate, train, fixedInputs, holdout, found.winner.residuals, intervalOptions, combine, (_, e) => e, from);
+    const fixed = deliveredForecast(found, structure, found.winner.estimate, train, fixedInputs, holdout, found.winner.residuals, intervalOptions, combine, (_, e) => e, from, shared);
     evaluation = backtest(structure, found.winner.estimate, series, nTrain, {
       horizon,
       lambda: forgetting,
@@ -180,7 +183,7 @@ export function forecastSeries(given: Series, options: ForecastOptions = {}): Fo
         : futureByPolicy(series, horizon, options.inputPolicy ?? defaultInputPolicy(series));
   // Members other than the winner are refitted on all data after a holdout search.
   const refit = (s: Structure, e: Estimate): Estimate => (s.key === structure.key ? estimate : holdout > 0 ? s.estimate(series, from, n) : e);
-  const { paths, combination, uncalibrated } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit, from);
+  const { paths, combination, uncalibrated } = deliveredForecast(found, structure, estimate, series, inputs.values, horizon, residuals, intervalOptions, combine, refit, from, shared);
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the asserted equation diverges over this horizon`);
@@ -232,6 +235,7 @@ function deliveredForecast(
   combine: CombineOptions | null,
   refit: (s: Structure, e: Estimate) => Estimate,
   from: number,
+  shared: OriginPaths,
 ): { paths: ForecastPaths; alone: ForecastPaths | null; combination: Combination | null; uncalibrated: boolean } {
   const calibrated = intervals.method === undefined || intervals.method === 'calibrated';
   const modelOptions: IntervalOptions = calibrated ? { ...intervals, method: undefined } : intervals;
@@ -257,7 +261,7 @@ function deliveredForecast(
   }
   const replaced = members.length > 1 || members[0].key !== structure.key;
   const used = replaced && combination ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
-  const cal = calibrated ? calibratedPaths(point, members, used, history, from, intervals.levels, intervals.calibration) : null;
+  const cal = calibrated ? calibratedPaths(point, members, used, history, from, intervals.levels, intervals.calibration, shared) : null;
   const paths = cal ?? (replaced ? (combinedPaths(ownPaths(), combination as Combination, structure.key) as ForecastPaths) : ownPaths());
   const alone = replaced ? (cal ? { point: structure.simulate(estimate.theta, history, future, h), bands: [], method: paths.method } : ownPaths()) : null;
   return { paths, alone, combination, uncalibrated: calibrated && cal === null };

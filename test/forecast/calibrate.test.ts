@@ -1,9 +1,13 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import type { Series } from '../../src/data/series.js';
+import { sliceSeries, type Series } from '../../src/data/series.js';
+import { parseM3 } from '../../src/evaluate/m3.js';
+import { searchSeasons } from '../../src/select/seasons.js';
+import { combinationMembers } from '../../src/forecast/combine.js';
 import { createRng } from '../../src/linalg/random.js';
 import { ArxStructure, validateArxSpec } from '../../src/models/arx.js';
 import { structureFromSpec } from '../../src/models/registry.js';
-import { calibrate, calibratedBands, calibrationSubset, memberSpread, originsFrom, profileOf, rollingErrors, type RollingErrors } from '../../src/forecast/calibrate.js';
+import { calibrate, calibratedBands, calibrationSubset, memberSpread, originGrid, OriginPaths, profileOf, rollingErrors, type RollingErrors } from '../../src/forecast/calibrate.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
 import { normalQuantile } from '../../src/forecast/normal.js';
 
@@ -181,14 +185,28 @@ describe('forecastSeries with calibrated bands (the default)', () => {
   });
 });
 
-describe('originsFrom / calibrationSubset', () => {
-  it('takes every origin when few, else an even spread that ends at the last', () => {
-    expect(originsFrom(5, 9, 10)).toEqual([5, 6, 7, 8]);
-    const o = originsFrom(10, 110, 24);
-    expect(o).toHaveLength(24);
-    expect(o[o.length - 1]).toBe(109);
-    expect(o[0]).toBeGreaterThanOrEqual(10);
-    for (let i = 1; i < o.length; i++) expect(o[i]).toBeGreaterThan(o[i - 1]);
+describe('originGrid / calibrationSubset', () => {
+  it('takes every origin when few, else every s-th from the anchor with s the smallest power of two leaving at most the limit', () => {
+    expect(originGrid(1, 5, 9, 10)).toEqual([5, 6, 7, 8]);
+    // 100 positions 10 … 109 from anchor 2: s = 4 leaves 25 > 24, s = 8 leaves 13.
+    const o = originGrid(2, 10, 110, 24);
+    expect(o).toHaveLength(13);
+    expect(o[0]).toBe(10);
+    for (let i = 1; i < o.length; i++) expect(o[i] - o[i - 1]).toBe(8);
+    expect(o[o.length - 1]).toBe(106);
+    expect(originGrid(0, 3, 3, 24)).toEqual([]);
+  });
+
+  it('gives a shorter history of the same series (a superset of) the origins of a longer one up to its end', () => {
+    for (const [first, short, long] of [
+      [12, 96, 120],
+      [30, 50, 51],
+      [7, 40, 200],
+    ]) {
+      const a = originGrid(4, first, short, 24);
+      const b = originGrid(4, first, long, 24).filter((o) => o < short);
+      for (const o of b) expect(a).toContain(o);
+    }
   });
 
   it('keeps each group’s largest members and gives them the whole group’s share', () => {
@@ -197,5 +215,69 @@ describe('originsFrom / calibrationSubset', () => {
     // Group a (0.5): 0.3 and 0.15 kept (0.45 = 90 %), scaled by 0.5/0.45; group b (0.5): 0.4 then 0.1 (80 % < 90 %).
     expect(kept.map((k) => k.share)).toEqual([0.3 / 0.9, 0.15 / 0.9, 0.4, 0.1].map((x) => expect.closeTo(x, 12)));
     expect(kept.reduce((s, k) => s + k.share, 0)).toBeCloseTo(1, 12);
+  });
+});
+
+describe('OriginPaths: the holdout’s and the final calibration share members’ paths', () => {
+  // M3 monthly series N 1402 (datasets/m3, development half): 20 % held out as the pipeline does.
+  const m3 = parseM3(readFileSync(new URL('../../datasets/m3/M3Month-dev.csv', import.meta.url), 'utf8'), 'monthly', 'M3Month-dev.csv');
+  const whole = m3[0].series;
+  const n = whole.values.length;
+  const nTrain = n - Math.min(24, Math.floor(0.2 * n));
+  const train = sliceSeries(whole, 0, nTrain);
+  const found = searchSeasons(train);
+  const members = combinationMembers(found.ranking).map((m) => ({ ...m, share: m.weight }));
+  const from = found.sample.from;
+
+  it('gives every structure of the search a path over fewer steps that is the first steps of a longer one (what sharing relies on)', () => {
+    let checked = 0;
+    for (const c of found.ranking) {
+      if (c.estimate === undefined || c.structure === undefined) continue;
+      const past = sliceSeries(whole, 0, nTrain);
+      const future = whole.inputs.map((i) => i.values.subarray(nTrain));
+      let long: Float64Array;
+      try {
+        long = c.structure.simulate(c.estimate.theta, past, future, 18);
+      } catch {
+        continue;
+      }
+      const short = c.structure.simulate(c.estimate.theta, past, future, 7);
+      expect(Array.from(long.subarray(0, 7))).toEqual(Array.from(short));
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(50);
+    expect(new Set(found.ranking.map((c) => c.structure?.family)).size).toBeGreaterThanOrEqual(4);
+  });
+
+  it('leaves the calibration of the shorter history exactly as it is alone, though its paths were simulated past its end', () => {
+    const shared = new OriginPaths(whole, from, 24);
+    const alone = calibrate(members, train, from, 24, [80, 95]);
+    const withShared = calibrate(members, train, from, 24, [80, 95], {}, shared);
+    expect(alone).not.toBeNull();
+    expect(withShared).toEqual(alone);
+  });
+
+  it('serves the final calibration mostly from paths already made, within rounding of a fresh one', () => {
+    const shared = new OriginPaths(whole, from, 24);
+    calibrate(members, train, from, 24, [80, 95], {}, shared);
+    let simulations = 0;
+    const counting = members.map((m) => ({
+      ...m,
+      structure: Object.assign(Object.create(Object.getPrototypeOf(m.structure)), m.structure, {
+        simulate: (...a: Parameters<typeof m.structure.simulate>) => {
+          simulations++;
+          return m.structure.simulate(...a);
+        },
+      }),
+    }));
+    const fresh = calibrate(members, whole, from, 24, [80, 95])!;
+    const reused = calibrate(counting, whole, from, 24, [80, 95], {}, shared)!;
+    expect(reused.origins).toBe(fresh.origins);
+    expect(reused.scale).toBe(fresh.scale);
+    for (let k = 0; k < 24; k++) expect(reused.profile[k]).toBeCloseTo(fresh.profile[k], 6);
+    reused.multipliers.forEach((m, i) => expect(m.q).toBeCloseTo(fresh.multipliers[i].q, 6));
+    // Only the origins after the shorter history's last shared one needed new simulations.
+    expect(simulations).toBeGreaterThan(0);
+    expect(simulations).toBeLessThan(0.5 * fresh.origins * calibrationSubset(members, 1, 0.9).length);
   });
 });
