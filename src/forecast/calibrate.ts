@@ -241,6 +241,8 @@ export const DEFAULT_MAX_ORIGINS = 32;
  */
 export class OriginPaths {
   private readonly entries = new Map<string, OriginEntry>();
+  /** The history before each origin and the inputs after it, made once for every member. */
+  private readonly views = new Map<number, { past: Series; future: Float64Array[] }>();
 
   /**
    * @param series the series whose prefixes the calibrations use (the longest history).
@@ -271,11 +273,16 @@ export class OriginPaths {
     if (known !== undefined && known.length >= lead) return known.subarray(0, lead);
     const theta = this.thetaAt(entry, member, o);
     if (theta === null) return null;
-    const past = sliceSeries(this.series, 0, o);
     const long = Math.min(this.lead, this.series.values.length - o);
+    let view = this.views.get(o);
+    if (view === undefined) {
+      view = { past: sliceSeries(this.series, 0, o), future: this.series.inputs.map((i) => i.values.subarray(o, o + long)) };
+      this.views.set(o, view);
+    }
+    const { past, future } = view;
     const simulate = (steps: number): Float64Array | null => {
       try {
-        return member.structure.simulate(theta, past, this.series.inputs.map((i) => i.values.subarray(o, o + steps)), steps);
+        return member.structure.simulate(theta, past, steps === long ? future : future.map((f) => f.subarray(0, steps)), steps);
       } catch {
         return null;
       }
