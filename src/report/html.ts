@@ -69,7 +69,7 @@ export type PageScript = { inline: string } | { src: string };
 
 const hashes = new Map<string, string>();
 
-/** The CSP hash source of an inline script's text (`'sha256-…'`), remembered per text. */
+/** The CSP hash source of an inline script's or style's text (`'sha256-…'`), remembered per text. */
 export function scriptHash(text: string): string {
   let h = hashes.get(text);
   if (h === undefined) {
@@ -81,8 +81,8 @@ export function scriptHash(text: string): string {
 
 /**
  * The content security policy of a page with these scripts: nothing may load from anywhere
- * (`default-src 'none'`), styles inline, images only as data URLs, and scripts only those of the
- * page: each inline one by the hash of its text (so no other inline script or event handler
+ * (`default-src 'none'`), the one style sheet of every page (`PAGE_STYLE`, by its hash), images
+ * only as data URLs, and scripts only those of the page: each inline one by the hash of its text (so no other inline script or event handler
  * runs) and, when the page loads a local file, `'self'`. For a page opened from disk Chromium
  * takes `'self'` as any local file (a source cannot name a relative path, and a hash does not
  * reach a file:// script, whose integrity cannot be checked without CORS); no network source is
@@ -91,7 +91,7 @@ export function scriptHash(text: string): string {
 export function pagePolicy(scripts: readonly PageScript[]): string {
   const sources = [...(scripts.some((s) => 'src' in s) ? ["'self'"] : []), ...scripts.flatMap((s) => ('inline' in s ? [scriptHash(s.inline)] : []))];
   const script = sources.length > 0 ? sources.join(' ') : "'none'";
-  return `default-src 'none'; script-src ${script}; style-src 'unsafe-inline'; img-src data:`;
+  return `default-src 'none'; script-src ${script}; style-src ${scriptHash(PAGE_STYLE)}; img-src data:`;
 }
 
 /** The `<script>` element of a page script (an inline source holds no `</script`: checked). */

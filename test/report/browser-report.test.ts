@@ -4,7 +4,7 @@
  * as text. The page is the one the built CLI writes. A batch series' report, opened from its
  * batch folder, loads the batch's one copy of the chart library and nothing else; moved out of
  * the batch folder it says that its charts need that file, while its text and tables still show;
- * and its policy keeps any other script from running.
+ * and its policy keeps any other script or style from taking effect.
  */
 import { cpSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -198,10 +198,10 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
     await page.close();
   }, 60_000);
 
-  it("a batch report's policy runs only its own scripts: an added inline script and a remote one are refused", async () => {
+  it("a batch report's policy runs only its own scripts and style: an added inline script, a remote one and a style element are refused", async () => {
     const folder = folderNames(LINES)[1];
     const html = readFileSync(join(dir, 'batch', folder, 'report.html'), 'utf8');
-    const extra = '<script>document.documentElement.setAttribute("data-intruder", "ran")</script><script src="https://scripts.invalid/x.js"></script>';
+    const extra = '<script>document.documentElement.setAttribute("data-intruder", "ran")</script><script src="https://scripts.invalid/x.js"></script><style>body { background: rgb(255, 0, 0); }</style>';
     const file = join(dir, 'batch', folder, 'altered.html');
     writeFileSync(file, html.replace('</main>', `</main>\n${extra}`));
     const { page, log } = await openFile(browser, file);
@@ -212,6 +212,8 @@ describe.skipIf(skip !== null)('report.html in chromium', () => {
     expect(log.errors.length).toBeGreaterThanOrEqual(2);
     for (const e of log.errors) expect(e).toMatch(/Content Security Policy/);
     expect(log.errors.some((e) => /inline script/.test(e))).toBe(true);
+    expect(log.errors.some((e) => /inline style/.test(e))).toBe(true);
+    expect(await page.evaluate(() => (globalThis as any).getComputedStyle((globalThis as any).document.body).backgroundColor)).not.toBe('rgb(255, 0, 0)');
     expect(log.errors.some((e) => e.includes('https://scripts.invalid/x.js'))).toBe(true);
     expect(filesRead(log.files)).toEqual([url(file), url(join(dir, 'batch', 'assets', 'charts.js'))]);
     await page.close();
