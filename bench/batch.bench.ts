@@ -5,14 +5,15 @@
  *
  * Each run is the built CLI as a child process with default options (workers: one per core),
  * `--quiet`, timed by wall clock, its peak memory read by GNU time as the maximum resident set
- * size (worker threads share the process, so this covers them). Reported: 1,000 and 10,000
+ * size (worker threads share the process, so this covers them), and what it wrote: the bytes of
+ * the average series folder and of the files at the top of the batch folder. Reported: 1,000 and 10,000
  * series without charts (cost per series of each, to show the growth is linear) and 1,000 with
  * charts. Targets on the 2-core reference machine: 10,000 series without charts under 60 s wall
  * and under 1 GB peak memory.
  * Run: `npm run bench -- batch` (BATCH_SIZES=1000 to run a subset).
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { createRng } from '../src/linalg/random.js';
@@ -47,6 +48,28 @@ interface Measure {
   wall: number;
   rssMb: number;
   code: number | null;
+  /** Mean bytes of a series folder (all its files). */
+  perFolder: number;
+  /** Bytes of everything at the top of the batch folder that is not a series folder. */
+  top: number;
+}
+
+/** Bytes of every file under `dir`. */
+function treeBytes(dir: string): number {
+  let sum = 0;
+  for (const e of readdirSync(dir, { withFileTypes: true })) {
+    const p = join(dir, e.name);
+    sum += e.isDirectory() ? treeBytes(p) : statSync(p).size;
+  }
+  return sum;
+}
+
+/** The series folders of a batch (those batch.csv names) and the rest of its top level. */
+function batchBytes(out: string): { perFolder: number; top: number } {
+  const folders = new Set(readdirSync(out, { withFileTypes: true }).filter((e) => e.isDirectory() && e.name.startsWith('OC-')).map((e) => e.name));
+  let inFolders = 0;
+  for (const f of folders) inFolders += treeBytes(join(out, f));
+  return { perFolder: folders.size > 0 ? inFolders / folders.size : NaN, top: treeBytes(out) - inFolders };
 }
 
 function run(file: string, charts: boolean): Measure {
@@ -58,19 +81,20 @@ function run(file: string, charts: boolean): Measure {
   const lastLine = p.stderr.trim().split('\n').pop() ?? '';
   const kb = Number(lastLine);
   if (p.status !== 0) process.stderr.write(p.stderr.slice(0, 2000));
+  const bytes = batchBytes(out);
   rmSync(out, { recursive: true, force: true });
-  return { wall, rssMb: Number.isFinite(kb) ? kb / 1024 : NaN, code: p.status };
+  return { wall, rssMb: Number.isFinite(kb) ? kb / 1024 : NaN, code: p.status, ...bytes };
 }
 
 const sizes = (process.env.BATCH_SIZES ?? '1000,10000').split(',').map(Number);
 const chartSize = Number(process.env.BATCH_CHARTS ?? 1000);
 console.log(`batch: monthly series of 120 points, ${availableParallelism()} cores, default workers (load average ${loadavg()[0].toFixed(1)})`);
-console.log('series   charts   wall (s)   per series (ms)   peak RSS (MB)   exit');
+console.log('series   charts   wall (s)   per series (ms)   peak RSS (MB)   exit   KiB per series folder   KiB at the top');
 const rows: [number, boolean, Measure][] = [];
 for (const n of sizes) rows.push([n, false, run(writeFile(n), false)]);
 if (chartSize > 0) rows.push([chartSize, true, run(writeFile(chartSize), true)]);
 for (const [n, charts, m] of rows) {
-  console.log(`${String(n).padStart(6)}   ${(charts ? 'yes' : 'no').padEnd(6)}   ${m.wall.toFixed(1).padStart(8)}   ${((1000 * m.wall) / n).toFixed(2).padStart(15)}   ${m.rssMb.toFixed(0).padStart(13)}   ${m.code}`);
+  console.log(`${String(n).padStart(6)}   ${(charts ? 'yes' : 'no').padEnd(6)}   ${m.wall.toFixed(1).padStart(8)}   ${((1000 * m.wall) / n).toFixed(2).padStart(15)}   ${m.rssMb.toFixed(0).padStart(13)}   ${String(m.code).padStart(4)}   ${(m.perFolder / 1024).toFixed(1).padStart(21)}   ${(m.top / 1024).toFixed(1).padStart(14)}`);
 }
 const plain = rows.filter(([, c]) => !c);
 if (plain.length >= 2) {

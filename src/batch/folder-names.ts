@@ -5,7 +5,8 @@
  * Rule. A series name is kept as its folder name when it is already safe: made only of letters,
  * digits, `.`, `_` and `-`, in Unicode NFC form, not starting with `.`, at most 64 characters,
  * not a device name some systems reserve (CON, PRN, AUX, NUL, COM0–COM9, LPT0–LPT9, with or
- * without an extension, any case), and no other series of the file has the same name ignoring
+ * without an extension, any case), not a name the batch folder itself uses at its top
+ * (`TOP_LEVEL_NAMES`, any case), and no other series of the file has the same name ignoring
  * case. Otherwise the folder is `<cleaned>~<hash>`: `cleaned` is the name with every run of other
  * characters replaced by `_`, leading dots removed, cut to 64 characters (`series` when nothing
  * is left), and `hash` the first 8 hex digits of the SHA-256 of the name's UTF-8 bytes, longer
@@ -20,8 +21,17 @@
  * @example folderNames(['a_b', 'a b', 'a/b']) → ['a_b', 'a_b~<8 hex>', 'a_b~<8 hex>']
  */
 import { createHash } from 'node:crypto';
+import { CHART_ASSET } from '../report/html.js';
 
 export const FOLDER_NAME_MAX = 64;
+
+/**
+ * The names at the top of a batch folder that are not series folders: its tables, its index
+ * page and the folder of the chart library the reports share.
+ */
+export const TOP_LEVEL_NAMES: readonly string[] = ['batch.csv', 'batch.json', 'forecasts.csv', 'index.html', CHART_ASSET.split('/')[0]];
+
+const TOP_LEVEL = new Set(TOP_LEVEL_NAMES.map((n) => n.toLowerCase()));
 
 const SAFE = /^[\p{L}\p{N}._-]+$/u;
 const UNSAFE_RUN = /[^\p{L}\p{N}._-]+/gu;
@@ -35,7 +45,8 @@ export function isSafeFolderName(name: string): boolean {
     SAFE.test(name) &&
     name === name.normalize('NFC') &&
     !name.startsWith('.') &&
-    !RESERVED.test(name)
+    !RESERVED.test(name) &&
+    !TOP_LEVEL.has(name.toLowerCase())
   );
 }
 

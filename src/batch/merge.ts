@@ -3,19 +3,23 @@
  * into one batch folder with the same bytes one run over the whole file would have written: the
  * series folders copied, the records of batch.csv put back in file order, the records of
  * forecasts.csv grouped by series in that order, batch.json as an unsharded run writes it (its
- * rows joined in file order) and, when the shards wrote reports, index.html made from those rows.
+ * rows joined in file order) and, when the shards wrote reports, index.html made from those rows
+ * and the chart library the series' reports share (`CHART_ASSET`), which every shard holds alike.
  *
  * Checked first, each a one-line error: every folder is a batch folder of the same kind (same
  * format, number of series in the file, interval levels, table headers), the shards are exactly
  * 1 … n of one n, no series and no folder appears twice, every series of the file is accounted
- * for, and the target folder is empty or new.
+ * for, the shards with reports hold the same chart library, and the target folder is empty or
+ * new.
  */
 import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../data/errors.js';
 import { isAnyTemporaryName, writeFileAtomic } from '../store/atomic.js';
+import { CHART_ASSET } from '../report/html.js';
 import { BATCH_FORMAT, BATCH_VERSION, batchIndexHtml, batchManifest, batchRowFromJson, type BatchRow } from './batch-table.js';
 import { rawRecords, type RawRecord } from './csv-records.js';
+import { TOP_LEVEL_NAMES } from './folder-names.js';
 
 interface Manifest {
   seriesInFile: number;
@@ -25,14 +29,30 @@ interface Manifest {
   rows: BatchRow[];
 }
 
-const TOP_FILES = new Set(['batch.csv', 'forecasts.csv', 'batch.json', 'index.html']);
+const TOP_LEVEL = new Set(TOP_LEVEL_NAMES);
 
-async function readText(file: string, what: string): Promise<string> {
+async function readBytes(file: string, what: string): Promise<Buffer> {
   try {
-    return await fsp.readFile(file, 'utf8');
+    return await fsp.readFile(file);
   } catch {
     throw new DataError('merge-missing', `${what} is missing`, { file, expected: 'a batch folder written by certa forecast --shard k/n' });
   }
+}
+
+async function readText(file: string, what: string): Promise<string> {
+  return (await readBytes(file, what)).toString('utf8');
+}
+
+/** The chart library the shards' reports share: the same bytes in every shard, or a one-line error. */
+async function sharedChartLibrary(dirs: readonly string[]): Promise<Buffer> {
+  let first: Buffer | null = null;
+  for (const dir of dirs) {
+    const file = join(dir, CHART_ASSET);
+    const bytes = await readBytes(file, CHART_ASSET);
+    if (first === null) first = bytes;
+    else if (!bytes.equals(first)) throw new DataError('merge-asset', `${CHART_ASSET} differs from that of the other shards`, { file, expected: `shards written by one version of certa (the same ${CHART_ASSET} as in ${dirs[0]})` });
+  }
+  return first!;
 }
 
 async function readManifest(dir: string): Promise<Manifest> {
@@ -141,12 +161,13 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
       else groups.set(key, [r.text]);
     }
     for (const entry of await fsp.readdir(dir, { withFileTypes: true })) {
-      if (!entry.isDirectory() || TOP_FILES.has(entry.name)) continue;
+      if (!entry.isDirectory() || TOP_LEVEL.has(entry.name)) continue;
       const other = folders.get(entry.name);
       if (other !== undefined) throw new DataError('merge-folder-twice', `the series folder "${entry.name}" is in two shards`, { found: `${other} and ${dir}`, expected: 'each series in one shard' });
       folders.set(entry.name, dir);
     }
   }
+  const library = first.report ? await sharedChartLibrary(dirs) : null;
   rows.sort((a, b) => a.position - b.position);
   for (let i = 1; i < rows.length; i++) {
     if (rows[i].position === rows[i - 1].position) throw new DataError('merge-series-twice', `the series at position ${rows[i].position} is in two shards`, { found: rows[i].record.fields[1] });
@@ -165,5 +186,6 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   const merged = manifests.flatMap((m) => m.rows).sort((a, b) => a.position - b.position);
   await writeFileAtomic(join(out, 'batch.json'), batchManifest({ seriesInFile: first.seriesInFile, shard: null, levels: first.levels, report: first.report, rows: merged }), { mkdir: true });
   if (first.report) await writeFileAtomic(join(out, 'index.html'), batchIndexHtml(merged), { mkdir: true });
+  if (library) await writeFileAtomic(join(out, CHART_ASSET), library, { mkdir: true });
   return { report: first.report, shards: n, series: rows.length, folders: folders.size };
 }

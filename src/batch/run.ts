@@ -1,13 +1,16 @@
 /**
  * A batch: every series of a file (or one shard of them) forecast by a pool of workers, one
  * folder per series inside the batch folder (folder-names.ts), and at the top batch.csv,
- * forecasts.csv, batch.json and (with reports) index.html (batch-table.ts). A series that cannot be forecast is reported and
- * the others go on, unless `failFast`.
+ * forecasts.csv, batch.json and (with reports) index.html (batch-table.ts) and the one copy of
+ * the chart library every series' report.html loads (`CHART_ASSET`, written before the first
+ * series, so a report is whole as soon as it is written). A series that cannot be forecast is
+ * reported and the others go on, unless `failFast`.
  */
 import { join } from 'node:path';
 import { CertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import type { LoadFailure } from '../data/load.js';
+import { CHART_ASSET, chartLibraryScript } from '../report/html.js';
 import { writeFileAtomic } from '../store/atomic.js';
 import { batchCsv, batchIndexHtml, batchManifest, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
 import { folderNames } from './folder-names.js';
@@ -23,7 +26,7 @@ export interface BatchOptions {
   failFast: boolean;
   /** Interval levels of every series (the forecasts.csv columns). */
   levels: number[];
-  /** Write each series' report.html and the batch's index.html. */
+  /** Write each series' report.html, the chart library they share and the batch's index.html. */
   report: boolean;
   settings: JobSettings;
   onOutcome?: (outcome: SeriesOutcome, done: number, total: number) => void;
@@ -37,7 +40,7 @@ export interface BatchResult {
   outcomes: SeriesOutcome[];
   /** Files written at the top of the batch folder. */
   tables: string[];
-  /** The first failure when failFast stopped the batch (nothing written at the top then). */
+  /** The first failure when failFast stopped the batch (nothing but the chart library written at the top then). */
   stoppedBy: SeriesOutcome | null;
 }
 
@@ -74,6 +77,7 @@ export async function runBatch(series: readonly Series[], failedAtLoad: readonly
   const { tasks, failed } = batchTasks(series, failedAtLoad, options.out, options.shard);
   const total = tasks.length + failed.length;
   options.onStart?.(total);
+  if (options.report) await writeFileAtomic(join(options.out, CHART_ASSET), chartLibraryScript(), { mkdir: true });
   let finished = 0;
   for (const o of failed) options.onOutcome?.(o, ++finished, total);
   const ran = await runPool(tasks, options.settings, {
@@ -97,7 +101,7 @@ export async function runBatch(series: readonly Series[], failedAtLoad: readonly
   const tables = ['batch.csv', 'batch.json', 'forecasts.csv'];
   if (options.report) {
     await writeFileAtomic(join(options.out, 'index.html'), batchIndexHtml(rows), { mkdir: true });
-    tables.push('index.html');
+    tables.push('index.html', CHART_ASSET);
   }
   return { rows, outcomes: done, tables, stoppedBy: null };
 }

@@ -8,6 +8,7 @@ import { existsSync, rmSync } from 'node:fs';
 import { isCertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
 import { forecastTable } from '../report/forecast-report.js';
+import { chartAssetSrc } from '../report/html.js';
 import { parseForecastOptions, runForecast } from '../cli/forecast.js';
 import type { CliIO } from '../cli/main.js';
 import { forecastsColumns, forecastsRecords, type BatchRow } from './batch-table.js';
@@ -83,7 +84,8 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
   };
   try {
     const cli = parseForecastOptions(settings.opts);
-    const { run, document } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
+    // report.html loads the chart library the batch folder keeps once (batch/run.ts writes it)
+    const { run, document } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder, { chartLibrarySrc: chartAssetSrc(task.folder) });
     const table = forecastTable(run);
     const columns = forecastsColumns(run.levels);
     // forecasts.csv keeps these columns of the series' forecast.csv, by name

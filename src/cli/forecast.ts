@@ -14,7 +14,7 @@ import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forec
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
 import { forecastCharts, forecastFiles, forecastSummary, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
-import { forecastHtml } from '../report/html-report.js';
+import { forecastHtml, type ReportOptions } from '../report/html-report.js';
 import { writeModelFile } from '../store/model-file.js';
 import { modelBody, storedCombination } from '../store/asserted.js';
 import { replacesOwn } from '../forecast/combine.js';
@@ -125,7 +125,8 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
 /**
  * Runs the main job on one loaded series and writes its outputs; returns the run, its summary
  * and the summary document summary.json holds (the text summary is the caller's: a batch prints
- * none).
+ * none). `reportOptions` says how report.html gets its chart library (a batch passes its shared
+ * copy; by default the page inlines it).
  */
 export async function runForecast(
   series: Series,
@@ -135,6 +136,7 @@ export async function runForecast(
   io: CliIO,
   loadWarnings: string[] = [],
   shownFolder: string = folder,
+  reportOptions: ReportOptions = {},
 ): Promise<{ run: ForecastRun; summary: Record<string, unknown>; document: Record<string, unknown> }> {
   let futureSeries: Series | undefined;
   if (cli.future !== undefined) futureSeries = await loadFuture(cli.future, series, opts, io);
@@ -155,7 +157,7 @@ export async function runForecast(
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
   const document = summaryDocument('forecast', summary);
   files['summary.json'] = summaryJson(document);
-  if (cli.report !== false) files['report.html'] = forecastHtml(run, summary);
+  if (cli.report !== false) files['report.html'] = forecastHtml(run, summary, reportOptions);
   await writeFiles(folder, files);
   const a = run.asserted;
   const story = runStory(run);

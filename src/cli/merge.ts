@@ -5,6 +5,7 @@
 import type { Command } from 'commander';
 import { UsageError } from '../data/errors.js';
 import { mergeBatches } from '../batch/merge.js';
+import { CHART_ASSET } from '../report/html.js';
 import type { CliIO } from './main.js';
 
 export function register(program: Command, io: CliIO): void {
@@ -18,7 +19,7 @@ export function register(program: Command, io: CliIO): void {
       const out = String(opts.out);
       if (folders.includes(out)) throw new UsageError('merge-target', '--out names one of the shard folders', { found: out, expected: 'a new or empty folder' });
       const r = await mergeBatches(folders, out);
-      if (!opts.quiet) io.out(`merged ${r.shards} shards: ${r.series} series, ${r.folders} series folders, batch.csv, batch.json, forecasts.csv${r.report ? ' and index.html' : ''} in ${out}\n`);
+      if (!opts.quiet) io.out(`merged ${r.shards} shards: ${r.series} series, ${r.folders} series folders, batch.csv, batch.json, forecasts.csv${r.report ? `, index.html and ${CHART_ASSET}` : ''} in ${out}\n`);
     });
   program.addHelpText('after', '\nJoin the shards of an array job:\n  certa merge out/shard-1 out/shard-2 out/shard-3 --out out/all\n');
 }

@@ -70,7 +70,6 @@ export function renderBatchIndex(rows: readonly BatchIndexRow[], title = 'certa 
     body,
     '</tbody></table></section>',
     '</main>',
-    `<script>${FILTER_SCRIPT}</script>`,
   ].join('\n');
-  return page(title, html);
+  return page(title, html, [{ inline: FILTER_SCRIPT }]);
 }

@@ -1,7 +1,10 @@
 /**
  * `report.html`: the page a person opens after `certa forecast`. One self-contained file (the
  * chart library, the drawing script, the style and the data inline; nothing fetched), built from
- * a ForecastRun and its summary as a string. Every text that came from the input (series,
+ * a ForecastRun and its summary as a string. In a batch the chart library is instead the one
+ * copy the batch folder keeps (`CHART_ASSET`), loaded by a relative path: the page then carries
+ * a note, shown when that file did not load, saying where the charts come from, while its text
+ * and tables stand on their own. Every text that came from the input (series,
  * column and input names, warnings) is escaped; the data reach the script as escaped JSON.
  *
  * Sections: the caution, the headline, the asserted equation in plain words with its
@@ -21,7 +24,7 @@ import { criterionLabel } from '../select/criteria.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { COEFFICIENT_LEVEL, estimateRows, type CoefficientRow } from './coefficients.js';
 import { runStory } from './forecast-report.js';
-import { chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
+import { CHART_ASSET, chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
 import { palette } from './palette.js';
 import { reportScript } from './report-script.js';
 import { formatTableNumber } from './table-numbers.js';
@@ -247,8 +250,28 @@ function equationSection(run: ForecastRun): string {
 <h3>Coefficients</h3>${coef}${derived}</section>`;
 }
 
-/** The whole `report.html` of a run. `summary` supplies the warnings as summary.json lists them. */
-export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>): string {
+/** How a report gets its chart library. */
+export interface ReportOptions {
+  /**
+   * Load the chart library from this relative URL (a batch's shared copy, e.g.
+   * `../assets/charts.js`) instead of inlining it.
+   */
+  chartLibrarySrc?: string;
+}
+
+/**
+ * The note a report loading the shared chart library carries, hidden until its script finds
+ * that the library did not load (the folder was moved out of its batch folder).
+ */
+function missingChartsNote(src: string): string {
+  return `<section class="caution" id="charts-missing" hidden><p><b>The charts are not shown.</b> This report is part of a batch: it draws its charts with the chart library the batch folder keeps once for all its reports, <code>${esc(CHART_ASSET)}</code>, which this page loads as <code>${esc(src)}</code>, and that file was not found. Open the report inside its batch folder, or put the batch's <code>${esc(CHART_ASSET.split('/')[0])}</code> folder beside this report's folder. The text and the tables below are complete.</p></section>`;
+}
+
+/**
+ * The whole `report.html` of a run. `summary` supplies the warnings as summary.json lists them;
+ * `options.chartLibrarySrc` makes it load the chart library instead of inlining it.
+ */
+export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>, options: ReportOptions = {}): string {
   const { series } = run;
   const f = series.frequency;
   const n = series.values.length;
@@ -259,6 +282,7 @@ export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>)
   const body = [
     '<main>',
     `<header class="top"><h1>${esc(series.name)}</h1><p class="sub">${esc(cadenceName(f, series.step))}, ${n} points, ${esc(formatTime(series.time[0], f))} to ${esc(formatTime(series.time[n - 1], f))} · certa forecast report</p></header>`,
+    ...(options.chartLibrarySrc !== undefined ? [missingChartsNote(options.chartLibrarySrc)] : []),
     `<section class="caution" id="caution"><p><b>Read this first.</b> ${esc(FORECAST_CAUTION)}</p></section>`,
     headline,
     warn,
@@ -269,8 +293,7 @@ export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>)
     residualSection(run),
     '</main>',
     `<script type="application/json" id="certa-data">${scriptJson(pageData(run))}</script>`,
-    `<script>${chartLibraryScript()}</script>`,
-    `<script>${reportScript()}</script>`,
   ].join('\n');
-  return page(`${series.name} · certa report`, body);
+  const library = options.chartLibrarySrc !== undefined ? { src: options.chartLibrarySrc } : { inline: chartLibraryScript() };
+  return page(`${series.name} · certa report`, body, [library, { inline: reportScript() }]);
 }

@@ -1,8 +1,11 @@
 /**
- * Building blocks of certa's HTML pages: escaping, data for inline scripts, the inlined chart
- * library, and the page shell with its style sheet. Every page is one self-contained file: no
- * request leaves it (scripts, styles and data inline; no fonts, images or links to fetch).
+ * Building blocks of certa's HTML pages: escaping, data for inline scripts, the chart library,
+ * and the page shell with its style sheet and content security policy. A page fetches nothing
+ * from any network: its styles and data are inline, its scripts inline too or, for the reports
+ * of a batch, the one copy of the chart library the batch folder keeps (`CHART_ASSET`), loaded
+ * from the local file next to the series folders.
  */
+import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
@@ -49,6 +52,55 @@ export function chartLibraryScript(): string {
   return text;
 }
 
+/**
+ * Where a batch keeps its one copy of the chart library, relative to the batch folder; each
+ * series' report.html loads it from `../` + this path (see `chartAssetSrc`).
+ */
+export const CHART_ASSET = 'assets/charts.js';
+
+/** The `src` of the shared chart library for a page in `folder` (relative to the batch folder, `/`-separated). */
+export function chartAssetSrc(folder: string): string {
+  const depth = folder.split(/[\\/]/).filter((s) => s !== '' && s !== '.').length;
+  return `${'../'.repeat(depth)}${CHART_ASSET}`;
+}
+
+/** A script of a page: its source inline, or a local file loaded by a relative URL. */
+export type PageScript = { inline: string } | { src: string };
+
+const hashes = new Map<string, string>();
+
+/** The CSP hash source of an inline script's or style's text (`'sha256-…'`), remembered per text. */
+export function scriptHash(text: string): string {
+  let h = hashes.get(text);
+  if (h === undefined) {
+    h = `'sha256-${createHash('sha256').update(text, 'utf8').digest('base64')}'`;
+    hashes.set(text, h);
+  }
+  return h;
+}
+
+/**
+ * The content security policy of a page with these scripts: nothing may load from anywhere
+ * (`default-src 'none'`), the one style sheet of every page (`PAGE_STYLE`, by its hash), images
+ * only as data URLs, and scripts only those of the page: each inline one by the hash of its text (so no other inline script or event handler
+ * runs) and, when the page loads a local file, `'self'`. For a page opened from disk Chromium
+ * takes `'self'` as any local file (a source cannot name a relative path, and a hash does not
+ * reach a file:// script, whose integrity cannot be checked without CORS); no network source is
+ * allowed either way.
+ */
+export function pagePolicy(scripts: readonly PageScript[]): string {
+  const sources = [...(scripts.some((s) => 'src' in s) ? ["'self'"] : []), ...scripts.flatMap((s) => ('inline' in s ? [scriptHash(s.inline)] : []))];
+  const script = sources.length > 0 ? sources.join(' ') : "'none'";
+  return `default-src 'none'; script-src ${script}; style-src ${scriptHash(PAGE_STYLE)}; img-src data:`;
+}
+
+/** The `<script>` element of a page script (an inline source holds no `</script`: checked). */
+function scriptElement(s: PageScript): string {
+  if ('src' in s) return `<script src="${escapeHtml(s.src)}"></script>`;
+  if (/<\/script/i.test(s.inline)) throw new Error('an inline script contains </script');
+  return `<script>${s.inline}</script>`;
+}
+
 /** The style sheet every certa page shares. */
 export const PAGE_STYLE = `
 :root { --ink: #1f2a36; --muted: #5d6b78; --rule: #d9dee3; --paper: #fbfaf7; --card: #ffffff;
@@ -86,24 +138,30 @@ tr.best td { font-weight: 600; }
 .tag.bad { background: #fbeaea; color: var(--bad); }
 .tag.good { background: #e8f3ea; color: var(--good); }
 details summary { cursor: pointer; color: var(--accent); }
+code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 13.5px; background: #f3f4f8; padding: 0 3px; border-radius: 3px; }
+.chart.missing { height: auto; }
+.chart.missing canvas { display: none; }
 input.filter { font: inherit; padding: 4px 8px; border: 1px solid var(--rule); border-radius: 4px; width: 320px; }
 `;
 
-/** A whole page: doctype, UTF-8, a content security policy that forbids every fetch, the style, `body`. */
-export function page(title: string, body: string): string {
+/**
+ * A whole page: doctype, UTF-8, the content security policy of its scripts (`pagePolicy`), the
+ * style, `body`, then the scripts in the order given.
+ */
+export function page(title: string, body: string, scripts: readonly PageScript[] = []): string {
   return [
     '<!DOCTYPE html>',
     '<html lang="en">',
     '<head>',
     '<meta charset="utf-8">',
-    // nothing may load from anywhere; inline scripts and styles only
-    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data:">`,
+    `<meta http-equiv="Content-Security-Policy" content="${pagePolicy(scripts)}">`,
     '<meta name="viewport" content="width=device-width, initial-scale=1">',
     `<title>${escapeHtml(title)}</title>`,
     `<style>${PAGE_STYLE}</style>`,
     '</head>',
     '<body>',
     body,
+    ...scripts.map(scriptElement),
     '</body>',
     '</html>',
     '',

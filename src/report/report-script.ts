@@ -1,8 +1,11 @@
 /**
  * The script of the HTML report, run in the browser: it reads the page's data element and draws
- * the charts with Chart.js (inlined beside it), tooltips showing the values under the pointer.
- * Written as a plain function so the compiler checks its syntax; `reportScript` inlines its
- * source. It touches the page only through canvas elements and `textContent`.
+ * the charts with Chart.js (inlined beside it, or loaded just before it from a batch's shared
+ * copy), tooltips showing the values under the pointer. Written as a plain function so the
+ * compiler checks its syntax; `reportScript` inlines its source. It touches the page only through
+ * canvas elements, `textContent`, class names and the `hidden` attribute. When the chart library
+ * did not load, it draws nothing: it shows the page's note on it (`#charts-missing`), and each
+ * chart box says in one line that its chart is missing.
  */
 
 /* The browser globals the script uses (the project compiles without the DOM library). */
@@ -10,6 +13,19 @@ declare const document: any;
 declare function getComputedStyle(element: unknown): { getPropertyValue(name: string): string };
 
 function drawReport(ChartLib: any, data: any): void {
+  if (typeof ChartLib !== 'function') {
+    const note = document.getElementById('charts-missing');
+    if (note) note.hidden = false;
+    for (const box of Array.from(document.querySelectorAll('.chart')) as any[]) {
+      box.className += ' missing';
+      const line = document.createElement('p');
+      line.className = 'note';
+      line.textContent = note ? 'Chart not shown: its chart library did not load (see the note at the top of the page).' : 'Chart not shown: its chart library did not load.';
+      box.appendChild(line);
+    }
+    document.documentElement.setAttribute('data-charts', 'missing');
+    return;
+  }
   const css = getComputedStyle(document.documentElement);
   const color = (name: string, fallback: string): string => css.getPropertyValue(name).trim() || fallback;
   const ink = color('--ink', '#1f2a36');

@@ -64,8 +64,6 @@ export function updateHtml(result: UpdateResult, summary: Record<string, unknown
     fc && story ? forecastSectionHtml(f, fc.times, fc.paths, fc.horizon, story.bands.text) : '',
     '</main>',
     fc ? `<script type="application/json" id="certa-data">${scriptJson(forecastPageData(series, fc.times, fc.paths, fc.horizon))}</script>` : '',
-    fc ? `<script>${chartLibraryScript()}</script>` : '',
-    fc ? `<script>${reportScript()}</script>` : '',
   ].join('\n');
-  return page(`${series.name} · certa update report`, body);
+  return page(`${series.name} · certa update report`, body, fc ? [{ inline: chartLibraryScript() }, { inline: reportScript() }] : []);
 }

@@ -7,7 +7,8 @@ import { createHash } from 'node:crypto';
 import { join, relative, resolve, sep } from 'node:path';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { cleanedStem, folderNames, isSafeFolderName } from '../../src/batch/folder-names.js';
+import { cleanedStem, folderNames, isSafeFolderName, TOP_LEVEL_NAMES } from '../../src/batch/folder-names.js';
+import { CHART_ASSET } from '../../src/report/html.js';
 
 const hash8 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex').slice(0, 8);
 
@@ -40,6 +41,15 @@ describe('folderNames', () => {
     expect(isSafeFolderName('CONTOSO')).toBe(true);
   });
 
+  it('renames the names the batch folder uses at its top, any case: assets, Index.html, batch.csv', () => {
+    for (const n of ['assets', 'ASSETS', 'Index.html', 'batch.csv', 'batch.json', 'forecasts.csv']) {
+      expect(isSafeFolderName(n)).toBe(false);
+      expect(folderNames([n])[0]).toBe(`${n}~${hash8(n)}`);
+    }
+    expect(TOP_LEVEL_NAMES).toContain(CHART_ASSET.split('/')[0]);
+    expect(isSafeFolderName('assets-2025')).toBe(true);
+  });
+
   it('cuts long names to 64 characters plus the hash, and tells apart names equal in their first 64', () => {
     const a = `${'x'.repeat(100)}a`;
     const b = `${'x'.repeat(100)}b`;
@@ -63,7 +73,7 @@ describe('folderNames', () => {
   });
 
   it('is injective, contained and bounded for any set of names (property)', () => {
-    const name = fc.oneof(fc.string({ maxLength: 80 }), fc.constantFrom('a b', 'a_b', 'a/b', '..', 'CON', 'Ä', 'A\u0308', '~', 'x~1'));
+    const name = fc.oneof(fc.string({ maxLength: 80 }), fc.constantFrom('a b', 'a_b', 'a/b', '..', 'CON', 'Ä', 'A\u0308', '~', 'x~1', 'assets', 'Assets', 'index.html'));
     fc.assert(
       fc.property(fc.uniqueArray(name, { maxLength: 30 }), (names) => {
         const f = folderNames(names);
@@ -71,6 +81,7 @@ describe('folderNames', () => {
         for (const x of f) {
           expect(x).toMatch(/^[\p{L}\p{N}_-][\p{L}\p{N}._~-]*$/u);
           expect(Array.from(x).length).toBeLessThanOrEqual(64 + 1 + 64);
+          expect(TOP_LEVEL_NAMES.map((t) => t.toLowerCase())).not.toContain(x.toLowerCase());
         }
       }),
       { seed: 13, numRuns: 300 },

@@ -5,12 +5,13 @@
  * folder names, output independent of the worker count, shards merged equal to one run byte
  * for byte, the --json result shape, --series lists and globs, and --quiet.
  */
-import { mkdtempSync, readdirSync, readFileSync, statSync, writeFileSync, existsSync } from 'node:fs';
+import { cpSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { folderNames } from '../../src/batch/folder-names.js';
 import { rawRecords } from '../../src/batch/csv-records.js';
+import { CHART_ASSET, chartLibraryScript } from '../../src/report/html.js';
 import { ensureBuilt, runCli } from './run-cli.js';
 import { parseResult } from './result.js';
 
@@ -75,7 +76,16 @@ describe('certa forecast on a file of several series', () => {
     const shortFolder = folders[NAMES.indexOf('short')];
     expect(existsSync(join(out, shortFolder))).toBe(false);
     const listed = readdirSync(out).sort();
-    expect(listed).toEqual([...folders.filter((f) => f !== shortFolder), 'batch.csv', 'batch.json', 'forecasts.csv', 'index.html'].sort());
+    expect(listed).toEqual([...folders.filter((f) => f !== shortFolder), 'assets', 'batch.csv', 'batch.json', 'forecasts.csv', 'index.html'].sort());
+    // one copy of the chart library at the top, loaded by every series' report
+    expect(readdirSync(join(out, 'assets'))).toEqual(['charts.js']);
+    expect(readFileSync(join(out, CHART_ASSET), 'utf8')).toBe(chartLibraryScript());
+    for (const f of folders.filter((x) => x !== shortFolder)) {
+      const report = readFileSync(join(out, f, 'report.html'), 'utf8');
+      expect(report).toContain('<script src="../assets/charts.js"></script>');
+      expect(report).not.toContain(chartLibraryScript().slice(0, 200));
+    }
+    expect(r.stdout).toContain(`Wrote batch.csv, batch.json, forecasts.csv, index.html, ${CHART_ASSET} and one folder per forecast series`);
     for (const f of folders.filter((x) => x !== shortFolder)) expect(existsSync(join(out, f, 'forecast.csv'))).toBe(true);
 
     // index.html links the report of every forecast series by its folder, and not the failed one.
@@ -157,7 +167,24 @@ describe('certa forecast on a file of several series', () => {
     const merged = join(dir, 'merged');
     const m = runCli(['merge', shards[2], shards[0], shards[1], '--out', merged]);
     expect(m.code, m.stderr).toBe(0);
-    expect(tree(merged)).toEqual(tree(one));
+    const mergedTree = tree(merged);
+    expect(mergedTree).toEqual(tree(one));
+    // the shared chart library is among the files merged
+    expect(mergedTree.get(CHART_ASSET)).toBe(Buffer.from(chartLibraryScript()).toString('base64'));
+    expect(m.stdout).toContain(`index.html and ${CHART_ASSET}`);
+
+    // a shard whose chart library differs (another version of certa), or lacks it, is refused
+    const altered = join(dir, 'shard-2-altered');
+    cpSync(shards[1], altered, { recursive: true });
+    writeFileSync(join(altered, CHART_ASSET), `${chartLibraryScript()}\n`);
+    const differs = runCli(['merge', shards[0], altered, shards[2], '--out', join(dir, 'merged-altered')]);
+    expect(differs.code).toBe(2);
+    expect(differs.stderr).toMatch(/^certa: .*assets\/charts\.js differs from that of the other shards/);
+    expect(existsSync(join(dir, 'merged-altered'))).toBe(false);
+    rmSync(join(altered, 'assets'), { recursive: true });
+    const lacks = runCli(['merge', shards[0], altered, shards[2], '--out', join(dir, 'merged-lacking')]);
+    expect(lacks.code).toBe(2);
+    expect(lacks.stderr).toMatch(/^certa: .*assets\/charts\.js is missing/);
 
     const missing = runCli(['merge', shards[0], shards[1], '--out', join(dir, 'merged-2')]);
     expect(missing.code).toBe(2);
@@ -165,6 +192,15 @@ describe('certa forecast on a file of several series', () => {
     const full = runCli(['merge', ...shards, '--out', merged]);
     expect(full.code).toBe(2);
     expect(full.stderr).toMatch(/target folder is not empty/);
+  });
+
+  it('--no-report writes no report.html, no index.html and no chart library', () => {
+    const out = join(dir, 'no-report');
+    const r = runCli([...base(), '--out', out, '--series', 'kiosk-*', '--no-report', '--quiet']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(readdirSync(out).sort()).toEqual(['batch.csv', 'batch.json', 'forecasts.csv', 'kiosk-1', 'kiosk-2']);
+    for (const f of ['kiosk-1', 'kiosk-2']) expect(readdirSync(join(out, f))).not.toContain('report.html');
+    expect(JSON.parse(readFileSync(join(out, 'batch.json'), 'utf8')).report).toBe(false);
   });
 
   it('--json prints one result document for the batch, failures with their reason', () => {

@@ -48,6 +48,8 @@ describe.skipIf(skip !== null)('renderBatchIndex in chromium', () => {
     const { page, log } = await openFile(browser, file);
     expect(log.errors).toEqual([]);
     expect(log.requests).toEqual([]);
+    // self-contained: its filter script is inline (admitted by its hash), nothing else is read
+    expect(log.files.map(decodeURI)).toEqual([`file://${file}`]);
     expect(await page.locator('img').count()).toBe(0);
     expect(await page.locator('#series tbody tr').count()).toBe(3);
     await page.fill('#filter', 'kettles');

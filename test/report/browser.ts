@@ -24,20 +24,24 @@ export async function launchBrowser(): Promise<Browser> {
 /** What happened while a page opened: console errors, page errors, requests, dialogs. */
 export interface PageLog {
   errors: string[];
+  /** Requests of anything but a local file or a data URL (a page of certa makes none). */
   requests: string[];
+  /** Local files requested, the page itself first. */
+  files: string[];
   dialogs: string[];
 }
 
 /** Opens a local file, recording every console error, uncaught error, request and dialog. */
 export async function openFile(browser: Browser, file: string, viewport = { width: 1200, height: 900 }): Promise<{ page: Page; log: PageLog }> {
   const page = await browser.newPage({ viewport });
-  const log: PageLog = { errors: [], requests: [], dialogs: [] };
+  const log: PageLog = { errors: [], requests: [], files: [], dialogs: [] };
   page.on('console', (m) => {
     if (m.type() === 'error') log.errors.push(m.text());
   });
   page.on('pageerror', (e) => log.errors.push(String(e)));
   page.on('request', (r) => {
-    if (!r.url().startsWith('file://') && !r.url().startsWith('data:')) log.requests.push(r.url());
+    if (r.url().startsWith('file://')) log.files.push(r.url());
+    else if (!r.url().startsWith('data:')) log.requests.push(r.url());
   });
   page.on('dialog', (d) => {
     log.dialogs.push(d.message());
