@@ -21,7 +21,7 @@
  * @example folderNames(['a_b', 'a b', 'a/b']) → ['a_b', 'a_b~<8 hex>', 'a_b~<8 hex>']
  */
 import { createHash } from 'node:crypto';
-import { CHART_ASSET } from '../report/html.js';
+import { CHART_ASSET_FOLDER } from '../report/html.js';
 
 export const FOLDER_NAME_MAX = 64;
 
@@ -29,7 +29,7 @@ export const FOLDER_NAME_MAX = 64;
  * The names at the top of a batch folder that are not series folders: its tables, its index
  * page and the folder of the chart library the reports share.
  */
-export const TOP_LEVEL_NAMES: readonly string[] = ['batch.csv', 'batch.json', 'forecasts.csv', 'index.html', CHART_ASSET.split('/')[0]];
+export const TOP_LEVEL_NAMES: readonly string[] = ['batch.csv', 'batch.json', 'forecasts.csv', 'index.html', CHART_ASSET_FOLDER];
 
 const TOP_LEVEL = new Set(TOP_LEVEL_NAMES.map((n) => n.toLowerCase()));
 

@@ -168,7 +168,6 @@ export function rollingErrors(
   const first = Math.min(...starts);
   if (first >= n) return null;
   const origins = originGrid(from, first, n, options.maxOrigins ?? DEFAULT_MAX_ORIGINS);
-  if (origins.length === 0) return null;
   // A window counted back from the end is a different set of origins for each history: not shared.
   const runs = shared !== undefined && options.window === undefined && shared.covers(history, from, h) ? shared : new OriginPaths(history, from, h);
   const positive = history.values.every((v) => v > 0);
@@ -241,6 +240,7 @@ export const DEFAULT_MAX_ORIGINS = 32;
  */
 export class OriginPaths {
   private readonly entries = new Map<string, OriginEntry>();
+  private readonly byMember = new WeakMap<CalibrationMember, OriginEntry>();
   /** The history before each origin and the inputs after it, made once for every member. */
   private readonly views = new Map<number, { past: Series; future: Float64Array[] }>();
 
@@ -263,12 +263,7 @@ export class OriginPaths {
 
   /** The member's path from origin o over `lead` steps, or null when it has none there. */
   path(member: CalibrationMember, o: number, lead: number): Float64Array | null {
-    const key = `${member.structure.key}#${member.estimate.active.map((a) => (a ? 1 : 0)).join('')}`;
-    let entry = this.entries.get(key);
-    if (entry === undefined) {
-      entry = { learner: null, thetas: new Map(), paths: new Map() };
-      this.entries.set(key, entry);
-    }
+    const entry = this.entryOf(member);
     const known = entry.paths.get(o);
     if (known !== undefined && known.length >= lead) return known.subarray(0, lead);
     const theta = this.thetaAt(entry, member, o);
@@ -293,6 +288,20 @@ export class OriginPaths {
       return f.subarray(0, lead);
     }
     return long > lead ? simulate(lead) : null;
+  }
+
+  /** The entry of a member's structure and active terms (found once per member object). */
+  private entryOf(member: CalibrationMember): OriginEntry {
+    let entry = this.byMember.get(member);
+    if (entry !== undefined) return entry;
+    const key = `${member.structure.key}#${member.estimate.active.map((a) => (a ? 1 : 0)).join('')}`;
+    entry = this.entries.get(key);
+    if (entry === undefined) {
+      entry = { learner: null, thetas: new Map(), paths: new Map() };
+      this.entries.set(key, entry);
+    }
+    this.byMember.set(member, entry);
+    return entry;
   }
 
   /** The member's coefficients at origin o (null when its learner cannot start or advance there). */

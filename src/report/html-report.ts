@@ -24,7 +24,7 @@ import { criterionLabel } from '../select/criteria.js';
 import { FORECAST_CAUTION } from './cautions.js';
 import { COEFFICIENT_LEVEL, estimateRows, type CoefficientRow } from './coefficients.js';
 import { runStory } from './forecast-report.js';
-import { CHART_ASSET, chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
+import { CHART_ASSET, CHART_ASSET_FOLDER, chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
 import { palette } from './palette.js';
 import { reportScript } from './report-script.js';
 import { formatTableNumber } from './table-numbers.js';
@@ -264,7 +264,7 @@ export interface ReportOptions {
  * that the library did not load (the folder was moved out of its batch folder).
  */
 function missingChartsNote(src: string): string {
-  return `<section class="caution" id="charts-missing" hidden><p><b>The charts are not shown.</b> This report is part of a batch: it draws its charts with the chart library the batch folder keeps once for all its reports, <code>${esc(CHART_ASSET)}</code>, which this page loads as <code>${esc(src)}</code>, and that file was not found. Open the report inside its batch folder, or put the batch's <code>${esc(CHART_ASSET.split('/')[0])}</code> folder beside this report's folder. The text and the tables below are complete.</p></section>`;
+  return `<section class="caution" id="charts-missing" hidden><p><b>The charts are not shown.</b> This report is part of a batch: it draws its charts with the chart library the batch folder keeps once for all its reports, <code>${esc(CHART_ASSET)}</code>, which this page loads as <code>${esc(src)}</code>, and that file was not found. Open the report inside its batch folder, or put the batch's <code>${esc(CHART_ASSET_FOLDER)}</code> folder beside this report's folder. The text and the tables below are complete.</p></section>`;
 }
 
 /**

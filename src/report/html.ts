@@ -58,6 +58,9 @@ export function chartLibraryScript(): string {
  */
 export const CHART_ASSET = 'assets/charts.js';
 
+/** The folder at the top of a batch folder that holds `CHART_ASSET`. */
+export const CHART_ASSET_FOLDER = CHART_ASSET.split('/')[0];
+
 /** The `src` of the shared chart library for a page in `folder` (relative to the batch folder, `/`-separated). */
 export function chartAssetSrc(folder: string): string {
   const depth = folder.split(/[\\/]/).filter((s) => s !== '' && s !== '.').length;
