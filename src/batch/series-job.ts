@@ -7,7 +7,6 @@
 import { existsSync, rmSync } from 'node:fs';
 import { isCertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
-import { forecastTable } from '../report/forecast-report.js';
 import { parseForecastOptions, runForecast } from '../cli/forecast.js';
 import type { CliIO } from '../cli/main.js';
 import { forecastsColumns, forecastsRecords, type BatchRow } from './batch-table.js';
@@ -83,8 +82,7 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
   };
   try {
     const cli = parseForecastOptions(settings.opts);
-    const { run, document } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
-    const table = forecastTable(run);
+    const { run, document, table } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
     const columns = forecastsColumns(run.levels);
     // forecasts.csv keeps these columns of the series' forecast.csv, by name
     const pick = columns.map((c) => table.columns.indexOf(c));

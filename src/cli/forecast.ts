@@ -12,10 +12,11 @@ import type { Series } from '../data/series.js';
 import { loadSeries } from '../data/load.js';
 import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forecast/pipeline.js';
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
-import { forecastCharts, forecastFiles, forecastSummary, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
+import { forecastCharts, forecastFiles, forecastSummary, forecastTable, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
+import type { Table } from '../report/tables.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
 import { forecastHtml } from '../report/html-report.js';
-import { writeModelFile } from '../store/model-file.js';
+import { keepPreviousModel, serializeModel } from '../store/model-file.js';
 import { modelBody, storedCombination } from '../store/asserted.js';
 import { replacesOwn } from '../forecast/combine.js';
 import { addDataOptions, loadSeriesFromCli, parseDataOptions, readDataSource } from './data-options.js';
@@ -123,9 +124,9 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
 }
 
 /**
- * Runs the main job on one loaded series and writes its outputs; returns the run, its summary
- * and the summary document summary.json holds (the text summary is the caller's: a batch prints
- * none).
+ * Runs the main job on one loaded series and writes its outputs; returns the run, its summary,
+ * the summary document summary.json holds and the tidy forecast table forecast.csv holds (the
+ * text summary is the caller's: a batch prints none).
  */
 export async function runForecast(
   series: Series,
@@ -135,7 +136,7 @@ export async function runForecast(
   io: CliIO,
   loadWarnings: string[] = [],
   shownFolder: string = folder,
-): Promise<{ run: ForecastRun; summary: Record<string, unknown>; document: Record<string, unknown> }> {
+): Promise<{ run: ForecastRun } & ForecastOutputs> {
   let futureSeries: Series | undefined;
   if (cli.future !== undefined) futureSeries = await loadFuture(cli.future, series, opts, io);
   const progress = new ProgressReporter(io, `searching ${series.name}`);
@@ -149,14 +150,39 @@ export async function runForecast(
   } finally {
     progress.stop();
   }
-  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run) };
+  return { run, ...(await writeForecast(run, series, cli, folder, loadWarnings, shownFolder)) };
+}
+
+/** What writing a run's folder built on the way, for callers that need it again. */
+export interface ForecastOutputs {
+  summary: Record<string, unknown>;
+  /** The summary document, as summary.json holds it. */
+  document: Record<string, unknown>;
+  /** The tidy forecast table, as forecast.csv holds it. */
+  table: Table;
+}
+
+/**
+ * Writes the folder of a run: the tables, charts, summary.json, report.html and model.json, all
+ * built first, then written side by side (each atomically), model.json after the previous model
+ * file was kept, and one fsync of the folder for all the renames.
+ */
+export async function writeForecast(
+  run: ForecastRun,
+  series: Series,
+  cli: CliForecastOptions,
+  folder: string,
+  loadWarnings: string[] = [],
+  shownFolder: string = folder,
+): Promise<ForecastOutputs> {
+  const table = forecastTable(run);
+  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run, table) };
   if (cli.charts) Object.assign(files, forecastCharts(run));
   const names = [...Object.keys(files), 'model.json', 'summary.json', ...(cli.report !== false ? ['report.html'] : [])].sort();
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
   const document = summaryDocument('forecast', summary);
   files['summary.json'] = summaryJson(document);
   if (cli.report !== false) files['report.html'] = forecastHtml(run, summary);
-  await writeFiles(folder, files);
   const a = run.asserted;
   const story = runStory(run);
   const body = modelBody({ structure: a.structure, learner: a.learner, se: a.estimate.se }, series, {
@@ -176,8 +202,10 @@ export async function runForecast(
     },
     combination: run.forecast.combination && replacesOwn(run.forecast.combination, a.structure.key) ? storedCombination(run.forecast.combination.members) : undefined,
   });
-  await writeModelFile(join(folder, 'model.json'), body, { mkdir: true });
-  return { run, summary, document };
+  files['model.json'] = serializeModel(body);
+  // an earlier model.json in the folder is kept as model.prev.json before it is replaced
+  await writeFiles(folder, files, { 'model.json': () => keepPreviousModel(join(folder, 'model.json')) });
+  return { summary, document, table };
 }
 
 export function register(program: Command, io: CliIO): void {
