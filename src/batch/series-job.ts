@@ -25,7 +25,7 @@ export interface JobSettings {
   opts: Record<string, unknown>;
   /** Notes from loading the file (each series' summary lists them, as for one series). */
   loadNotes: string[];
-  /** Keep the summary document (as summary.json holds it) for --json. */
+  /** Keep the text of summary.json for --json. */
   keepSummary: boolean;
 }
 
@@ -44,7 +44,8 @@ export interface SeriesOutcome {
   row: BatchRow;
   /** forecasts.csv records of this series (no header); '' when it failed. */
   forecasts: string;
-  summary: Record<string, unknown> | null;
+  /** The text of the series' summary.json when the settings keep it (for --json), else null. */
+  summaryJson: string | null;
   error: JobError | null;
 }
 
@@ -82,7 +83,7 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
   };
   try {
     const cli = parseForecastOptions(settings.opts);
-    const { run, document, table } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
+    const { run, summaryJson, table } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder);
     const columns = forecastsColumns(run.levels);
     // forecasts.csv keeps these columns of the series' forecast.csv, by name
     const pick = columns.map((c) => table.columns.indexOf(c));
@@ -100,13 +101,13 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
         warnings: seriesWarnings(task.series.name, run.warnings, settings.loadNotes),
       },
       forecasts: forecastsRecords(columns, rows),
-      summary: settings.keepSummary ? document : null,
+      summaryJson: settings.keepSummary ? summaryJson : null,
       error: null,
     };
   } catch (e) {
     if (!existed) rmSync(task.path, { recursive: true, force: true });
     const error = jobError(e);
-    return { row: { ...base, reason: error.line }, forecasts: '', summary: null, error };
+    return { row: { ...base, reason: error.line }, forecasts: '', summaryJson: null, error };
   }
 }
 

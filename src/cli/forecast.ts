@@ -24,8 +24,7 @@ import { addSearchOptions, parseSearchOptions } from './search-options.js';
 import { outputFolder, runClock, writeFiles } from './output.js';
 import type { CliIO } from './main.js';
 import { ProgressReporter } from './progress.js';
-import { resultDocument, summaryDocument } from '../report/result-json.js';
-import { toJson } from '../report/tables.js';
+import { resultDocumentText, summaryDocument } from '../report/result-json.js';
 import { addBatchOptions, parseBatchOptions, runForecastBatch } from './batch.js';
 
 export function addForecastOptions(command: Command): Command {
@@ -158,6 +157,8 @@ export interface ForecastOutputs {
   summary: Record<string, unknown>;
   /** The summary document, as summary.json holds it. */
   document: Record<string, unknown>;
+  /** The text of summary.json (the document written by `toJson`). */
+  summaryJson: string;
   /** The tidy forecast table, as forecast.csv holds it. */
   table: Table;
 }
@@ -181,7 +182,8 @@ export async function writeForecast(
   const names = [...Object.keys(files), 'model.json', 'summary.json', ...(cli.report !== false ? ['report.html'] : [])].sort();
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
   const document = summaryDocument('forecast', summary);
-  files['summary.json'] = summaryJson(document);
+  const summaryText = summaryJson(document);
+  files['summary.json'] = summaryText;
   if (cli.report !== false) files['report.html'] = forecastHtml(run, summary);
   const a = run.asserted;
   const story = runStory(run);
@@ -205,7 +207,7 @@ export async function writeForecast(
   files['model.json'] = serializeModel(body);
   // an earlier model.json in the folder is kept as model.prev.json before it is replaced
   await writeFiles(folder, files, { 'model.json': () => keepPreviousModel(join(folder, 'model.json')) });
-  return { summary, document, table };
+  return { summary, document, summaryJson: summaryText, table };
 }
 
 export function register(program: Command, io: CliIO): void {
@@ -224,9 +226,8 @@ export function register(program: Command, io: CliIO): void {
     if (series.length === 1 && report.failed.length === 0 && batch.shard === null) {
       const s = series[0];
       const folder = outputFolder(s, cli.out);
-      const { run, summary, document } = await runForecast(s, cli, folder, opts, io, report.notes);
-      const entry = { series: s.name, status: 'ok' as const, folder, reason: null, detail: document };
-      if (cli.json) io.out(toJson(resultDocument('forecast', [entry])));
+      const { run, summary, summaryJson: detailJson } = await runForecast(s, cli, folder, opts, io, report.notes);
+      if (cli.json) io.out(resultDocumentText('forecast', [{ series: s.name, status: 'ok', folder, reason: null, detailJson }]));
       else if (!batch.quiet) io.out(forecastText(run, summary));
       return;
     }
