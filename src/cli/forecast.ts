@@ -123,9 +123,9 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
 }
 
 /**
- * Runs the main job on one loaded series and writes its outputs; returns the run, its summary,
- * the summary document summary.json holds and the tidy forecast table forecast.csv holds (the
- * text summary is the caller's: a batch prints none).
+ * Runs the main job on one loaded series and writes its outputs; returns the run and what
+ * writing them built (its summary, summary.json as document and as text, the forecast table);
+ * the text summary is the caller's: a batch prints none.
  */
 export async function runForecast(
   series: Series,
