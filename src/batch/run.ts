@@ -70,7 +70,7 @@ export function batchTasks(series: readonly Series[], failedAtLoad: readonly Loa
 function loadFailureOutcome(position: number, f: LoadFailure): SeriesOutcome {
   const error = jobError(f.error);
   const row: BatchRow = { position, series: f.name, folder: null, status: 'failed', reason: error.line, structure: null, holdoutMase: null, bestBaseline: null, baselineMase: null, warnings: [] };
-  return { row, forecasts: '', summary: null, error };
+  return { row, forecasts: '', summaryJson: null, error };
 }
 
 export async function runBatch(series: readonly Series[], failedAtLoad: readonly LoadFailure[], options: BatchOptions): Promise<BatchResult> {

@@ -7,7 +7,6 @@
 import { existsSync, rmSync } from 'node:fs';
 import { isCertaError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
-import { forecastTable } from '../report/forecast-report.js';
 import { chartAssetSrc } from '../report/html.js';
 import { parseForecastOptions, runForecast } from '../cli/forecast.js';
 import type { CliIO } from '../cli/main.js';
@@ -27,7 +26,7 @@ export interface JobSettings {
   opts: Record<string, unknown>;
   /** Notes from loading the file (each series' summary lists them, as for one series). */
   loadNotes: string[];
-  /** Keep the summary document (as summary.json holds it) for --json. */
+  /** Keep the text of summary.json for --json. */
   keepSummary: boolean;
 }
 
@@ -46,7 +45,8 @@ export interface SeriesOutcome {
   row: BatchRow;
   /** forecasts.csv records of this series (no header); '' when it failed. */
   forecasts: string;
-  summary: Record<string, unknown> | null;
+  /** The text of the series' summary.json when the settings keep it (for --json), else null. */
+  summaryJson: string | null;
   error: JobError | null;
 }
 
@@ -85,8 +85,7 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
   try {
     const cli = parseForecastOptions(settings.opts);
     // report.html loads the chart library the batch folder keeps once (batch/run.ts writes it)
-    const { run, document } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder, { chartLibrarySrc: chartAssetSrc(task.folder) });
-    const table = forecastTable(run);
+    const { run, summaryJson, table } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder, { chartLibrarySrc: chartAssetSrc(task.folder) });
     const columns = forecastsColumns(run.levels);
     // forecasts.csv keeps these columns of the series' forecast.csv, by name
     const pick = columns.map((c) => table.columns.indexOf(c));
@@ -104,13 +103,13 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
         warnings: seriesWarnings(task.series.name, run.warnings, settings.loadNotes),
       },
       forecasts: forecastsRecords(columns, rows),
-      summary: settings.keepSummary ? document : null,
+      summaryJson: settings.keepSummary ? summaryJson : null,
       error: null,
     };
   } catch (e) {
     if (!existed) rmSync(task.path, { recursive: true, force: true });
     const error = jobError(e);
-    return { row: { ...base, reason: error.line }, forecasts: '', summary: null, error };
+    return { row: { ...base, reason: error.line }, forecasts: '', summaryJson: null, error };
   }
 }
 

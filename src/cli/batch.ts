@@ -16,8 +16,7 @@ import { failureText } from '../batch/series-job.js';
 import { parseShard, type Shard } from '../batch/shard.js';
 import type { BatchRow } from '../batch/batch-table.js';
 import { FORECAST_CAUTION } from '../report/cautions.js';
-import { resultDocument, type ResultEntry } from '../report/result-json.js';
-import { toJson } from '../report/tables.js';
+import { resultDocumentText, type WrittenResultEntry } from '../report/result-json.js';
 import { BatchProgress } from './progress.js';
 import { ExitRequest, type CliIO } from './main.js';
 import type { parseForecastOptions } from './forecast.js';
@@ -99,14 +98,14 @@ export async function runForecastBatch(
   const rows = result.rows;
   const failed = rows.filter((r) => r.status === 'failed');
   if (cli.json) {
-    const entries: ResultEntry[] = result.outcomes.map((o) => ({
+    const entries: WrittenResultEntry[] = result.outcomes.map((o) => ({
       series: o.row.series,
       status: o.row.status === 'failed' ? 'failed' : 'ok',
       folder: o.row.folder,
       reason: o.row.reason,
-      detail: o.summary,
+      detailJson: o.summaryJson,
     }));
-    io.out(toJson(resultDocument('forecast', entries)));
+    io.out(resultDocumentText('forecast', entries));
   } else if (!batch.quiet) {
     const lines = rows.map(batchLine);
     const shard = batch.shard ? ` (shard ${batch.shard.k} of ${batch.shard.n} of ${series.length + failedAtLoad.length} series in the file)` : '';

@@ -12,10 +12,11 @@ import type { Series } from '../data/series.js';
 import { loadSeries } from '../data/load.js';
 import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forecast/pipeline.js';
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
-import { forecastCharts, forecastFiles, forecastSummary, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
+import { forecastCharts, forecastFiles, forecastSummary, forecastTable, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
+import type { Table } from '../report/tables.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
 import { forecastHtml, type ReportOptions } from '../report/html-report.js';
-import { writeModelFile } from '../store/model-file.js';
+import { keepPreviousModel, serializeModel } from '../store/model-file.js';
 import { modelBody, storedCombination } from '../store/asserted.js';
 import { replacesOwn } from '../forecast/combine.js';
 import { addDataOptions, loadSeriesFromCli, parseDataOptions, readDataSource } from './data-options.js';
@@ -23,8 +24,7 @@ import { addSearchOptions, parseSearchOptions } from './search-options.js';
 import { outputFolder, runClock, writeFiles } from './output.js';
 import type { CliIO } from './main.js';
 import { ProgressReporter } from './progress.js';
-import { resultDocument, summaryDocument } from '../report/result-json.js';
-import { toJson } from '../report/tables.js';
+import { resultDocumentText, summaryDocument } from '../report/result-json.js';
 import { addBatchOptions, parseBatchOptions, runForecastBatch } from './batch.js';
 
 export function addForecastOptions(command: Command): Command {
@@ -123,10 +123,10 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
 }
 
 /**
- * Runs the main job on one loaded series and writes its outputs; returns the run, its summary
- * and the summary document summary.json holds (the text summary is the caller's: a batch prints
- * none). `reportOptions` says how report.html gets its chart library (a batch passes its shared
- * copy; by default the page inlines it).
+ * Runs the main job on one loaded series and writes its outputs; returns the run and what
+ * writing them built (its summary, summary.json as document and as text, the forecast table);
+ * the text summary is the caller's: a batch prints none. `reportOptions` says how report.html
+ * gets its chart library (a batch passes its shared copy; by default the page inlines it).
  */
 export async function runForecast(
   series: Series,
@@ -137,7 +137,7 @@ export async function runForecast(
   loadWarnings: string[] = [],
   shownFolder: string = folder,
   reportOptions: ReportOptions = {},
-): Promise<{ run: ForecastRun; summary: Record<string, unknown>; document: Record<string, unknown> }> {
+): Promise<{ run: ForecastRun } & ForecastOutputs> {
   let futureSeries: Series | undefined;
   if (cli.future !== undefined) futureSeries = await loadFuture(cli.future, series, opts, io);
   const progress = new ProgressReporter(io, `searching ${series.name}`);
@@ -151,14 +151,43 @@ export async function runForecast(
   } finally {
     progress.stop();
   }
-  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run) };
+  return { run, ...(await writeForecast(run, series, cli, folder, loadWarnings, shownFolder, reportOptions)) };
+}
+
+/** What writing a run's folder built on the way, for callers that need it again. */
+export interface ForecastOutputs {
+  summary: Record<string, unknown>;
+  /** The summary document, as summary.json holds it. */
+  document: Record<string, unknown>;
+  /** The text of summary.json (the document written by `toJson`). */
+  summaryJson: string;
+  /** The tidy forecast table, as forecast.csv holds it. */
+  table: Table;
+}
+
+/**
+ * Writes the folder of a run: the tables, charts, summary.json, report.html and model.json, all
+ * built first, then written side by side (each atomically), model.json after the previous model
+ * file was kept, and one fsync of the folder for all the renames.
+ */
+export async function writeForecast(
+  run: ForecastRun,
+  series: Series,
+  cli: CliForecastOptions,
+  folder: string,
+  loadWarnings: string[] = [],
+  shownFolder: string = folder,
+  reportOptions: ReportOptions = {},
+): Promise<ForecastOutputs> {
+  const table = forecastTable(run);
+  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run, table) };
   if (cli.charts) Object.assign(files, forecastCharts(run));
   const names = [...Object.keys(files), 'model.json', 'summary.json', ...(cli.report !== false ? ['report.html'] : [])].sort();
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
   const document = summaryDocument('forecast', summary);
-  files['summary.json'] = summaryJson(document);
+  const summaryText = summaryJson(document);
+  files['summary.json'] = summaryText;
   if (cli.report !== false) files['report.html'] = forecastHtml(run, summary, reportOptions);
-  await writeFiles(folder, files);
   const a = run.asserted;
   const story = runStory(run);
   const body = modelBody({ structure: a.structure, learner: a.learner, se: a.estimate.se }, series, {
@@ -178,8 +207,10 @@ export async function runForecast(
     },
     combination: run.forecast.combination && replacesOwn(run.forecast.combination, a.structure.key) ? storedCombination(run.forecast.combination.members) : undefined,
   });
-  await writeModelFile(join(folder, 'model.json'), body, { mkdir: true });
-  return { run, summary, document };
+  files['model.json'] = serializeModel(body);
+  // an earlier model.json in the folder is kept as model.prev.json before it is replaced
+  await writeFiles(folder, files, { 'model.json': () => keepPreviousModel(join(folder, 'model.json')) });
+  return { summary, document, summaryJson: summaryText, table };
 }
 
 export function register(program: Command, io: CliIO): void {
@@ -198,9 +229,8 @@ export function register(program: Command, io: CliIO): void {
     if (series.length === 1 && report.failed.length === 0 && batch.shard === null) {
       const s = series[0];
       const folder = outputFolder(s, cli.out);
-      const { run, summary, document } = await runForecast(s, cli, folder, opts, io, report.notes);
-      const entry = { series: s.name, status: 'ok' as const, folder, reason: null, detail: document };
-      if (cli.json) io.out(toJson(resultDocument('forecast', [entry])));
+      const { run, summary, summaryJson: detailJson } = await runForecast(s, cli, folder, opts, io, report.notes);
+      if (cli.json) io.out(resultDocumentText('forecast', [{ series: s.name, status: 'ok', folder, reason: null, detailJson }]));
       else if (!batch.quiet) io.out(forecastText(run, summary));
       return;
     }

@@ -28,12 +28,19 @@ export function outputFolder(series: Series, out: string | undefined): string {
 /**
  * Writes each named file into `dir` (created if missing), each atomically (its own temporary
  * file, fsync, rename), the files side by side, then one fsync of the folder for all the renames.
+ * A file named in `before` is replaced only once its step has finished (e.g. keeping the
+ * previous version of it); the other files do not wait for that step.
  */
-export async function writeFiles(dir: string, files: Record<string, string | Uint8Array>): Promise<string[]> {
+export async function writeFiles(dir: string, files: Record<string, string | Uint8Array>, before: Record<string, () => Promise<unknown>> = {}): Promise<string[]> {
   const names = Object.keys(files).sort();
   if (names.length === 0) return names;
   await mkdirFolder(dir);
-  await Promise.all(names.map((name) => writeFileAtomic(join(dir, name), files[name], { syncFolder: false })));
+  const write = async (name: string): Promise<void> => {
+    const step = Object.prototype.hasOwnProperty.call(before, name) ? before[name] : undefined;
+    if (step) await step();
+    await writeFileAtomic(join(dir, name), files[name], { syncFolder: false });
+  };
+  await Promise.all(names.map(write));
   await syncFolder(dir);
   return names;
 }

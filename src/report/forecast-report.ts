@@ -18,11 +18,22 @@ import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart 
 import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
 import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
 
-/** The account of what a run forecasts: its point and its bands (forecast-story.ts). */
-export function runStory(run: ForecastRun): { point: PointStory; bands: BandStory } {
-  const point = pointStory(run.forecast.combination, run.asserted.structure);
-  return { point, bands: bandStory(run.forecast.paths, point, run.series.time, run.series.frequency, run.series.inputs.length > 0) };
+/**
+ * The account of what a run forecasts: its point and its bands (forecast-story.ts). A run's
+ * files all tell it (summary, model file, charts, report), so it is made once per run and the
+ * same (read-only) account is handed out again.
+ */
+export function runStory(run: ForecastRun): { readonly point: PointStory; readonly bands: BandStory } {
+  let story = stories.get(run);
+  if (story === undefined || story.from !== run.forecast) {
+    const point = pointStory(run.forecast.combination, run.asserted.structure);
+    story = { from: run.forecast, point, bands: bandStory(run.forecast.paths, point, run.series.time, run.series.frequency, run.series.inputs.length > 0) };
+    stories.set(run, story);
+  }
+  return story;
 }
+
+const stories = new WeakMap<ForecastRun, { from: ForecastRun['forecast']; point: PointStory; bands: BandStory }>();
 
 /** The tidy forecast table: one row per time and kind (history, fitted, holdout, forecast). */
 export function forecastTable(run: ForecastRun): Table {
@@ -256,10 +267,10 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   return out;
 }
 
-/** CSV and JSON files of a run, by file name (charts separately). */
-export function forecastFiles(run: ForecastRun): Record<string, string> {
+/** CSV and JSON files of a run, by file name (charts separately); `table` is the run's `forecastTable`. */
+export function forecastFiles(run: ForecastRun, table: Table = forecastTable(run)): Record<string, string> {
   return {
-    'forecast.csv': tableToCsv(forecastTable(run)),
+    'forecast.csv': tableToCsv(table),
     'metrics.csv': tableToCsv(metricsTable(run)),
     'candidates.csv': candidatesCsv(run.search),
   };

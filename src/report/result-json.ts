@@ -10,6 +10,7 @@
  * docs/result.schema.json.
  */
 import { FORECAST_CAUTION } from './cautions.js';
+import { toJson } from './tables.js';
 
 export const RESULT_FORMAT = 'certa-result';
 export const RESULT_VERSION = 1;
@@ -68,4 +69,35 @@ export function resultDocument(command: ResultCommand, entries: ResultEntry[], e
 /** A summary.json document: snake_case keys plus format, version and command. */
 export function summaryDocument(command: 'forecast' | 'update', summary: Record<string, unknown>): Record<string, unknown> {
   return { format: SUMMARY_FORMAT, version: SUMMARY_VERSION, command, ...(snakeKeys(summary) as Record<string, unknown>) };
+}
+
+/** A result entry whose detail is already written: `toJson` of the detail document, or null. */
+export interface WrittenResultEntry extends Omit<ResultEntry, 'detail'> {
+  detailJson: string | null;
+}
+
+/**
+ * `toJson(resultDocument(command, entries))` for entries whose details are already written as
+ * JSON (each a summary.json text: snake_case keys, written by `toJson`), without reading them
+ * back: each detail text is put in place, indented to its depth in the document.
+ */
+export function resultDocumentText(command: ResultCommand, entries: WrittenResultEntry[], extra: { file?: unknown } = {}): string {
+  const envelope = resultDocument(
+    command,
+    entries.map((e) => ({ series: e.series, status: e.status, folder: e.folder, reason: e.reason, detail: null })),
+    extra,
+  );
+  const empty = toJson({ ...envelope, results: [] });
+  if (entries.length === 0) return empty;
+  // strings are written with their line breaks escaped, so this line is the results member only
+  const slot = '\n  "results": [],\n';
+  const at = empty.indexOf(slot);
+  if (at < 0 || empty.indexOf(slot, at + 1) >= 0) throw new Error('resultDocumentText: the results member was not found once');
+  let results = '\n  "results": [';
+  entries.forEach((e, i) => {
+    const detail = e.detailJson === null ? 'null' : e.detailJson.replace(/\n$/, '').replace(/\n/g, '\n      ');
+    results += `${i === 0 ? '' : ','}\n    {\n      "detail": ${detail},\n      "folder": ${JSON.stringify(e.folder)},\n      "reason": ${JSON.stringify(e.reason)},\n      "series": ${JSON.stringify(e.series)},\n      "status": ${JSON.stringify(e.status)}\n    }`;
+  });
+  results += '\n  ],\n';
+  return empty.slice(0, at) + results + empty.slice(at + slot.length);
 }

@@ -22,11 +22,11 @@ export interface Table {
  * @example formatNumber(0.1 + 0.2) === '0.30000000000000004'
  */
 export function formatNumber(x: number): string {
-  if (Number.isNaN(x)) return '';
-  if (x === Number.POSITIVE_INFINITY) return 'Infinity';
-  if (x === Number.NEGATIVE_INFINITY) return '-Infinity';
+  // finite and not zero: the common case, one test
+  if (x - x === 0 && x !== 0) return String(x);
   if (x === 0) return '0';
-  return String(x);
+  if (Number.isNaN(x)) return '';
+  return x > 0 ? 'Infinity' : '-Infinity';
 }
 
 /**
@@ -53,11 +53,20 @@ export function readsAsFormula(text: string): boolean {
 export function csvField(value: Cell): string {
   if (value === null) return '';
   if (typeof value === 'number') return formatNumber(value);
+  return textField(value);
+}
+
+/** `csvField` of a text. */
+function textField(value: string): string {
   if (value === '') return '""';
-  const text = readsAsFormula(value) ? `'${value}` : value;
-  if (/[",\r\n]/.test(text)) return `"${text.replace(/"/g, '""')}"`;
+  const first = value.charCodeAt(0);
+  // = + - @ tab CR: only these can start a formula (readsAsFormula)
+  const text = (first === 61 || first === 43 || first === 45 || first === 64 || first === 9 || first === 13) && readsAsFormula(value) ? `'${value}` : value;
+  if (QUOTED.test(text)) return `"${text.replace(/"/g, '""')}"`;
   return text;
 }
+
+const QUOTED = /[",\r\n]/;
 
 export interface CsvOptions {
   /** Record separator; RFC 4180 prescribes CRLF (the default). */
@@ -72,14 +81,33 @@ export interface CsvOptions {
  */
 export function toCsv(columns: string[], rows: Cell[][], options: CsvOptions = {}): string {
   const nl = options.newline ?? '\r\n';
-  const lines: string[] = [columns.map(csvField).join(',')];
-  rows.forEach((row, i) => {
-    if (row.length !== columns.length) {
-      throw new RangeError(`toCsv: row ${i + 1} has ${row.length} fields, the header has ${columns.length}`);
+  const width = columns.length;
+  let out = columns.map(csvField).join(',') + nl;
+  // texts repeat down a column (series name, kind): each column remembers its last text's field
+  const lastText: (string | undefined)[] = new Array(width).fill(undefined);
+  const lastField: string[] = new Array(width).fill('');
+  for (let i = 0; i < rows.length; i++) {
+    const row = rows[i];
+    if (row.length !== width) {
+      throw new RangeError(`toCsv: row ${i + 1} has ${row.length} fields, the header has ${width}`);
     }
-    lines.push(row.map(csvField).join(','));
-  });
-  return lines.join(nl) + nl;
+    let line = '';
+    for (let j = 0; j < width; j++) {
+      const v = row[j];
+      let field: string;
+      if (typeof v === 'number') field = formatNumber(v);
+      else if (v === null) field = '';
+      else if (v === lastText[j]) field = lastField[j];
+      else {
+        field = textField(v);
+        lastText[j] = v;
+        lastField[j] = field;
+      }
+      line = j === 0 ? field : `${line},${field}`;
+    }
+    out += line + nl;
+  }
+  return out;
 }
 
 /** `toCsv` of a `Table`. */

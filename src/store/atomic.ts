@@ -63,20 +63,51 @@ export async function writeFileAtomic(path: string, data: string | Uint8Array, o
     }
   }
   const tmp = temporaryPath(path);
-  let handle: fsp.FileHandle | undefined;
+  let fd: number | undefined;
   try {
-    handle = await fsp.open(tmp, 'wx', options.mode ?? 0o644);
-    await handle.writeFile(data);
-    await handle.sync();
-    await handle.close();
-    handle = undefined;
-    await fsp.rename(tmp, path);
+    // plain descriptors and callbacks: no file-handle object per write, and a text is encoded
+    // by the write itself rather than first copied into a Buffer
+    fd = await call<number>((done) => fs.open(tmp, 'wx', options.mode ?? 0o644, done));
+    await writeAll(fd, data);
+    const open = fd;
+    await call<void>((done) => fs.fsync(open, done));
+    fd = undefined;
+    await call<void>((done) => fs.close(open, done));
+    await call<void>((done) => fs.rename(tmp, path, done));
   } catch (e) {
-    if (handle) await handle.close().catch(() => undefined);
+    if (fd !== undefined) {
+      const open = fd;
+      await call<void>((done) => fs.close(open, done)).catch(() => undefined);
+    }
     await fsp.rm(tmp, { force: true }).catch(() => undefined);
     throw writeError(path, e);
   }
   if (options.syncFolder !== false) await syncDirectory(dir);
+}
+
+/** A callback-style fs call as a promise. */
+function call<T>(start: (done: (error: NodeJS.ErrnoException | null, value: T) => void) => void): Promise<T> {
+  return new Promise<T>((resolve, reject) => start((error, value) => (error ? reject(error) : resolve(value))));
+}
+
+/** Writes all of `data` at the descriptor's position (a text as UTF-8). */
+async function writeAll(fd: number, data: string | Uint8Array): Promise<void> {
+  let bytes: Uint8Array;
+  if (typeof data === 'string') {
+    if (data.length === 0) return;
+    const written = await call<number>((done) => fs.write(fd, data, null, 'utf8', done));
+    const total = Buffer.byteLength(data, 'utf8');
+    if (written === total) return;
+    // a short write (rare on a regular file): the rest from the encoded bytes
+    bytes = Buffer.from(data, 'utf8').subarray(written);
+  } else bytes = data;
+  let offset = 0;
+  while (offset < bytes.length) {
+    const from = offset;
+    const n = await call<number>((done) => fs.write(fd, bytes, from, bytes.length - from, null, done));
+    if (n <= 0) throw Object.assign(new Error('the file system accepted no bytes'), { code: 'EIO' });
+    offset += n;
+  }
 }
 
 /** fsync of a folder, making the renames done in it durable (see `syncFolder` above). */

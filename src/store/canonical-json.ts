@@ -19,12 +19,142 @@ import { StoreError } from '../data/errors.js';
 
 /** The canonical text of a JSON value (see module comment). */
 export function canonicalJson(value: unknown): string {
-  return write(value, '$', null, '');
+  return texts(value, '  ', '', false).canonical;
 }
 
 /** Sorted-key JSON with two-space indentation, short scalar arrays on one line. */
 export function prettyJson(value: unknown, indent = '  '): string {
-  return write(value, '$', indent, '');
+  return texts(value, indent, '', true).pretty;
+}
+
+/**
+ * `canonicalJson(value)` and `prettyJson(value, indent)` from one walk over the value (keys
+ * sorted once, each number written once). `depth` is put after every line break of the pretty
+ * text, as when it is nested in an outer document at that indentation.
+ */
+export function bothTexts(value: unknown, indent = '  ', depth = ''): { canonical: string; pretty: string } {
+  return texts(value, indent, depth, true);
+}
+
+function texts(value: unknown, indent: string, depth: string, pretty: boolean): { canonical: string; pretty: string } {
+  canonicalOut = '';
+  prettyOut = '';
+  withPretty = pretty;
+  try {
+    emit(value, indent, depth);
+  } catch (e) {
+    canonicalOut = prettyOut = '';
+    // the walk above keeps no paths; the checked walk names the value JSON cannot hold
+    if (e === NOT_JSON) write(value, '$', null, '');
+    throw e;
+  }
+  const out = { canonical: canonicalOut, pretty: prettyOut };
+  canonicalOut = prettyOut = '';
+  return out;
+}
+
+/** Thrown by `emit` at a value JSON cannot hold; `write` then finds its path for the message. */
+const NOT_JSON = new Error('not JSON');
+let canonicalOut = '';
+let prettyOut = '';
+/** Whether `emit` writes the pretty text too (canonicalJson alone needs only the canonical). */
+let withPretty = true;
+
+function scalarText(value: unknown): string | undefined {
+  if (value === null) return 'null';
+  switch (typeof value) {
+    case 'number':
+      if (value - value !== 0) throw NOT_JSON;
+      return value === 0 ? '0' : String(value);
+    case 'string':
+      return JSON.stringify(value);
+    case 'boolean':
+      return value ? 'true' : 'false';
+    case 'object':
+      return undefined;
+    default:
+      throw NOT_JSON;
+  }
+}
+
+/** Appends the value to both texts (the same rules as `write`, without the paths). */
+function emit(value: unknown, indent: string, depth: string): void {
+  const scalar = scalarText(value);
+  if (scalar !== undefined) {
+    canonicalOut += scalar;
+    if (withPretty) prettyOut += scalar;
+    return;
+  }
+  const inner = depth + indent;
+  if (Array.isArray(value)) {
+    const n = value.length;
+    if (n === 0) {
+      canonicalOut += '[]';
+      if (withPretty) prettyOut += '[]';
+      return;
+    }
+    let scalars = true;
+    for (let i = 0; i < n; i++) {
+      const item: unknown = value[i];
+      if (item === undefined) throw NOT_JSON;
+      if (item !== null && typeof item !== 'number' && typeof item !== 'boolean') {
+        scalars = false;
+        break;
+      }
+    }
+    if (scalars) {
+      let line = '';
+      for (let i = 0; i < n; i++) {
+        const item: unknown = value[i];
+        let text: string;
+        if (typeof item === 'number') {
+          if (item - item !== 0) throw NOT_JSON;
+          text = item === 0 ? '0' : String(item);
+        } else text = item === null ? 'null' : item ? 'true' : 'false';
+        if (i === 0) {
+          canonicalOut += `[${text}`;
+          line = `[${text}`;
+        } else {
+          canonicalOut += `,${text}`;
+          line += `, ${text}`;
+        }
+      }
+      canonicalOut += ']';
+      if (withPretty) prettyOut += `${line}]`;
+      return;
+    }
+    for (let i = 0; i < n; i++) {
+      const item: unknown = value[i];
+      if (item === undefined) throw NOT_JSON;
+      canonicalOut += i === 0 ? '[' : ',';
+      if (withPretty) prettyOut += i === 0 ? `[\n${inner}` : `,\n${inner}`;
+      emit(item, indent, inner);
+    }
+    canonicalOut += ']';
+    if (withPretty) prettyOut += `\n${depth}]`;
+    return;
+  }
+  const proto = Object.getPrototypeOf(value);
+  if (proto !== Object.prototype && proto !== null) throw NOT_JSON;
+  const record = value as Record<string, unknown>;
+  const keys = Object.keys(record);
+  let kept = 0;
+  for (let i = 0; i < keys.length; i++) if (record[keys[i]] !== undefined) keys[kept++] = keys[i];
+  keys.length = kept;
+  if (kept === 0) {
+    canonicalOut += '{}';
+    if (withPretty) prettyOut += '{}';
+    return;
+  }
+  keys.sort();
+  for (let i = 0; i < kept; i++) {
+    const name = JSON.stringify(keys[i]);
+    canonicalOut += i === 0 ? `{${name}:` : `,${name}:`;
+    if (withPretty) prettyOut += i === 0 ? `{\n${inner}${name}: ` : `,\n${inner}${name}: `;
+    emit(record[keys[i]], indent, inner);
+  }
+  canonicalOut += '}';
+  if (withPretty) prettyOut += `\n${depth}}`;
 }
 
 function write(value: unknown, path: string, indent: string | null, depth: string): string {

@@ -32,7 +32,7 @@ import { FREQUENCIES } from '../data/calendar.js';
 import { StoreError } from '../data/errors.js';
 import { driftAlarmSchema, driftStateSchema } from '../forecast/drift.js';
 import { writeFileAtomic } from './atomic.js';
-import { canonicalJson, prettyJson } from './canonical-json.js';
+import { bothTexts, canonicalJson } from './canonical-json.js';
 
 export const MODEL_FORMAT = 'certa-model';
 export const MODEL_VERSION = 3;
@@ -187,13 +187,10 @@ export function bodyChecksum(body: unknown): string {
 /** The text of a model file for `body` (validated first; StoreError `invalid-body` if it does not match). */
 export function serializeModel(body: ModelBody): string {
   const valid = validateBody(body, undefined);
-  const header = [
-    `  "format": ${JSON.stringify(MODEL_FORMAT)}`,
-    `  "version": ${MODEL_VERSION}`,
-    `  "checksum": ${JSON.stringify(bodyChecksum(valid))}`,
-    `  "body": ${prettyJson(valid, '  ').replace(/\n/g, '\n  ')}`,
-  ];
-  return `{\n${header.join(',\n')}\n}\n`;
+  // one walk gives the canonical text (hashed) and the pretty text (written), nested one level
+  const { canonical, pretty } = bothTexts(valid, '  ', '  ');
+  const checksum = `sha256:${createHash('sha256').update(canonical, 'utf8').digest('hex')}`;
+  return `{\n  "format": ${JSON.stringify(MODEL_FORMAT)},\n  "version": ${MODEL_VERSION},\n  "checksum": ${JSON.stringify(checksum)},\n  "body": ${pretty}\n}\n`;
 }
 
 /** Reads a model file's text; `file` names it in errors. Refusals as in the module comment. */
@@ -302,29 +299,38 @@ export interface WriteModelResult {
  */
 export async function writeModelFile(path: string, body: ModelBody, options: WriteModelOptions = {}): Promise<WriteModelResult> {
   const text = serializeModel(body);
+  const kept: WriteModelResult = options.keepPrevious ?? true ? await keepPreviousModel(path) : { previous: null, note: null };
+  await writeFileAtomic(path, text, { mkdir: options.mkdir ?? false });
+  return kept;
+}
+
+/**
+ * The first step of `writeModelFile` with `keepPrevious`, for a caller that writes the new text
+ * itself (after this has finished): the current file at `path`, when it is a valid model file,
+ * is copied atomically (and durably) to `previousPath(path)`; a missing file keeps nothing, a
+ * file that does not read as a model is not copied and the note says why.
+ */
+export async function keepPreviousModel(path: string): Promise<WriteModelResult> {
   let previous: string | null = null;
   let note: string | null = null;
-  if (options.keepPrevious ?? true) {
-    const existing = await fsp.readFile(path, 'utf8').catch((e: NodeJS.ErrnoException) => {
-      if (e.code === 'ENOENT') return null;
-      throw new StoreError('read-failed', `could not read the current model file to keep it (${e.code ?? 'unknown'}: ${e.message})`, { file: path });
-    });
-    if (existing !== null) {
-      let valid = true;
-      try {
-        parseModel(existing, path);
-      } catch (e) {
-        if (!(e instanceof StoreError)) throw e;
-        valid = false;
-        note = `the current file was not kept as ${previousPath(path)}: ${e.message}`;
-      }
-      if (valid) {
-        previous = previousPath(path);
-        await writeFileAtomic(previous, existing);
-      }
+  const existing = await fsp.readFile(path, 'utf8').catch((e: NodeJS.ErrnoException) => {
+    if (e.code === 'ENOENT') return null;
+    throw new StoreError('read-failed', `could not read the current model file to keep it (${e.code ?? 'unknown'}: ${e.message})`, { file: path });
+  });
+  if (existing !== null) {
+    let valid = true;
+    try {
+      parseModel(existing, path);
+    } catch (e) {
+      if (!(e instanceof StoreError)) throw e;
+      valid = false;
+      note = `the current file was not kept as ${previousPath(path)}: ${e.message}`;
+    }
+    if (valid) {
+      previous = previousPath(path);
+      await writeFileAtomic(previous, existing);
     }
   }
-  await writeFileAtomic(path, text, { mkdir: options.mkdir ?? false });
   return { previous, note };
 }
 

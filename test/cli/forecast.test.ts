@@ -34,6 +34,7 @@ describe('certa forecast', () => {
       // The second write keeps the first model as model.prev.json; everything else is identical.
       expect(readdirSync(a).sort()).toEqual([...files, 'model.prev.json'].sort());
       for (const f of files) expect(readFileSync(join(a, f)).equals(first.get(f)!), f).toBe(true);
+      expect(readFileSync(join(a, 'model.prev.json')).equals(first.get('model.json')!)).toBe(true);
       expect(ra.stdout).toBe(rb.stdout);
     } finally {
       delete process.env.SOURCE_DATE_EPOCH;

@@ -71,6 +71,24 @@ describe('toCsv', () => {
   });
 });
 
+describe('toCsv against its definition', () => {
+  it('property: each record is its cells through csvField joined by commas (fast-check, seed 17)', () => {
+    const text = fc.oneof(fc.string(), fc.constantFrom('', '=x', '-1.5', '+3e4', '@a', '\tb', 'a,b', 'q"q', 'l\nm'));
+    const cell = fc.oneof(fc.constant(null), fc.double(), fc.integer(), text);
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 5 }), fc.array(fc.array(cell, { minLength: 5, maxLength: 5 }), { maxLength: 12 }), (width, wide) => {
+        const rows = wide.map((r) => r.slice(0, width));
+        // repeated texts down a column take the remembered field
+        if (rows.length > 1) rows[1][0] = rows[0][0];
+        const columns = Array.from({ length: width }, (_, j) => `c${j}`);
+        const expected = [columns, ...rows].map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n';
+        expect(toCsv(columns, rows)).toBe(expected);
+      }),
+      { seed: 17, numRuns: 400 },
+    );
+  });
+});
+
 describe('tableFromRecords / tableFromColumns', () => {
   it('tableFromRecords takes columns in first-seen key order and fills missing keys with null', () => {
     const t = tableFromRecords([{ model: 'naive', mae: 3 }, { model: 'drift', rmse: 4 }]);

@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { StoreError } from '../../src/data/errors.js';
-import { canonicalJson, prettyJson } from '../../src/store/canonical-json.js';
+import { bothTexts, canonicalJson, prettyJson } from '../../src/store/canonical-json.js';
 
 describe('canonicalJson', () => {
   it('sorts members by key at every depth and writes no whitespace', () => {
@@ -67,6 +67,42 @@ describe('prettyJson', () => {
     expect(prettyJson({ b: [1, 2], a: { c: [{ d: null }] } })).toBe(
       '{\n  "a": {\n    "c": [\n      {\n        "d": null\n      }\n    ]\n  },\n  "b": [1, 2]\n}',
     );
+  });
+});
+
+describe('bothTexts', () => {
+  it('gives both texts of one walk: the canonical text, and the pretty text nested at the given depth', () => {
+    const v = { b: [1, -0, true, null], a: { c: [{ d: 'x\ny' }, []], e: {} }, u: undefined };
+    expect(bothTexts(v, '  ', '  ')).toEqual({ canonical: canonicalJson(v), pretty: prettyJson(v).replace(/\n/g, '\n  ') });
+    expect(bothTexts(v, '  ', '  ').pretty).toBe(
+      '{\n    "a": {\n      "c": [\n        {\n          "d": "x\\ny"\n        },\n        []\n      ],\n      "e": {}\n    },\n    "b": [1, 0, true, null]\n  }',
+    );
+  });
+
+  it('property: equals canonicalJson and prettyJson for any JSON value and depth (fast-check, seed 11)', () => {
+    const json = fc.jsonValue().map((v) => JSON.parse(JSON.stringify(v)) as unknown);
+    fc.assert(
+      fc.property(json, fc.constantFrom('', '  ', '    '), (v, depth) => {
+        const both = bothTexts(v, '  ', depth);
+        expect(both.canonical).toBe(canonicalJson(v));
+        expect(both.pretty).toBe(prettyJson(v).replace(/\n/g, `\n${depth}`));
+      }),
+      { seed: 11, numRuns: 300 },
+    );
+  });
+
+  it('refuses what canonicalJson refuses, with the same message naming the path', () => {
+    for (const value of [{ a: { b: [1, 2, Number.NaN] } }, { p: [[1], [2, Infinity]] }, { d: new Date(0) }, [1, undefined]]) {
+      let expected = '';
+      try {
+        canonicalJson(value);
+      } catch (e) {
+        expected = (e as Error).message;
+      }
+      expect(expected).not.toBe('');
+      expect(() => bothTexts(value)).toThrow(StoreError);
+      expect(() => bothTexts(value)).toThrow(expected);
+    }
   });
 });
 
