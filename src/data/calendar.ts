@@ -13,6 +13,40 @@ export const FREQUENCIES: readonly Frequency[] = ['hourly', 'daily', 'weekly', '
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;
 
+/** The UTC calendar fields of a time stamp, as `Date`'s getUTC… methods give them. */
+export interface UtcParts {
+  year: number;
+  /** 0 = January. */
+  month: number;
+  /** Day of the month, 1 … 31. */
+  date: number;
+  hours: number;
+  minutes: number;
+  /** True when the stamp falls on the last day of its month. */
+  monthEnd: boolean;
+}
+
+/**
+ * Fields of the stamps seen lately. A file of many series repeats the same stamps in every
+ * series, and loading reads each stamp's fields several times (frequency, steps, periods), so
+ * the fields are looked up rather than read from a new `Date` each time. Bounded: emptied when
+ * it reaches PARTS_MEMORY entries (the results never depend on what it holds).
+ */
+const partsMemo = new Map<number, UtcParts>();
+const PARTS_MEMORY = 1 << 14;
+
+/** The UTC fields of t (epoch milliseconds), from `Date`, remembered for the next call. */
+export function utcParts(t: number): UtcParts {
+  let p = partsMemo.get(t);
+  if (p === undefined) {
+    const d = new Date(t);
+    p = { year: d.getUTCFullYear(), month: d.getUTCMonth(), date: d.getUTCDate(), hours: d.getUTCHours(), minutes: d.getUTCMinutes(), monthEnd: new Date(t + DAY).getUTCDate() === 1 };
+    if (partsMemo.size >= PARTS_MEMORY) partsMemo.clear();
+    partsMemo.set(t, p);
+  }
+  return p;
+}
+
 /** Coarseness rank, used to check that `--freq` aggregates to a coarser frequency. */
 export function frequencyRank(f: Frequency): number {
   return { index: 0, hourly: 1, daily: 2, weekly: 3, monthly: 4, quarterly: 5, yearly: 6 }[f];
@@ -65,8 +99,8 @@ export function stepTime(t: number, f: Frequency, k: number): number {
     case 'quarterly':
     case 'yearly': {
       const months = f === 'monthly' ? k : f === 'quarterly' ? 3 * k : 12 * k;
-      const d = new Date(t);
-      return Date.UTC(d.getUTCFullYear(), d.getUTCMonth() + months, d.getUTCDate(), d.getUTCHours(), d.getUTCMinutes());
+      const d = utcParts(t);
+      return Date.UTC(d.year, d.month + months, d.date, d.hours, d.minutes);
     }
   }
 }
@@ -85,9 +119,9 @@ export function periodsBetween(a: number, b: number, f: Frequency): number {
     case 'monthly':
     case 'quarterly':
     case 'yearly': {
-      const da = new Date(a);
-      const db = new Date(b);
-      const months = (db.getUTCFullYear() - da.getUTCFullYear()) * 12 + (db.getUTCMonth() - da.getUTCMonth());
+      const da = utcParts(a);
+      const db = utcParts(b);
+      const months = (db.year - da.year) * 12 + (db.month - da.month);
       return f === 'monthly' ? months : f === 'quarterly' ? Math.round(months / 3) : Math.round(months / 12);
     }
   }
@@ -150,14 +184,28 @@ export function periodStart(t: number, f: Frequency): number {
     case 'monthly':
     case 'quarterly':
     case 'yearly': {
-      const d = new Date(t);
-      const m = d.getUTCMonth();
+      const d = utcParts(t);
+      const m = d.month;
       const month = f === 'monthly' ? m : f === 'quarterly' ? m - (m % 3) : 0;
-      const start = new Date(0);
-      start.setUTCFullYear(d.getUTCFullYear(), month, 1);
-      return start.getTime();
+      return monthStart(d.year, month);
     }
   }
+}
+
+/** Epoch milliseconds of the first of month `month` (0-based) of `year`, remembered by month. */
+const monthStarts = new Map<number, number>();
+
+function monthStart(year: number, month: number): number {
+  const key = year * 12 + month;
+  let t = monthStarts.get(key);
+  if (t === undefined) {
+    const start = new Date(0);
+    start.setUTCFullYear(year, month, 1);
+    t = start.getTime();
+    if (monthStarts.size >= PARTS_MEMORY) monthStarts.clear();
+    monthStarts.set(key, t);
+  }
+  return t;
 }
 
 /** The name of one period, for messages: "month", "day", "step" for index. */

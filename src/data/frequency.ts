@@ -18,7 +18,7 @@
  * With a target frequency (`--freq`), stamps that are not whole base periods apart are allowed:
  * they are folded into the target's periods later (regularise.ts), and the step is 1.
  */
-import { cadenceName, periodName, periodStart, periodsBetween, type Frequency } from './calendar.js';
+import { cadenceName, periodName, periodStart, periodsBetween, utcParts, type Frequency } from './calendar.js';
 import { kindFrequency, type TimeKind } from './dates.js';
 import { DataError } from './errors.js';
 
@@ -54,17 +54,13 @@ export interface InferOptions {
 /** A step: a positive number of elapsed milliseconds, or minus a number of whole months. */
 type Step = number;
 
-function isMonthEnd(t: number): boolean {
-  return new Date(t + DAY).getUTCDate() === 1;
-}
-
 function classify(a: number, b: number): Step {
   // No month is shorter than 28 days: shorter steps are elapsed time (the common daily case).
   if (b - a < 28 * DAY) return b - a;
-  const da = new Date(a);
-  const db = new Date(b);
-  if ((a - b) % DAY === 0 && (da.getUTCDate() === db.getUTCDate() || (isMonthEnd(a) && isMonthEnd(b)))) {
-    const months = (db.getUTCFullYear() - da.getUTCFullYear()) * 12 + db.getUTCMonth() - da.getUTCMonth();
+  const da = utcParts(a);
+  const db = utcParts(b);
+  if ((a - b) % DAY === 0 && (da.date === db.date || (da.monthEnd && db.monthEnd))) {
+    const months = (db.year - da.year) * 12 + db.month - da.month;
     if (months > 0) return -months;
   }
   return b - a;
