@@ -10,7 +10,7 @@
  * inputs; the three-input figure is reported.
  *
  * Then `certa search` on a long file of many such series (seeded, each with its own level,
- * pattern and noise; 400 unless SEARCH_SERIES says otherwise): the built CLI as a child process,
+ * pattern and noise; 1,000 unless SEARCH_SERIES says otherwise): the built CLI as a child process,
  * `--quiet`, wall time of the whole command with `--workers 1` and with the default (one worker
  * per core), and the CPU time of each (user plus system, every thread). The two runs write the
  * same bytes, which is checked.
@@ -147,7 +147,7 @@ function cliSearch(file: string, cwd: string, workers: string[]): { wall: number
   return { wall, cpu: user + system, code: p.status, files: treeText(join(cwd, 'out')) };
 }
 
-const many = Number(process.env.SEARCH_SERIES ?? 400);
+const many = Number(process.env.SEARCH_SERIES ?? 1000);
 const work = mkdtempSync(join(tmpdir(), 'certa-search-bench-'));
 const manyFile = manySeriesFile(work, many);
 console.log(`\ncerta search on ${many} monthly series of 120 points, ${availableParallelism()} cores (load average ${loadavg()[0].toFixed(1)})`);
