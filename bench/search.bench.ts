@@ -8,9 +8,18 @@
  * and three inputs the guided search (src/models/arx-inputs.ts).
  * Target on the 2-core reference machine: under 25 ms per series on one core with up to two
  * inputs; the three-input figure is reported.
- * Run: `npm run bench -- search` (or `npx tsx bench/search.bench.ts`).
+ *
+ * Then `certa search` on a long file of many such series (seeded, each with its own level,
+ * pattern and noise; 1,000 unless SEARCH_SERIES says otherwise): the built CLI as a child process,
+ * `--quiet`, wall time of the whole command with `--workers 1` and with the default (one worker
+ * per core), and the CPU time of each (user plus system, every thread). The two runs write the
+ * same bytes, which is checked.
+ * Run: `npm run bench -- search` (or `npx tsx bench/search.bench.ts` after `npm run build`).
  */
-import { loadavg } from 'node:os';
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
+import { join, relative } from 'node:path';
 import type { Series } from '../src/data/series.js';
 import { createRng } from '../src/linalg/random.js';
 import { familyNames } from '../src/models/registry.js';
@@ -88,3 +97,67 @@ for (const [label, series, options] of cases) {
   );
 }
 console.log(`target: default search under 25 ms per series with up to two inputs (load average ${loadavg()[0].toFixed(1)} at the end)`);
+
+/** A long-layout file of `count` monthly series of 120 points, invented (seeded: the same bytes each time). */
+function manySeriesFile(dir: string, count: number): string {
+  const rng = createRng(7_300 + count);
+  const lines = ['stall,month,visits'];
+  for (let k = 0; k < count; k++) {
+    const level = 100 + 400 * rng.uniform();
+    const phi = 0.3 + 0.5 * rng.uniform();
+    const amplitude = 0.05 + 0.2 * rng.uniform();
+    const name = `stall-${String(k + 1).padStart(4, '0')}`;
+    let y = level;
+    for (let t = 0; t < 120; t++) {
+      y = level * (1 - phi) + phi * y + level * amplitude * Math.sin((2 * Math.PI * t) / 12) + 0.03 * level * rng.normal();
+      lines.push(`${name},${2012 + Math.floor(t / 12)}-${String((t % 12) + 1).padStart(2, '0')},${y.toFixed(1)}`);
+    }
+  }
+  const file = join(dir, `stalls-${count}.csv`);
+  writeFileSync(file, `${lines.join('\n')}\n`);
+  return file;
+}
+
+/** Every file under `root` with its bytes, to check that the runs wrote the same. */
+function treeText(root: string): string {
+  const parts: string[] = [];
+  const walk = (d: string): void => {
+    for (const e of readdirSync(d).sort()) {
+      const p = join(d, e);
+      if (statSync(p).isDirectory()) walk(p);
+      else parts.push(`${relative(root, p)}\n${readFileSync(p, 'base64')}`);
+    }
+  };
+  walk(root);
+  return parts.join('\n');
+}
+
+/** The built CLI's `search` on the file into `cwd/out`: wall and CPU seconds, exit code, what it wrote. */
+function cliSearch(file: string, cwd: string, workers: string[]): { wall: number; cpu: number; code: number | null; files: string } {
+  rmSync(join(cwd, 'out'), { recursive: true, force: true });
+  const t0 = performance.now();
+  const p = spawnSync('/usr/bin/time', ['-f', '%U %S', process.execPath, join(process.cwd(), 'bin/certa.js'), 'search', file, '--id', 'stall', '--out', 'out', '--quiet', ...workers], {
+    cwd,
+    encoding: 'utf8',
+    env: { ...process.env, TZ: 'UTC', SOURCE_DATE_EPOCH: '1700000000' },
+  });
+  const wall = (performance.now() - t0) / 1000;
+  if (p.status !== 0) process.stderr.write(p.stderr.slice(0, 2000));
+  const [user, system] = (p.stderr.trim().split('\n').pop() ?? '').split(' ').map(Number);
+  return { wall, cpu: user + system, code: p.status, files: treeText(join(cwd, 'out')) };
+}
+
+const many = Number(process.env.SEARCH_SERIES ?? 1000);
+const work = mkdtempSync(join(tmpdir(), 'certa-search-bench-'));
+const manyFile = manySeriesFile(work, many);
+console.log(`\ncerta search on ${many} monthly series of 120 points, ${availableParallelism()} cores (load average ${loadavg()[0].toFixed(1)})`);
+console.log('workers'.padEnd(20), 'wall (s)', '  CPU (s)', '  ms/series (wall)', '  exit');
+const runs: [string, ReturnType<typeof cliSearch>][] = [
+  ['1', cliSearch(manyFile, work, ['--workers', '1'])],
+  [`default (${availableParallelism()})`, cliSearch(manyFile, work, [])],
+];
+for (const [label, r] of runs) {
+  console.log(label.padEnd(20), r.wall.toFixed(2).padStart(8), r.cpu.toFixed(2).padStart(9), ((1000 * r.wall) / many).toFixed(1).padStart(18), String(r.code).padStart(6));
+}
+console.log(`speed-up ${(runs[0][1].wall / runs[1][1].wall).toFixed(2)}x; the runs wrote ${runs[0][1].files === runs[1][1].files ? 'the same bytes' : 'DIFFERENT bytes'}`);
+rmSync(work, { recursive: true, force: true });

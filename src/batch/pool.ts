@@ -8,15 +8,18 @@
  * The worker entry is `worker.js` next to this module in dist/; when this module runs from the
  * TypeScript sources (tests, benchmarks) it is `worker.ts`, imported after registering tsx's
  * loader in the new thread.
+ *
+ * The pool runs forecast tasks by default (`runPool`); `runJobPool` runs another kind of task
+ * (a `PoolJob`: its function and the worker entry that serves it, e.g. search-worker.ts).
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import { runSeriesJob, type JobSettings, type SeriesOutcome, type SeriesTask } from './series-job.js';
 
-export interface PoolOptions {
+export interface PoolOptions<O = SeriesOutcome> {
   workers: number;
   /** Called after each outcome, in completion order, with how many are done. */
-  onOutcome?: (outcome: SeriesOutcome, done: number) => void;
+  onOutcome?: (outcome: O, done: number) => void;
   /** Stop handing out tasks after the first failure (those running still finish). */
   failFast?: boolean;
 }
@@ -42,13 +45,31 @@ export function defaultWorkers(): number {
   return Math.max(1, availableParallelism());
 }
 
+/**
+ * A kind of task: the function running one (the same in this thread and in a worker; a failure
+ * is an outcome with `error` set, not an exception) and the worker entry next to this module that
+ * runs it in a thread (its name without extension; it takes the settings as workerData, and
+ * answers each `{ index, task }` message with `{ index, outcome }`).
+ */
+export interface PoolJob<T, S, O extends { error: unknown }> {
+  run: (task: T, settings: S) => Promise<O>;
+  entry: string;
+}
+
+const SERIES_JOB: PoolJob<SeriesTask, JobSettings, SeriesOutcome> = { run: runSeriesJob, entry: 'worker' };
+
 /** Outcomes by task index; a task never started (after a failure under failFast) is undefined. */
 export async function runPool(tasks: readonly SeriesTask[], settings: JobSettings, options: PoolOptions): Promise<(SeriesOutcome | undefined)[]> {
-  const outcomes: (SeriesOutcome | undefined)[] = new Array(tasks.length).fill(undefined);
+  return runJobPool(SERIES_JOB, tasks, settings, options);
+}
+
+/** `runPool` for tasks of any kind. */
+export async function runJobPool<T, S, O extends { error: unknown }>(job: PoolJob<T, S, O>, tasks: readonly T[], settings: S, options: PoolOptions<O>): Promise<(O | undefined)[]> {
+  const outcomes: (O | undefined)[] = new Array(tasks.length).fill(undefined);
   const count = Math.max(1, Math.min(options.workers, tasks.length));
   let done = 0;
   let stop = false;
-  const record = (i: number, outcome: SeriesOutcome): void => {
+  const record = (i: number, outcome: O): void => {
     outcomes[i] = outcome;
     done++;
     if (outcome.error && options.failFast) stop = true;
@@ -60,7 +81,7 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
     const lane = async (): Promise<void> => {
       while (!stop && cursor < tasks.length) {
         const i = cursor++;
-        record(i, await runSeriesJob(tasks[i], settings));
+        record(i, await job.run(tasks[i], settings));
       }
     };
     await Promise.all(Array.from({ length: IN_FLIGHT }, lane));
@@ -89,9 +110,9 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
       next++;
     };
     for (let k = 0; k < count; k++) {
-      const w = fromSources ? sourceWorker(settings) : new Worker(new URL('./worker.js', import.meta.url), { workerData: settings, resourceLimits: WORKER_LIMITS });
+      const w = fromSources ? sourceWorker(job.entry, settings) : new Worker(new URL(`./${job.entry}.js`, import.meta.url), { workerData: settings, resourceLimits: WORKER_LIMITS });
       workers.push(w);
-      w.on('message', (m: { index: number; outcome: SeriesOutcome }) => {
+      w.on('message', (m: { index: number; outcome: O }) => {
         running--;
         record(m.index, m.outcome);
         feed(w);
@@ -107,9 +128,9 @@ export async function runPool(tasks: readonly SeriesTask[], settings: JobSetting
   return outcomes;
 }
 
-/** A worker running worker.ts from the sources: it registers the tsx loader, then imports it. */
-function sourceWorker(settings: JobSettings): Worker {
-  const entry = new URL('./worker.ts', import.meta.url).href;
+/** A worker running an entry (worker.ts) from the sources: it registers the tsx loader, then imports it. */
+function sourceWorker(name: string, settings: unknown): Worker {
+  const entry = new URL(`./${name}.ts`, import.meta.url).href;
   const boot = `import('tsx/esm/api').then((m) => { m.register(); return import(${JSON.stringify(entry)}); });`;
   return new Worker(boot, { eval: true, workerData: settings, resourceLimits: WORKER_LIMITS });
 }

@@ -31,12 +31,27 @@ export interface CliBatchOptions {
   quiet: boolean;
 }
 
+const WORKERS_HELP = 'worker threads for a file of several series (default: one per core); the output does not depend on it';
+const QUIET_HELP = 'print nothing on standard output (files, failures on standard error and the exit code still tell)';
+
 export function addBatchOptions(command: Command): Command {
   return command
-    .option('--workers <n>', 'worker threads for a file of several series (default: one per core); the output does not depend on it')
+    .option('--workers <n>', WORKERS_HELP)
     .option('--shard <k/n>', 'process only shard k of n (by a stable hash of the series name), for array jobs; join them with certa merge')
     .option('--fail-fast', 'stop at the first series that cannot be forecast (default: report it and go on, exit code 4)')
-    .option('--quiet', 'print nothing on standard output (files, failures on standard error and the exit code still tell)');
+    .option('--quiet', QUIET_HELP);
+}
+
+/**
+ * The batch options `certa search` takes (parsed by parseBatchOptions too). No --shard: a search
+ * writes no batch tables, so there is nothing for certa merge to join, and --json would hold one
+ * shard's series only.
+ */
+export function addSearchBatchOptions(command: Command): Command {
+  return command
+    .option('--workers <n>', WORKERS_HELP)
+    .option('--fail-fast', 'stop at the first series that cannot be searched (default: report it and go on, exit code 4)')
+    .option('--quiet', QUIET_HELP);
 }
 
 export function parseBatchOptions(opts: Record<string, unknown>): CliBatchOptions {

@@ -7,6 +7,11 @@
  * Output folder: `--out` (default `output/<series name>`). When the file holds several series
  * each gets `<out>/<series name>` (default `output/<series name>`). Files are replaced
  * atomically (store/atomic.ts, store/model-file.ts).
+ *
+ * Several series are searched by the batch pool (batch/pool.ts, `--workers`, one per core by
+ * default; the worker entry is batch/search-worker.ts). What is printed is assembled in file
+ * order, so the files, standard output, the failure lines on standard error and the exit code
+ * are the same whatever the number of workers. One series is searched in this thread.
  */
 import { coefficientLines, coefficientRows, coefficientTerms, COEFFICIENT_LEVEL } from '../report/coefficients.js';
 import { formatTableNumber } from '../report/table-numbers.js';
@@ -27,10 +32,11 @@ import { addDataOptions, loadSeriesFromCli } from './data-options.js';
 import { addSearchOptions, parseSearchOptions } from './search-options.js';
 import { outputFolders, runClock } from './output.js';
 import { ExitRequest, type CliIO } from './main.js';
-import { isCertaError } from '../data/errors.js';
+import { CertaError } from '../data/errors.js';
 import { resultDocument, type ResultEntry } from '../report/result-json.js';
-import { EXIT_SOME_FAILED } from './batch.js';
-import { failureText } from '../batch/series-job.js';
+import { addSearchBatchOptions, EXIT_SOME_FAILED, parseBatchOptions, type CliBatchOptions } from './batch.js';
+import { failureText, jobError, type JobError } from '../batch/series-job.js';
+import { runJobPool, type PoolJob } from '../batch/pool.js';
 
 interface CliSearchOptions {
   search: SearchOptions;
@@ -62,33 +68,115 @@ export function register(program: Command, io: CliIO): void {
     .option('--json', 'print a JSON document instead of text');
   addSearchOptions(command);
   addDataOptions(command);
+  addSearchBatchOptions(command);
   command.action(async (file: string, opts: Record<string, unknown>) => {
     const cli = parseCommandOptions(opts);
+    const batch = parseBatchOptions(opts);
     const { series } = await loadSeriesFromCli(file, opts, io);
     const folders = outputFolders(series, cli.out);
-    const entries: ResultEntry[] = [];
-    const texts: string[] = [];
-    for (let i = 0; i < series.length; i++) {
-      const s = series[i];
-      try {
-        const result = searchSeasons(s, cli.search);
-        const written = await writeOutputs(result, s, folders[i]);
-        const doc = searchDocument(result, cli.top, written);
-        entries.push({ series: s.name, status: 'ok', folder: folders[i], reason: null, detail: doc });
-        texts.push(renderText(doc));
-      } catch (e) {
-        // One series: its error is the command's. Several: report it and go on (exit code 4).
-        if (series.length === 1 || !isCertaError(e)) throw e;
-        const line = failureText(s.name, e.line());
-        io.err(`certa: ${line}\n`);
-        entries.push({ series: s.name, status: 'failed', folder: null, reason: line, detail: null });
-        texts.push(`series "${s.name}": failed: ${e.line()}\n`);
-      }
-    }
-    io.out(cli.json ? `${JSON.stringify(resultDocument('search', entries), null, 2)}\n` : texts.join('\n'));
+    // One series: in this thread, its error is the command's. Several: the pool (exit code 4 when some failed).
+    const outcomes = series.length === 1 ? [await searchOne(series[0], cli, folders[0])] : await searchSeveral(series, folders, opts, batch, io);
+    const entries = outcomes.map((o) => o.entry);
+    if (cli.json) io.out(`${JSON.stringify(resultDocument('search', entries), null, 2)}\n`);
+    else if (!batch.quiet) io.out(outcomes.map((o) => o.text).join('\n'));
     if (entries.some((e) => e.status === 'failed')) throw new ExitRequest(EXIT_SOME_FAILED);
   });
   program.addHelpText('after', '\nFind the equation behind a series:\n  certa search datasets/demo/vallmark-heatpumps.csv --inputs subsidy,frost_index\n');
+}
+
+/** One series of a search over several, as a task of the pool. */
+export interface SearchTask {
+  position: number;
+  series: Series;
+  /** Where its candidates.csv and model.json go. */
+  folder: string;
+}
+
+/** The command's parsed commander options (each worker parses them again). */
+export interface SearchSettings {
+  opts: Record<string, unknown>;
+}
+
+/** What a series' search gives the command: its result entry and text, or its failure. */
+export interface SearchOutcome {
+  position: number;
+  entry: ResultEntry;
+  /** The series' part of the text output: its ranking, or the line of its failure. */
+  text: string;
+  error: JobError | null;
+  /** The stack of a bug, for --debug. */
+  stack: string | null;
+}
+
+/** The search of one series, writing its files; throws what the search or the writes throw. */
+async function searchOne(s: Series, cli: CliSearchOptions, folder: string, position = 1): Promise<SearchOutcome> {
+  const result = searchSeasons(s, cli.search);
+  const written = await writeOutputs(result, s, folder);
+  const doc = searchDocument(result, cli.top, written);
+  return { position, entry: { series: s.name, status: 'ok', folder, reason: null, detail: doc }, text: renderText(doc), error: null, stack: null };
+}
+
+/** A pool task (in a worker or in this thread): a failure is an outcome, not an exception. */
+export async function searchJob(task: SearchTask, settings: SearchSettings): Promise<SearchOutcome> {
+  try {
+    return await searchOne(task.series, parseCommandOptions(settings.opts), task.folder, task.position);
+  } catch (e) {
+    const error = jobError(e);
+    const name = task.series.name;
+    return {
+      position: task.position,
+      entry: { series: name, status: 'failed', folder: null, reason: failureText(name, error.line), detail: null },
+      text: `series "${name}": failed: ${error.line}\n`,
+      error,
+      stack: error.internal && e instanceof Error ? (e.stack ?? null) : null,
+    };
+  }
+}
+
+const SEARCH_JOB: PoolJob<SearchTask, SearchSettings, SearchOutcome> = { run: searchJob, entry: 'search-worker' };
+
+/**
+ * Several series by the pool, outcomes in file order. Each failure's line goes to standard error
+ * as soon as every series before it is done, so the lines come in file order. A bug stops the
+ * command with its error after the failure lines of the series before it; so does any failure
+ * with --fail-fast (series after it may already have been searched and written by then).
+ */
+async function searchSeveral(series: readonly Series[], folders: readonly string[], opts: Record<string, unknown>, batch: CliBatchOptions, io: CliIO): Promise<SearchOutcome[]> {
+  const tasks: SearchTask[] = series.map((s, i) => ({ position: i + 1, series: s, folder: folders[i] }));
+  const outcomes: (SearchOutcome | undefined)[] = new Array(tasks.length).fill(undefined);
+  let shown = 0;
+  let stopper: SearchOutcome | null = null;
+  const show = (): void => {
+    while (!stopper && shown < outcomes.length && outcomes[shown]) {
+      const o = outcomes[shown]!;
+      if (o.error && (o.error.internal || batch.failFast)) stopper = o;
+      else {
+        if (o.error) io.err(`certa: ${o.entry.reason}\n`);
+        shown++;
+      }
+    }
+  };
+  await runJobPool(SEARCH_JOB, tasks, { opts }, {
+    workers: batch.workers,
+    failFast: batch.failFast,
+    onOutcome: (o) => {
+      outcomes[o.position - 1] = o;
+      show();
+    },
+  });
+  if (stopper) throw commandError(stopper);
+  return outcomes as SearchOutcome[];
+}
+
+/** A series' failure as the error of the command. */
+function commandError(o: SearchOutcome): Error {
+  const e = o.error!;
+  if (e.internal) {
+    const err = new Error(e.message);
+    if (o.stack) err.stack = o.stack;
+    return err;
+  }
+  return new CertaError(e.code, o.entry.reason ?? e.line, e.hint ? { hint: e.hint } : {}, e.exitCode);
 }
 
 interface Written {
