@@ -18,7 +18,7 @@ export const EXIT_CODES: ReadonlyArray<readonly [number, string]> = [
   [1, 'a bug in certa (rerun with --debug for the stack trace)'],
   [2, 'a user-caused error: bad file, bad option, data no model can be fitted to'],
   [3, 'a condition asked to fail on: a drift alarm with certa update --fail-on-drift'],
-  [4, 'a batch in which some series failed: the others were completed; see batch.csv and stderr'],
+  [4, 'some series of a file failed: the others were completed; see stderr (and batch.csv of a forecast batch)'],
 ];
 
 /** The exit codes as a help section (the program's and each command's --help end with it). */
