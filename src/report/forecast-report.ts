@@ -75,7 +75,8 @@ export function forecastCsv(run: ForecastRun): { csv: string; records: string } 
   const name = csvField(series.name);
   const nl = '\r\n';
   let csv = columns.map(csvField).join(',') + nl;
-  let records = '';
+  // a batch keeps every series' records to the end: lines joined once into one flat text, not a rope of pieces
+  const records: string[] = [];
   // history and fitted rows leave the point (or value), the rolling point and every band empty
   const noBands = ','.repeat(2 * levels.length);
   const n = series.values.length;
@@ -94,7 +95,7 @@ export function forecastCsv(run: ForecastRun): { csv: string; records: string } 
       const head = `${name},${csvField(formatTime(ev.times[j], f))}${kind}${formatNumber(ev.actual[j])},${formatNumber(ev.fixed.point[j])}`;
       const tail = bandFields(bands, j);
       csv += `${head},${formatNumber(ev.rolling.oneStep[j])}${tail}${nl}`;
-      records += `${head}${tail}${nl}`;
+      records.push(`${head}${tail}${nl}`);
     }
   }
   const paths = run.forecast.paths;
@@ -104,9 +105,9 @@ export function forecastCsv(run: ForecastRun): { csv: string; records: string } 
     const head = `${name},${csvField(formatTime(run.forecast.times[j], f))}${kind}${formatNumber(paths.point[j])}`;
     const tail = bandFields(bands, j);
     csv += `${head},${tail}${nl}`;
-    records += `${head}${tail}${nl}`;
+    records.push(`${head}${tail}${nl}`);
   }
-  return { csv, records };
+  return { csv, records: records.join('') };
 }
 
 /** The bands of a row, one per level (a row of another width is a caller bug, as `toCsv` says). */
