@@ -10,7 +10,7 @@ import type { Series } from '../data/series.js';
 import { chartAssetSrc } from '../report/html.js';
 import { parseForecastOptions, runForecast } from '../cli/forecast.js';
 import type { CliIO } from '../cli/main.js';
-import { forecastsColumns, forecastsRecords, type BatchRow } from './batch-table.js';
+import type { BatchRow } from './batch-table.js';
 
 export interface SeriesTask {
   position: number;
@@ -85,11 +85,8 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
   try {
     const cli = parseForecastOptions(settings.opts);
     // report.html loads the chart library the batch folder keeps once (batch/run.ts writes it)
-    const { run, summaryJson, table } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder, { chartLibrarySrc: chartAssetSrc(task.folder) });
-    const columns = forecastsColumns(run.levels);
-    // forecasts.csv keeps these columns of the series' forecast.csv, by name
-    const pick = columns.map((c) => table.columns.indexOf(c));
-    const rows = table.rows.filter((r) => r[2] === 'holdout' || r[2] === 'forecast').map((r) => pick.map((j) => r[j]));
+    // forecasts.csv keeps the holdout and forecast records of the series' forecast.csv, without rolling_point
+    const { run, summaryJson, forecastRecords } = await runForecast(task.series, cli, task.path, settings.opts, quietIO, settings.loadNotes, task.folder, { chartLibrarySrc: chartAssetSrc(task.folder) });
     const verdict = run.evaluation?.verdict ?? null;
     return {
       row: {
@@ -102,7 +99,7 @@ export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Pro
         baselineMase: verdict ? verdict.baselineMase : null,
         warnings: seriesWarnings(task.series.name, run.warnings, settings.loadNotes),
       },
-      forecasts: forecastsRecords(columns, rows),
+      forecasts: forecastRecords,
       summaryJson: settings.keepSummary ? summaryJson : null,
       error: null,
     };

@@ -12,8 +12,7 @@ import type { Series } from '../data/series.js';
 import { loadSeries } from '../data/load.js';
 import { forecastSeries, type ForecastOptions, type ForecastRun } from '../forecast/pipeline.js';
 import { futureFromSeries, INPUT_POLICIES, type InputPolicy } from '../forecast/future.js';
-import { forecastCharts, forecastFiles, forecastSummary, forecastTable, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
-import type { Table } from '../report/tables.js';
+import { forecastCharts, forecastCsv, forecastFiles, forecastSummary, forecastText, runStory, summaryJson } from '../report/forecast-report.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
 import { forecastHtml, type ReportOptions } from '../report/html-report.js';
 import { keepPreviousModel, serializeModel } from '../store/model-file.js';
@@ -124,7 +123,7 @@ async function loadFuture(file: string, history: Series, opts: Record<string, un
 
 /**
  * Runs the main job on one loaded series and writes its outputs; returns the run and what
- * writing them built (its summary, summary.json as document and as text, the forecast table);
+ * writing them built (its summary, summary.json as document and as text, the forecast records);
  * the text summary is the caller's: a batch prints none. `reportOptions` says how report.html
  * gets its chart library (a batch passes its shared copy; by default the page inlines it).
  */
@@ -161,8 +160,8 @@ export interface ForecastOutputs {
   document: Record<string, unknown>;
   /** The text of summary.json (the document written by `toJson`). */
   summaryJson: string;
-  /** The tidy forecast table, as forecast.csv holds it. */
-  table: Table;
+  /** The holdout and forecast records of forecast.csv as a batch's forecasts.csv holds them (`forecastCsv`). */
+  forecastRecords: string;
 }
 
 /**
@@ -179,8 +178,8 @@ export async function writeForecast(
   shownFolder: string = folder,
   reportOptions: ReportOptions = {},
 ): Promise<ForecastOutputs> {
-  const table = forecastTable(run);
-  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run, table) };
+  const forecast = forecastCsv(run);
+  const files: Record<string, string | Uint8Array> = { ...forecastFiles(run, forecast) };
   if (cli.charts) Object.assign(files, forecastCharts(run));
   const names = [...Object.keys(files), 'model.json', 'summary.json', ...(cli.report !== false ? ['report.html'] : [])].sort();
   const summary = forecastSummary(run, { files: names, outDir: shownFolder, source: series.source, warnings: loadWarnings });
@@ -210,7 +209,7 @@ export async function writeForecast(
   files['model.json'] = serializeModel(body);
   // an earlier model.json in the folder is kept as model.prev.json before it is replaced
   await writeFiles(folder, files, { 'model.json': () => keepPreviousModel(join(folder, 'model.json')) });
-  return { summary, document, summaryJson: summaryText, table };
+  return { summary, document, summaryJson: summaryText, forecastRecords: forecast.records };
 }
 
 export function register(program: Command, io: CliIO): void {

@@ -4,7 +4,7 @@
  */
 import { join } from 'node:path';
 import type { Series } from '../data/series.js';
-import { mkdir } from 'node:fs/promises';
+import { mkdirSync } from 'node:fs';
 import { StoreError } from '../data/errors.js';
 import { syncFolder, writeFileAtomic } from '../store/atomic.js';
 import { folderNames } from '../batch/folder-names.js';
@@ -34,7 +34,7 @@ export function outputFolder(series: Series, out: string | undefined): string {
 export async function writeFiles(dir: string, files: Record<string, string | Uint8Array>, before: Record<string, () => Promise<unknown>> = {}): Promise<string[]> {
   const names = Object.keys(files).sort();
   if (names.length === 0) return names;
-  await mkdirFolder(dir);
+  mkdirFolder(dir);
   const write = async (name: string): Promise<void> => {
     const step = Object.prototype.hasOwnProperty.call(before, name) ? before[name] : undefined;
     if (step) await step();
@@ -45,9 +45,9 @@ export async function writeFiles(dir: string, files: Record<string, string | Uin
   return names;
 }
 
-async function mkdirFolder(dir: string): Promise<void> {
+function mkdirFolder(dir: string): void {
   try {
-    await mkdir(dir, { recursive: true });
+    mkdirSync(dir, { recursive: true });
   } catch (e) {
     const err = e as NodeJS.ErrnoException;
     throw new StoreError('write-failed', `could not create the folder (${err.code ?? 'unknown'}: ${err.message})`, { file: dir });

@@ -144,6 +144,23 @@ export function decimalYear(t: number, f: Frequency): number {
  */
 export function formatTime(t: number, f: Frequency): string {
   if (f === 'index') return String(t);
+  // the same stamps are written again and again (every table, page and series of a batch)
+  let texts = timeTexts.get(f);
+  if (texts === undefined) timeTexts.set(f, (texts = new Map()));
+  let text = texts.get(t);
+  if (text === undefined) {
+    text = timeText(t, f);
+    if (texts.size >= TIME_TEXTS_KEPT) texts.clear();
+    texts.set(t, text);
+  }
+  return text;
+}
+
+/** The texts `formatTime` made, by frequency and time stamp (at most `TIME_TEXTS_KEPT` of each). */
+const timeTexts = new Map<Frequency, Map<number, string>>();
+const TIME_TEXTS_KEPT = 100_000;
+
+function timeText(t: number, f: Exclude<Frequency, 'index'>): string {
   const d = new Date(t);
   const y = String(d.getUTCFullYear()).padStart(4, '0');
   const m = String(d.getUTCMonth() + 1).padStart(2, '0');

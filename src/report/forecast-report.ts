@@ -15,7 +15,7 @@ import { coefficientLines, coefficientTerms, COEFFICIENT_LEVEL, estimateRows } f
 import { formatTableNumber } from './table-numbers.js';
 import { valueFloor } from './chart-axis.js';
 import { forecastChart, historyChart, holdoutChart, rankingChart, residualChart } from './charts.js';
-import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
+import { csvField, formatNumber, tableToCsv, toJson, type Cell, type Table } from './tables.js';
 import { bandStory, headlineLines, memberLines, pointStory, storySubtitle, type BandStory, type PointStory } from './forecast-story.js';
 
 /**
@@ -60,6 +60,67 @@ export function forecastTable(run: ForecastRun): Table {
   }
   rows.push(...forecastRows(name, f, run.forecast.times, run.forecast.paths));
   return { columns, rows };
+}
+
+/**
+ * forecast.csv, the same bytes as `tableToCsv(forecastTable(run))`, written straight from the
+ * run, and from the same fields the records of its holdout and forecast rows without the
+ * rolling_point column, as a batch's forecasts.csv holds them (batch-table.ts, no header): each
+ * number and time stamp is written once for both.
+ */
+export function forecastCsv(run: ForecastRun): { csv: string; records: string } {
+  const { series, levels } = run;
+  const f = series.frequency;
+  const columns = ['series', 'time', 'kind', 'value', 'point', 'rolling_point', ...levels.flatMap((l) => [`lower_${l}`, `upper_${l}`])];
+  const name = csvField(series.name);
+  const nl = '\r\n';
+  let csv = columns.map(csvField).join(',') + nl;
+  // a batch keeps every series' records to the end: lines joined once into one flat text, not a rope of pieces
+  const records: string[] = [];
+  // history and fitted rows leave the point (or value), the rolling point and every band empty
+  const noBands = ','.repeat(2 * levels.length);
+  const n = series.values.length;
+  const nTrain = n - run.holdout;
+  const history = `,${csvField('history')},`;
+  for (let t = 0; t < nTrain; t++) csv += `${name},${csvField(formatTime(series.time[t], f))}${history}${formatNumber(series.values[t])},,${noBands}${nl}`;
+  const fitted = `,${csvField('fitted')},,`;
+  for (let i = 0; i < run.fitted.index.length; i++) {
+    csv += `${name},${csvField(formatTime(series.time[run.fitted.index[i]], f))}${fitted}${formatNumber(run.fitted.values[i])},${noBands}${nl}`;
+  }
+  const ev = run.evaluation;
+  if (ev) {
+    const bands = checkedBands(ev.fixed.bands, levels.length);
+    const kind = `,${csvField('holdout')},`;
+    for (let j = 0; j < ev.holdout; j++) {
+      const head = `${name},${csvField(formatTime(ev.times[j], f))}${kind}${formatNumber(ev.actual[j])},${formatNumber(ev.fixed.point[j])}`;
+      const tail = bandFields(bands, j);
+      csv += `${head},${formatNumber(ev.rolling.oneStep[j])}${tail}${nl}`;
+      records.push(`${head}${tail}${nl}`);
+    }
+  }
+  const paths = run.forecast.paths;
+  const bands = checkedBands(paths.bands, levels.length);
+  const kind = `,${csvField('forecast')},,`;
+  for (let j = 0; j < run.forecast.times.length; j++) {
+    const head = `${name},${csvField(formatTime(run.forecast.times[j], f))}${kind}${formatNumber(paths.point[j])}`;
+    const tail = bandFields(bands, j);
+    csv += `${head},${tail}${nl}`;
+    records.push(`${head}${tail}${nl}`);
+  }
+  return { csv, records: records.join('') };
+}
+
+/** The bands of a row, one per level (a row of another width is a caller bug, as `toCsv` says). */
+function checkedBands<B>(bands: readonly B[], levels: number): readonly B[] {
+  if (bands.length !== levels) throw new RangeError(`forecastCsv: ${bands.length} bands, the header has ${levels} levels`);
+  return bands;
+}
+
+/** `,lower,upper` of each band at step j. */
+function bandFields(bands: readonly { lower: ArrayLike<number>; upper: ArrayLike<number> }[], j: number): string {
+  let out = '';
+  for (const b of bands) out += `,${formatNumber(b.lower[j])},${formatNumber(b.upper[j])}`;
+  return out;
 }
 
 /** The `forecast` rows of the tidy table (columns as in `forecastTable`), one per step. */
@@ -267,10 +328,10 @@ export function forecastCharts(run: ForecastRun): Record<string, Buffer> {
   return out;
 }
 
-/** CSV and JSON files of a run, by file name (charts separately); `table` is the run's `forecastTable`. */
-export function forecastFiles(run: ForecastRun, table: Table = forecastTable(run)): Record<string, string> {
+/** CSV files of a run, by file name (charts separately); `forecast` is the run's `forecastCsv`. */
+export function forecastFiles(run: ForecastRun, forecast: { csv: string } = forecastCsv(run)): Record<string, string> {
   return {
-    'forecast.csv': tableToCsv(table),
+    'forecast.csv': forecast.csv,
     'metrics.csv': tableToCsv(metricsTable(run)),
     'candidates.csv': candidatesCsv(run.search),
   };

@@ -17,8 +17,8 @@ import { cadenceName, formatTime, type Frequency } from '../data/calendar.js';
 import { valueFloor } from './chart-axis.js';
 import type { Series } from '../data/series.js';
 import type { ForecastPaths } from '../forecast/intervals.js';
-import { cumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
-import { OUTSIDE_TWO_SIGMA, RESIDUAL_BOUND, standardisedResiduals } from '../evaluate/standardised-residuals.js';
+import { cumulativePeriodogram, type CumulativePeriodogram } from '../evaluate/cumulative-periodogram.js';
+import { OUTSIDE_TWO_SIGMA, RESIDUAL_BOUND, standardisedResiduals, type StandardisedResiduals } from '../evaluate/standardised-residuals.js';
 import type { ForecastRun } from '../forecast/pipeline.js';
 import { criterionLabel } from '../select/criteria.js';
 import { FORECAST_CAUTION } from './cautions.js';
@@ -101,8 +101,18 @@ export function forecastPageData(series: Series, times: ArrayLike<number>, paths
   };
 }
 
+/** The residual checks of a run's one-step residuals, made once for the page data and the residual section. */
+interface ResidualChecks {
+  cp: CumulativePeriodogram;
+  st: StandardisedResiduals;
+}
+
+function residualChecks(run: ForecastRun): ResidualChecks {
+  return { cp: cumulativePeriodogram(run.fitted.residuals), st: standardisedResiduals(run.fitted.residuals, Math.sqrt(run.asserted.estimate.sigma2)) };
+}
+
 /** The page data the script draws. */
-function pageData(run: ForecastRun): Record<string, unknown> {
+function pageData(run: ForecastRun, { cp, st }: ResidualChecks): Record<string, unknown> {
   const { series } = run;
   const f = series.frequency;
   const floor = valueFloor(series.values);
@@ -122,11 +132,9 @@ function pageData(run: ForecastRun): Record<string, unknown> {
       floor,
     };
   }
-  const cp = cumulativePeriodogram(run.fitted.residuals);
   if (cp.frequency.length >= 2 && Number.isFinite(cp.statistic)) {
     data.periodogram = { frequency: Array.from(cp.frequency), cumulative: arr(cp.cumulative), band: cp.band95 };
   }
-  const st = standardisedResiduals(run.fitted.residuals, Math.sqrt(run.asserted.estimate.sigma2));
   if (st.n > 0) {
     data.residuals = { labels: Array.from(run.fitted.index, (t) => formatTime(series.time[t], f)), values: arr(st.values), bound: RESIDUAL_BOUND, scale: st.scale };
   }
@@ -206,10 +214,8 @@ ${table(['rank', `Δ${crit}`, 'weight', 'structure'], rows, [true, true, true, f
 <p class="note">${s.fitted} fitted; the best 10 shown (candidates.csv lists all).</p>${failed}</section>`;
 }
 
-function residualSection(run: ForecastRun): string {
+function residualSection(run: ForecastRun, { cp, st }: ResidualChecks): string {
   const lb = run.search.winner.whiteness;
-  const cp = cumulativePeriodogram(run.fitted.residuals);
-  const st = standardisedResiduals(run.fitted.residuals, Math.sqrt(run.asserted.estimate.sigma2));
   const lines: string[] = [];
   if (Number.isFinite(lb.pValue)) {
     lines.push(`Ljung–Box over ${lb.lags} lags: Q = ${num(lb.q)}, p = ${num(lb.pValue)} — ${lb.white ? 'no evidence against white residuals' : 'the residuals are not white: some structure is left in them'}.`);
@@ -277,6 +283,7 @@ export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>,
   const n = series.values.length;
   const story = runStory(run);
   const warnings = (summary.warnings as string[] | undefined) ?? run.warnings;
+  const checks = residualChecks(run);
   const headline = `<section id="headline"><h2>In short</h2><p>Point forecast: ${esc(story.point.text)}.</p><p>Bands: ${esc(story.bands.text)}.</p></section>`;
   const warn = warnings.length ? `<section id="warnings"><h2>Warnings</h2><ul class="warnings">${warnings.map((w) => `<li>${esc(w)}</li>`).join('')}</ul></section>` : '';
   const body = [
@@ -290,9 +297,9 @@ export function forecastHtml(run: ForecastRun, summary: Record<string, unknown>,
     forecastSection(run),
     holdoutSection(run),
     candidatesSection(run),
-    residualSection(run),
+    residualSection(run, checks),
     '</main>',
-    `<script type="application/json" id="certa-data">${scriptJson(pageData(run))}</script>`,
+    `<script type="application/json" id="certa-data">${scriptJson(pageData(run, checks))}</script>`,
   ].join('\n');
   const library = options.chartLibrarySrc !== undefined ? { src: options.chartLibrarySrc } : { inline: chartLibraryScript() };
   return page(`${series.name} · certa report`, body, [library, { inline: reportScript() }]);

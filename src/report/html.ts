@@ -18,8 +18,11 @@ const ESCAPES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;'
  * @example escapeHtml('<img src=x>') === '&lt;img src=x&gt;'
  */
 export function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (c) => ESCAPES[c]);
+  return HTML_SPECIAL.test(text) ? text.replace(HTML_SPECIAL_ALL, (c) => ESCAPES[c]) : text;
 }
+
+const HTML_SPECIAL = /[&<>"']/;
+const HTML_SPECIAL_ALL = /[&<>"']/g;
 
 /**
  * JSON for an inline `<script type="application/json">` element: canonical `JSON.stringify`
@@ -28,13 +31,14 @@ export function escapeHtml(text: string): string {
  * gives the value back. Non-finite numbers become null (JSON cannot hold them).
  */
 export function scriptJson(value: unknown): string {
-  return JSON.stringify(value, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v))
-    .replace(/</g, '\\u003c')
-    .replace(/>/g, '\\u003e')
-    .replace(/&/g, '\\u0026')
-    .replace(/\u2028/g, '\\u2028')
-    .replace(/\u2029/g, '\\u2029');
+  // JSON.stringify itself writes NaN and ±Infinity as null
+  const json = JSON.stringify(value);
+  return UNSAFE_IN_SCRIPT.test(json) ? json.replace(UNSAFE_IN_SCRIPT_ALL, (c) => SCRIPT_ESCAPES[c]) : json;
 }
+
+const UNSAFE_IN_SCRIPT = /[<>&\u2028\u2029]/;
+const UNSAFE_IN_SCRIPT_ALL = /[<>&\u2028\u2029]/g;
+const SCRIPT_ESCAPES: Record<string, string> = { '<': '\\u003c', '>': '\\u003e', '&': '\\u0026', '\u2028': '\\u2028', '\u2029': '\\u2029' };
 
 let chartLibrary: string | null = null;
 
@@ -100,9 +104,15 @@ export function pagePolicy(scripts: readonly PageScript[]): string {
 /** The `<script>` element of a page script (an inline source holds no `</script`: checked). */
 function scriptElement(s: PageScript): string {
   if ('src' in s) return `<script src="${escapeHtml(s.src)}"></script>`;
-  if (/<\/script/i.test(s.inline)) throw new Error('an inline script contains </script');
+  if (!safeScripts.has(s.inline)) {
+    if (/<\/script/i.test(s.inline)) throw new Error('an inline script contains </script');
+    safeScripts.add(s.inline);
+  }
   return `<script>${s.inline}</script>`;
 }
+
+/** Inline script texts already checked (every report of a process inlines the same few). */
+const safeScripts = new Set<string>();
 
 /** The style sheet every certa page shares. */
 export const PAGE_STYLE = `

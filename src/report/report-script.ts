@@ -157,7 +157,12 @@ function drawReport(ChartLib: any, data: any): void {
 
 /** The report's inline script: the drawing function, called with the page data. */
 export function reportScript(): string {
+  if (script !== null) return script;
   // a transpiler that keeps function names (tsx, vitest) wraps them in a `__name` helper; the
   // shim makes the inlined source run wherever it was compiled
-  return `(function () { var __name = function (f) { return f; }; (${drawReport.toString()})(window.Chart, JSON.parse(document.getElementById('certa-data').textContent)); })();`;
+  script = `(function () { var __name = function (f) { return f; }; (${drawReport.toString()})(window.Chart, JSON.parse(document.getElementById('certa-data').textContent)); })();`;
+  return script;
 }
+
+/** The text of `reportScript`, made once per process (one string, so its hash and check are found again at once). */
+let script: string | null = null;

@@ -47,8 +47,11 @@ export function snakeKeys(value: unknown): unknown {
   if (value === null || typeof value !== 'object') return value;
   if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return Array.from(value as unknown as ArrayLike<number>);
   if (Array.isArray(value)) return value.map(snakeKeys);
+  const record = value as Record<string, unknown>;
   const out: Record<string, unknown> = {};
-  for (const [k, v] of Object.entries(value as Record<string, unknown>)) out[snakeCase(k)] = snakeKeys(v);
+  // Object.keys, not Object.entries: the same keys in the same order, without a pair per key
+  const keys = Object.keys(record);
+  for (let i = 0; i < keys.length; i++) out[snakeCase(keys[i])] = snakeKeys(record[keys[i]]);
   return out;
 }
 

@@ -13,7 +13,6 @@
  * end in `.tmp`, so a stray one left by a killed process is easy to recognise and is never
  * mistaken for a model file.
  */
-import { promises as fsp } from 'node:fs';
 import * as fs from 'node:fs';
 import * as nodePath from 'node:path';
 import { StoreError } from '../data/errors.js';
@@ -52,12 +51,17 @@ export function isAnyTemporaryName(name: string): boolean {
   return /^\..+\.\d+\.\d+\.tmp$/.test(name);
 }
 
-/** Replaces `path` with `data` atomically (see the module comment). */
+/**
+ * Replaces `path` with `data` atomically (see the module comment). Creating the temporary file,
+ * writing it (into the page cache), closing and renaming it are quick and are made in this
+ * thread; the fsyncs, which wait for the disk, go to the thread pool, so a caller writing
+ * several files has their fsyncs under way side by side while it goes on.
+ */
 export async function writeFileAtomic(path: string, data: string | Uint8Array, options: AtomicWriteOptions = {}): Promise<void> {
   const dir = nodePath.dirname(path);
   if (options.mkdir) {
     try {
-      await fsp.mkdir(dir, { recursive: true });
+      fs.mkdirSync(dir, { recursive: true });
     } catch (e) {
       throw writeError(path, e, 'could not create its folder');
     }
@@ -65,21 +69,20 @@ export async function writeFileAtomic(path: string, data: string | Uint8Array, o
   const tmp = temporaryPath(path);
   let fd: number | undefined;
   try {
-    // plain descriptors and callbacks: no file-handle object per write, and a text is encoded
-    // by the write itself rather than first copied into a Buffer
-    fd = await call<number>((done) => fs.open(tmp, 'wx', options.mode ?? 0o644, done));
-    await writeAll(fd, data);
+    fd = fs.openSync(tmp, 'wx', options.mode ?? 0o644);
+    writeAll(fd, data);
     const open = fd;
     await call<void>((done) => fs.fsync(open, done));
     fd = undefined;
-    await call<void>((done) => fs.close(open, done));
-    await call<void>((done) => fs.rename(tmp, path, done));
+    fs.closeSync(open);
+    fs.renameSync(tmp, path);
   } catch (e) {
-    if (fd !== undefined) {
-      const open = fd;
-      await call<void>((done) => fs.close(open, done)).catch(() => undefined);
+    if (fd !== undefined) closeQuietly(fd);
+    try {
+      fs.rmSync(tmp, { force: true });
+    } catch {
+      // already failing; the original error is the one to report
     }
-    await fsp.rm(tmp, { force: true }).catch(() => undefined);
     throw writeError(path, e);
   }
   if (options.syncFolder !== false) await syncDirectory(dir);
@@ -90,12 +93,12 @@ function call<T>(start: (done: (error: NodeJS.ErrnoException | null, value: T) =
   return new Promise<T>((resolve, reject) => start((error, value) => (error ? reject(error) : resolve(value))));
 }
 
-/** Writes all of `data` at the descriptor's position (a text as UTF-8). */
-async function writeAll(fd: number, data: string | Uint8Array): Promise<void> {
+/** Writes all of `data` at the descriptor's position (a text as UTF-8, encoded by the write itself). */
+function writeAll(fd: number, data: string | Uint8Array): void {
   let bytes: Uint8Array;
   if (typeof data === 'string') {
     if (data.length === 0) return;
-    const written = await call<number>((done) => fs.write(fd, data, null, 'utf8', done));
+    const written = fs.writeSync(fd, data, null, 'utf8');
     const total = Buffer.byteLength(data, 'utf8');
     if (written === total) return;
     // a short write (rare on a regular file): the rest from the encoded bytes
@@ -103,10 +106,17 @@ async function writeAll(fd: number, data: string | Uint8Array): Promise<void> {
   } else bytes = data;
   let offset = 0;
   while (offset < bytes.length) {
-    const from = offset;
-    const n = await call<number>((done) => fs.write(fd, bytes, from, bytes.length - from, null, done));
+    const n = fs.writeSync(fd, bytes, offset, bytes.length - offset, null);
     if (n <= 0) throw Object.assign(new Error('the file system accepted no bytes'), { code: 'EIO' });
     offset += n;
+  }
+}
+
+function closeQuietly(fd: number): void {
+  try {
+    fs.closeSync(fd);
+  } catch {
+    // already failing; the original error is the one to report
   }
 }
 
@@ -154,14 +164,15 @@ export function writeFileAtomicSync(path: string, data: string | Uint8Array, opt
  * a power loss is up to the file system, so those codes are ignored.
  */
 async function syncDirectory(dir: string): Promise<void> {
-  let handle: fsp.FileHandle | undefined;
+  let fd: number | undefined;
   try {
-    handle = await fsp.open(dir, 'r');
-    await handle.sync();
+    fd = fs.openSync(dir, 'r');
+    const open = fd;
+    await call<void>((done) => fs.fsync(open, done));
   } catch (e) {
     if (!isIgnorableDirSyncError(e)) throw writeError(dir, e, 'could not sync the folder after writing');
   } finally {
-    if (handle) await handle.close().catch(() => undefined);
+    if (fd !== undefined) closeQuietly(fd);
   }
 }
 

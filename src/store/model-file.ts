@@ -25,7 +25,7 @@
  * Clocks: `created`, `updated` and log times are supplied by the caller; nothing here reads the
  * clock.
  */
-import { promises as fsp } from 'node:fs';
+import { promises as fsp, readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { FREQUENCIES } from '../data/calendar.js';
@@ -313,10 +313,15 @@ export async function writeModelFile(path: string, body: ModelBody, options: Wri
 export async function keepPreviousModel(path: string): Promise<WriteModelResult> {
   let previous: string | null = null;
   let note: string | null = null;
-  const existing = await fsp.readFile(path, 'utf8').catch((e: NodeJS.ErrnoException) => {
-    if (e.code === 'ENOENT') return null;
-    throw new StoreError('read-failed', `could not read the current model file to keep it (${e.code ?? 'unknown'}: ${e.message})`, { file: path });
-  });
+  // a local read of one small file (most often none is there), made in this thread
+  let existing: string | null;
+  try {
+    existing = readFileSync(path, 'utf8');
+  } catch (error) {
+    const e = error as NodeJS.ErrnoException;
+    if (e.code !== 'ENOENT') throw new StoreError('read-failed', `could not read the current model file to keep it (${e.code ?? 'unknown'}: ${e.message})`, { file: path });
+    existing = null;
+  }
   if (existing !== null) {
     let valid = true;
     try {

@@ -77,3 +77,21 @@ describe('loadSeries on arbitrary bytes and strings (fast-check)', () => {
     await fc.assert(fc.asyncProperty(fc.string({ maxLength: 200, unit: 'grapheme' }), (s) => ok(Buffer.from(s), 'u.csv')), { numRuns: 300, seed: 3 });
   });
 });
+
+describe('formatTime: the texts it keeps', () => {
+  it('gives for a stamp the text an independent writer gives, first asked, asked again, and after its store was cleared', () => {
+    // independent: the ISO text of the instant (hourly: to the minute; monthly: year and month)
+    const hourly = (t: number) => new Date(t).toISOString().slice(0, 16);
+    const monthly = (t: number) => new Date(t).toISOString().slice(0, 7);
+    const t0 = Date.UTC(1990, 0, 1);
+    const hour = 3_600_000;
+    const first = Array.from({ length: 50 }, (_, i) => t0 + i * hour);
+    for (const t of first) expect(formatTime(t, 'hourly')).toBe(hourly(t));
+    // more distinct stamps than the store keeps, so it is cleared on the way
+    for (let i = 0; i < 120_000; i++) formatTime(t0 + i * hour, 'hourly');
+    for (const t of first) expect(formatTime(t, 'hourly')).toBe(hourly(t));
+    // one frequency's texts are never another's
+    for (const t of first) expect(formatTime(t, 'monthly')).toBe(monthly(t));
+    expect(formatTime(t0 + 13 * hour, 'hourly')).toBe('1990-01-01T13:00');
+  });
+});

@@ -8,8 +8,9 @@ import { describe, expect, it } from 'vitest';
 import { parseDelimited } from '../../src/data/csv.js';
 import type { Series } from '../../src/data/series.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { forecastFiles } from '../../src/report/forecast-report.js';
-import { csvField, formatNumber, readsAsFormula, toCsv, type Cell } from '../../src/report/tables.js';
+import { forecastCsv, forecastFiles, forecastTable } from '../../src/report/forecast-report.js';
+import { csvField, formatNumber, readsAsFormula, tableToCsv, toCsv, type Cell } from '../../src/report/tables.js';
+import { forecastsColumns, forecastsRecords } from '../../src/batch/batch-table.js';
 
 /** What a cell should read back as: the text written, apostrophe included, or the number's text. */
 function expected(cell: Cell): string {
@@ -87,5 +88,24 @@ describe('forecastFiles: the CSV outputs of a run with a hostile series name', (
     const valueCol = fcRows[0].indexOf('value');
     const history = fcRows.filter((r) => r[2] === 'history');
     expect(history.map((r) => Number(r[valueCol]))).toEqual(Array.from(values.subarray(0, n - 12)));
+  });
+
+  it('forecastCsv writes the bytes of the tidy table and, for forecasts.csv, its holdout and forecast records without rolling_point', () => {
+    const n = 48;
+    const values = Float64Array.from({ length: n }, (_, t) => 20 + 0.3 * t + 4 * Math.cos((2 * Math.PI * t) / 12) + ((t * 104729) % 11) / 3);
+    const name = '-4+"x", y';
+    const time = Float64Array.from({ length: n }, (_, i) => Date.UTC(2019, i, 1));
+    const series: Series = { name, frequency: 'monthly', season: 12, time, values, inputs: [] };
+    for (const holdout of [0, 10]) {
+      const run = forecastSeries(series, { horizon: 5, holdout, levels: [50, 80, 95] });
+      const table = forecastTable(run);
+      const { csv, records } = forecastCsv(run);
+      expect(csv).toBe(tableToCsv(table));
+      const columns = forecastsColumns(run.levels);
+      const pick = columns.map((c) => table.columns.indexOf(c));
+      const rows = table.rows.filter((r) => r[2] === 'holdout' || r[2] === 'forecast').map((r) => pick.map((j) => r[j]));
+      expect(rows).toHaveLength(holdout + 5);
+      expect(records).toBe(forecastsRecords(columns, rows));
+    }
   });
 });
