@@ -5,34 +5,26 @@
  * folder names, output independent of the worker count, shards merged equal to one run byte
  * for byte, the --json result shape, --series lists and globs, and --quiet.
  */
-import { cpSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync, existsSync } from 'node:fs';
+import { cpSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, relative } from 'node:path';
+import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { folderNames } from '../../src/batch/folder-names.js';
 import { rawRecords } from '../../src/batch/csv-records.js';
 import { CHART_ASSET, chartLibraryScript } from '../../src/report/html.js';
 import { ensureBuilt, runCli } from './run-cli.js';
 import { parseResult } from './result.js';
+import { lcgNoise, fileTree } from './in-process.js';
 
 const NAMES = ['kiosk-1', 'a b', 'a_b', 'a/b', '../x', 'CON', 'short', 'kiosk-2'];
 let dir: string;
 let file: string;
 
-/** Seeded linear congruential noise (Numerical Recipes constants), so the file is the same every run. */
-function noise(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    return s / 2 ** 32 - 0.5;
-  };
-}
-
 function writeFile(): string {
   const rows = ['kiosk,month,sales'];
   NAMES.forEach((name, k) => {
     const n = name === 'short' ? 4 : 36;
-    const r = noise(100 + k);
+    const r = lcgNoise(100 + k);
     for (let t = 0; t < n; t++) {
       const y = 80 + 6 * k + 0.4 * t + 7 * Math.sin((2 * Math.PI * t) / 12) + 3 * r();
       rows.push(`"${name}",${2021 + Math.floor(t / 12)}-${String((t % 12) + 1).padStart(2, '0')},${y.toFixed(2)}`);
@@ -41,20 +33,6 @@ function writeFile(): string {
   const p = join(dir, 'kiosks.csv');
   writeFileSync(p, `${rows.join('\n')}\n`);
   return p;
-}
-
-/** Every file under `root` by relative path, with its bytes. */
-function tree(root: string): Map<string, string> {
-  const out = new Map<string, string>();
-  const walk = (d: string): void => {
-    for (const e of readdirSync(d).sort()) {
-      const p = join(d, e);
-      if (statSync(p).isDirectory()) walk(p);
-      else out.set(relative(root, p), readFileSync(p).toString('base64'));
-    }
-  };
-  walk(root);
-  return out;
 }
 
 const base = () => ['forecast', file, '--id', 'kiosk', '--no-charts', '--horizon', '6'];
@@ -149,9 +127,9 @@ describe('certa forecast on a file of several series', () => {
     const two = join(dir, 'w2');
     expect(runCli([...base(), '--out', one, '--workers', '1', '--quiet']).code).toBe(4);
     expect(runCli([...base(), '--out', two, '--workers', '2', '--quiet']).code).toBe(4);
-    const a = tree(one);
+    const a = fileTree(one);
     expect(a.size).toBeGreaterThan(30);
-    expect(tree(two)).toEqual(a);
+    expect(fileTree(two)).toEqual(a);
   });
 
   it('shards 1/3, 2/3, 3/3 merged equal one run byte for byte; merge refuses a missing shard', () => {
@@ -167,8 +145,9 @@ describe('certa forecast on a file of several series', () => {
     const merged = join(dir, 'merged');
     const m = runCli(['merge', shards[2], shards[0], shards[1], '--out', merged]);
     expect(m.code, m.stderr).toBe(0);
-    const mergedTree = tree(merged);
-    expect(mergedTree).toEqual(tree(one));
+    const mergedTree = fileTree(merged);
+    expect(mergedTree.size).toBeGreaterThan(30);
+    expect(mergedTree).toEqual(fileTree(one));
     // the shared chart library is among the files merged
     expect(mergedTree.get(CHART_ASSET)).toBe(Buffer.from(chartLibraryScript()).toString('base64'));
     expect(m.stdout).toContain(`index.html and ${CHART_ASSET}`);

@@ -8,35 +8,27 @@
  * failures are reported in file order and the others completed (exit 4); --fail-fast stops at
  * the first failure in file order with its error (exit 2); --quiet; the help lists the options.
  */
-import { mkdtempSync, readdirSync, readFileSync, renameSync, statSync, writeFileSync, existsSync } from 'node:fs';
+import { mkdtempSync, renameSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { main, type CliIO } from '../../src/cli/main.js';
+import { main } from '../../src/cli/main.js';
 import { searchJob } from '../../src/cli/search.js';
 import { folderNames } from '../../src/batch/folder-names.js';
 import type { Series } from '../../src/data/series.js';
 import { parseResult } from './result.js';
+import { capture, lcgNoise, fileTree } from './in-process.js';
 
 const NAMES = ['quay-north', 'old pier', 'short', 'mill-steps', 'tiny', 'salt/marsh'];
 const LENGTHS: Record<string, number> = { short: 4, tiny: 3 };
 let dir: string;
 let file: string;
 
-/** Seeded linear congruential noise (Numerical Recipes constants), the same file every run. */
-function noise(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    return s / 2 ** 32 - 0.5;
-  };
-}
-
 function writeFile(): string {
   const rows = ['landing,month,tickets'];
   NAMES.forEach((name, k) => {
     const n = LENGTHS[name] ?? 48;
-    const r = noise(300 + k);
+    const r = lcgNoise(300 + k);
     let prev = 150 + 20 * k;
     for (let t = 0; t < n; t++) {
       prev = 40 + 20 * k * 0.3 + 0.7 * prev + 12 * Math.sin((2 * Math.PI * (t + k)) / 12) + 5 * r();
@@ -48,35 +40,12 @@ function writeFile(): string {
   return p;
 }
 
-function capture(): { io: CliIO; out: () => string; err: () => string } {
-  let out = '';
-  let err = '';
-  return {
-    io: { out: (t) => (out += t), err: (t) => (err += t), stdin: async () => Buffer.from(''), isTTY: false },
-    out: () => out,
-    err: () => err,
-  };
-}
-
 interface Run {
   code: number;
   stdout: string;
   stderr: string;
   /** Every file written, by path relative to --out, with its bytes (base64). */
   files: Map<string, string>;
-}
-
-function tree(root: string): Map<string, string> {
-  const out = new Map<string, string>();
-  const walk = (d: string): void => {
-    for (const e of readdirSync(d).sort()) {
-      const p = join(d, e);
-      if (statSync(p).isDirectory()) walk(p);
-      else out.set(relative(root, p), readFileSync(p).toString('base64'));
-    }
-  };
-  if (existsSync(root)) walk(root);
-  return out;
 }
 
 /**
@@ -86,7 +55,7 @@ function tree(root: string): Map<string, string> {
 async function search(out: string, tag: string, extra: string[]): Promise<Run> {
   const c = capture();
   const code = await main(['node', 'certa', 'search', file, '--id', 'landing', '--out', out, ...extra], c.io);
-  const files = tree(out);
+  const files = fileTree(out);
   if (existsSync(out)) renameSync(out, `${out}-${tag}`);
   return { code, stdout: c.out(), stderr: c.err(), files };
 }
@@ -165,7 +134,7 @@ describe('certa search on several series, by the worker pool', () => {
       }
     }
     expect(all.stdout).toBe(parts.join('\n'));
-    expect(tree(out)).toEqual(all.files);
+    expect(fileTree(out)).toEqual(all.files);
   });
 
   it('--fail-fast stops at the first failure in file order with its error and exit code 2, whatever the workers', async () => {

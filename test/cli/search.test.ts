@@ -2,21 +2,12 @@ import { describe, expect, it } from 'vitest';
 import { mkdtempSync, readFileSync, writeFileSync, existsSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main, type CliIO } from '../../src/cli/main.js';
+import { main } from '../../src/cli/main.js';
 import { parseResult } from './result.js';
+import { capture } from './in-process.js';
 import { readModelFile } from '../../src/store/model-file.js';
 import { structureFromSpec } from '../../src/models/registry.js';
 import { noise, simulateArx } from '../models/arx-fixtures.js';
-
-function capture(): { io: CliIO; out: () => string; err: () => string } {
-  let out = '';
-  let err = '';
-  return {
-    io: { out: (t) => (out += t), err: (t) => (err += t), stdin: async () => Buffer.from(''), isTTY: false },
-    out: () => out,
-    err: () => err,
-  };
-}
 
 /** A monthly CSV: sales_t = 5 + 0.5 sales_{t−1} + 1.5 price_{t−2} + e_t, 2015-01 … 2022-12 (seeded). */
 function writeCsv(dir: string): string {
