@@ -80,6 +80,7 @@ export function parseDelimited(text: string, delimiter: string, file: string, fo
   let width = -1;
   let header: string[] = [];
   let columns: string[][] = [];
+  let pools: CellPool[] = [];
   const rows: number[] = [];
   let fields: string[] = [];
 
@@ -106,7 +107,7 @@ export function parseDelimited(text: string, delimiter: string, file: string, fo
           let k = text.indexOf(delimiter, start);
           if (k < 0 || k > end) k = end;
           if (c >= width) throw tooManyFields(file, recordLine, width, text.slice(pos, end));
-          columns[c].push(text.slice(start, k));
+          columns[c].push(pools[c].take(text.slice(start, k)));
           c++;
           if (k >= end) break;
           start = k + 1;
@@ -116,6 +117,7 @@ export function parseDelimited(text: string, delimiter: string, file: string, fo
       } else {
         fields = text.slice(pos, end).split(delimiter);
         ({ header, columns, width } = startTable(fields, file, recordLine));
+        pools = columns.map(() => new CellPool());
       }
       pos = nl + 1;
       line++;
@@ -183,11 +185,12 @@ export function parseDelimited(text: string, delimiter: string, file: string, fo
     end = pos;
     if (width < 0) {
       ({ header, columns, width } = startTable(fields, file, recordLine));
+      pools = columns.map(() => new CellPool());
       continue;
     }
     if (fields.length > width) throw tooManyFields(file, recordLine, width, fields.join(delimiter));
     if (fields.length < width) throw tooFewFields(file, recordLine, width, fields.length, fields.join(delimiter));
-    for (let c = 0; c < width; c++) columns[c].push(fields[c]);
+    for (let c = 0; c < width; c++) columns[c].push(pools[c].take(fields[c]));
     rows.push(recordLine);
   }
 
@@ -201,6 +204,31 @@ export function parseDelimited(text: string, delimiter: string, file: string, fo
   }
   return { source: file, format, delimiter, header, columns, rows: Int32Array.from(rows) };
 }
+
+/**
+ * The cells of a column that repeat share one string: a long-layout file writes each series'
+ * name and each time stamp again on many rows (10,000 series of 120 months hold 2.4 million such
+ * cells and only 10,120 distinct texts), and keeping one copy of each lowers the memory the
+ * table holds while the series are built from it. A column whose cells are mostly distinct (the
+ * values) stops pooling after POOL_TRIAL cells, when more than half of them were new. The cells'
+ * texts are the same either way.
+ */
+class CellPool {
+  private seen: Map<string, string> | null = new Map();
+  private cells = 0;
+
+  take(cell: string): string {
+    const seen = this.seen;
+    if (seen === null) return cell;
+    this.cells++;
+    const known = seen.get(cell);
+    if (known !== undefined) return known;
+    seen.set(cell, cell);
+    if (this.cells >= POOL_TRIAL && seen.size > this.cells / 2) this.seen = null;
+    return cell;
+  }
+}
+const POOL_TRIAL = 4096;
 
 function startTable(fields: string[], file: string, line: number): { header: string[]; columns: string[][]; width: number } {
   const header = fields.map((f) => f.trim());
