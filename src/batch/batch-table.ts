@@ -57,11 +57,6 @@ export function csvHeader(columns: string[]): string {
   return toCsv(columns, []);
 }
 
-/** The records of one series in forecasts.csv, without the header. */
-export function forecastsRecords(columns: string[], rows: Cell[][]): string {
-  return toCsv(columns, rows).slice(csvHeader(columns).length);
-}
-
 export const BATCH_FORMAT = 'certa-batch';
 export const BATCH_VERSION = 2;
 

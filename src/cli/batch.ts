@@ -31,27 +31,18 @@ export interface CliBatchOptions {
   quiet: boolean;
 }
 
-const WORKERS_HELP = 'worker threads for a file of several series (default: one per core); the output does not depend on it';
-const QUIET_HELP = 'print nothing on standard output (files, failures on standard error and the exit code still tell)';
-
-export function addBatchOptions(command: Command): Command {
-  return command
-    .option('--workers <n>', WORKERS_HELP)
-    .option('--shard <k/n>', 'process only shard k of n (by a stable hash of the series name), for array jobs; join them with certa merge')
-    .option('--fail-fast', 'stop at the first series that cannot be forecast (default: report it and go on, exit code 4)')
-    .option('--quiet', QUIET_HELP);
-}
-
 /**
- * The batch options `certa search` takes (parsed by parseBatchOptions too). No --shard: a search
- * writes no batch tables, so there is nothing for certa merge to join, and --json would hold one
- * shard's series only.
+ * The batch options of a command over the series of a file: `--workers`, `--fail-fast`, `--quiet`
+ * and, for forecast (`shard`), `--shard`. `certa search` takes no --shard: a search writes no
+ * batch tables, so there is nothing for certa merge to join, and --json would hold one shard's
+ * series only. `verb` names what is done to a series in the --fail-fast help.
  */
-export function addSearchBatchOptions(command: Command): Command {
+export function addBatchOptions(command: Command, { shard = true, verb = 'forecast' }: { shard?: boolean; verb?: string } = {}): Command {
+  command.option('--workers <n>', 'worker threads for a file of several series (default: one per core); the output does not depend on it');
+  if (shard) command.option('--shard <k/n>', 'process only shard k of n (by a stable hash of the series name), for array jobs; join them with certa merge');
   return command
-    .option('--workers <n>', WORKERS_HELP)
-    .option('--fail-fast', 'stop at the first series that cannot be searched (default: report it and go on, exit code 4)')
-    .option('--quiet', QUIET_HELP);
+    .option('--fail-fast', `stop at the first series that cannot be ${verb} (default: report it and go on, exit code 4)`)
+    .option('--quiet', 'print nothing on standard output (files, failures on standard error and the exit code still tell)');
 }
 
 export function parseBatchOptions(opts: Record<string, unknown>): CliBatchOptions {

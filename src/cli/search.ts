@@ -34,7 +34,7 @@ import { outputFolders, runClock } from './output.js';
 import { ExitRequest, type CliIO } from './main.js';
 import { CertaError } from '../data/errors.js';
 import { resultDocument, type ResultEntry } from '../report/result-json.js';
-import { addSearchBatchOptions, EXIT_SOME_FAILED, parseBatchOptions, type CliBatchOptions } from './batch.js';
+import { addBatchOptions, EXIT_SOME_FAILED, parseBatchOptions, type CliBatchOptions } from './batch.js';
 import { failureText, jobError, type JobError } from '../batch/series-job.js';
 import { runJobPool, type PoolJob } from '../batch/pool.js';
 
@@ -68,7 +68,7 @@ export function register(program: Command, io: CliIO): void {
     .option('--json', 'print a JSON document instead of text');
   addSearchOptions(command);
   addDataOptions(command);
-  addSearchBatchOptions(command);
+  addBatchOptions(command, { shard: false, verb: 'searched' });
   command.action(async (file: string, opts: Record<string, unknown>) => {
     const cli = parseCommandOptions(opts);
     const batch = parseBatchOptions(opts);

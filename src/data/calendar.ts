@@ -27,25 +27,30 @@ export interface UtcParts {
 }
 
 /**
- * Fields of the stamps seen lately. A file of many series repeats the same stamps in every
- * series, and loading reads each stamp's fields several times (frequency, steps, periods), so
- * the fields are looked up rather than read from a new `Date` each time. Bounded: emptied when
- * it reaches PARTS_MEMORY entries (the results never depend on what it holds).
+ * A function's results remembered by key, at most `limit` of them (emptied when full): the
+ * results never depend on what it holds. A file of many series repeats the same stamps in every
+ * series, and loading and writing read each stamp's fields, period start and text many times.
  */
-const partsMemo = new Map<number, UtcParts>();
+function remembered<V>(make: (key: number) => V, limit: number): (key: number) => V {
+  const kept = new Map<number, V>();
+  return (key) => {
+    let v = kept.get(key);
+    if (v === undefined) {
+      v = make(key);
+      if (kept.size >= limit) kept.clear();
+      kept.set(key, v);
+    }
+    return v;
+  };
+}
+
 const PARTS_MEMORY = 1 << 14;
 
 /** The UTC fields of t (epoch milliseconds), from `Date`, remembered for the next call. */
-export function utcParts(t: number): UtcParts {
-  let p = partsMemo.get(t);
-  if (p === undefined) {
-    const d = new Date(t);
-    p = { year: d.getUTCFullYear(), month: d.getUTCMonth(), date: d.getUTCDate(), hours: d.getUTCHours(), minutes: d.getUTCMinutes(), monthEnd: new Date(t + DAY).getUTCDate() === 1 };
-    if (partsMemo.size >= PARTS_MEMORY) partsMemo.clear();
-    partsMemo.set(t, p);
-  }
-  return p;
-}
+export const utcParts: (t: number) => UtcParts = remembered((t) => {
+  const d = new Date(t);
+  return { year: d.getUTCFullYear(), month: d.getUTCMonth(), date: d.getUTCDate(), hours: d.getUTCHours(), minutes: d.getUTCMinutes(), monthEnd: new Date(t + DAY).getUTCDate() === 1 };
+}, PARTS_MEMORY);
 
 /** Coarseness rank, used to check that `--freq` aggregates to a coarser frequency. */
 export function frequencyRank(f: Frequency): number {
@@ -144,20 +149,13 @@ export function decimalYear(t: number, f: Frequency): number {
  */
 export function formatTime(t: number, f: Frequency): string {
   if (f === 'index') return String(t);
-  // the same stamps are written again and again (every table, page and series of a batch)
   let texts = timeTexts.get(f);
-  if (texts === undefined) timeTexts.set(f, (texts = new Map()));
-  let text = texts.get(t);
-  if (text === undefined) {
-    text = timeText(t, f);
-    if (texts.size >= TIME_TEXTS_KEPT) texts.clear();
-    texts.set(t, text);
-  }
-  return text;
+  if (texts === undefined) timeTexts.set(f, (texts = remembered((t) => timeText(t, f), TIME_TEXTS_KEPT)));
+  return texts(t);
 }
 
-/** The texts `formatTime` made, by frequency and time stamp (at most `TIME_TEXTS_KEPT` of each). */
-const timeTexts = new Map<Frequency, Map<number, string>>();
+/** The texts `formatTime` made, by frequency (at most `TIME_TEXTS_KEPT` of each). */
+const timeTexts = new Map<Frequency, (t: number) => string>();
 const TIME_TEXTS_KEPT = 100_000;
 
 function timeText(t: number, f: Exclude<Frequency, 'index'>): string {
@@ -204,26 +202,18 @@ export function periodStart(t: number, f: Frequency): number {
       const d = utcParts(t);
       const m = d.month;
       const month = f === 'monthly' ? m : f === 'quarterly' ? m - (m % 3) : 0;
-      return monthStart(d.year, month);
+      return monthStart(d.year * 12 + month);
     }
   }
 }
 
-/** Epoch milliseconds of the first of month `month` (0-based) of `year`, remembered by month. */
-const monthStarts = new Map<number, number>();
-
-function monthStart(year: number, month: number): number {
-  const key = year * 12 + month;
-  let t = monthStarts.get(key);
-  if (t === undefined) {
-    const start = new Date(0);
-    start.setUTCFullYear(year, month, 1);
-    t = start.getTime();
-    if (monthStarts.size >= PARTS_MEMORY) monthStarts.clear();
-    monthStarts.set(key, t);
-  }
-  return t;
-}
+/** Epoch milliseconds of the first of the month numbered year·12 + month (month 0-based), remembered. */
+const monthStart = remembered((key) => {
+  const year = Math.floor(key / 12);
+  const start = new Date(0);
+  start.setUTCFullYear(year, key - 12 * year, 1);
+  return start.getTime();
+}, PARTS_MEMORY);
 
 /** The name of one period, for messages: "month", "day", "step" for index. */
 export function periodName(f: Frequency, count = 1): string {

@@ -35,38 +35,12 @@ export function runStory(run: ForecastRun): { readonly point: PointStory; readon
 
 const stories = new WeakMap<ForecastRun, { from: ForecastRun['forecast']; point: PointStory; bands: BandStory }>();
 
-/** The tidy forecast table: one row per time and kind (history, fitted, holdout, forecast). */
-export function forecastTable(run: ForecastRun): Table {
-  const { series, levels } = run;
-  const name = series.name;
-  const f = series.frequency;
-  const bandCols = levels.flatMap((l) => [`lower_${l}`, `upper_${l}`]);
-  const columns = ['series', 'time', 'kind', 'value', 'point', 'rolling_point', ...bandCols];
-  const rows: Cell[][] = [];
-  const blank = bandCols.map(() => null);
-  const n = series.values.length;
-  const nTrain = n - run.holdout;
-  for (let t = 0; t < nTrain; t++) rows.push([name, formatTime(series.time[t], f), 'history', series.values[t], null, null, ...blank]);
-  for (let i = 0; i < run.fitted.index.length; i++) {
-    const t = run.fitted.index[i];
-    rows.push([name, formatTime(series.time[t], f), 'fitted', null, run.fitted.values[i], null, ...blank]);
-  }
-  const ev = run.evaluation;
-  if (ev) {
-    for (let j = 0; j < ev.holdout; j++) {
-      const bands = ev.fixed.bands.flatMap((b) => [b.lower[j], b.upper[j]]);
-      rows.push([name, formatTime(ev.times[j], f), 'holdout', ev.actual[j], ev.fixed.point[j], ev.rolling.oneStep[j], ...bands]);
-    }
-  }
-  rows.push(...forecastRows(name, f, run.forecast.times, run.forecast.paths));
-  return { columns, rows };
-}
-
 /**
- * forecast.csv, the same bytes as `tableToCsv(forecastTable(run))`, written straight from the
- * run, and from the same fields the records of its holdout and forecast rows without the
- * rolling_point column, as a batch's forecasts.csv holds them (batch-table.ts, no header): each
- * number and time stamp is written once for both.
+ * forecast.csv, the tidy forecast table of a run (one row per time and kind: history, fitted,
+ * holdout, forecast; the columns below) written as `toCsv` writes a table, and from the same
+ * fields the records of its holdout and forecast rows without the rolling_point column, as a
+ * batch's forecasts.csv holds them (batch-table.ts, no header): each number and time stamp is
+ * written once for both.
  */
 export function forecastCsv(run: ForecastRun): { csv: string; records: string } {
   const { series, levels } = run;
@@ -123,7 +97,7 @@ function bandFields(bands: readonly { lower: ArrayLike<number>; upper: ArrayLike
   return out;
 }
 
-/** The `forecast` rows of the tidy table (columns as in `forecastTable`), one per step. */
+/** The `forecast` rows of the tidy table (columns as in `forecastCsv`), one per step. */
 export function forecastRows(name: string, f: Frequency, times: Float64Array, paths: ForecastPaths): Cell[][] {
   const rows: Cell[][] = [];
   for (let j = 0; j < times.length; j++) {

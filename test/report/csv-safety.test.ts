@@ -8,9 +8,46 @@ import { describe, expect, it } from 'vitest';
 import { parseDelimited } from '../../src/data/csv.js';
 import type { Series } from '../../src/data/series.js';
 import { forecastSeries } from '../../src/forecast/pipeline.js';
-import { forecastCsv, forecastFiles, forecastTable } from '../../src/report/forecast-report.js';
-import { csvField, formatNumber, readsAsFormula, tableToCsv, toCsv, type Cell } from '../../src/report/tables.js';
-import { forecastsColumns, forecastsRecords } from '../../src/batch/batch-table.js';
+import { formatTime } from '../../src/data/calendar.js';
+import type { ForecastRun } from '../../src/forecast/pipeline.js';
+import { forecastCsv, forecastFiles, forecastRows } from '../../src/report/forecast-report.js';
+import { csvField, formatNumber, readsAsFormula, tableToCsv, toCsv, type Cell, type Table } from '../../src/report/tables.js';
+import { csvHeader, forecastsColumns } from '../../src/batch/batch-table.js';
+
+/**
+ * forecast.csv built the slow, plain way, as the reference `forecastCsv` must equal: the tidy
+ * table of cells (one row per time and kind) written by the general table writer.
+ */
+function forecastTable(run: ForecastRun): Table {
+  const { series, levels } = run;
+  const name = series.name;
+  const f = series.frequency;
+  const bandCols = levels.flatMap((l) => [`lower_${l}`, `upper_${l}`]);
+  const columns = ['series', 'time', 'kind', 'value', 'point', 'rolling_point', ...bandCols];
+  const rows: Cell[][] = [];
+  const blank = bandCols.map(() => null);
+  const n = series.values.length;
+  const nTrain = n - run.holdout;
+  for (let t = 0; t < nTrain; t++) rows.push([name, formatTime(series.time[t], f), 'history', series.values[t], null, null, ...blank]);
+  for (let i = 0; i < run.fitted.index.length; i++) {
+    const t = run.fitted.index[i];
+    rows.push([name, formatTime(series.time[t], f), 'fitted', null, run.fitted.values[i], null, ...blank]);
+  }
+  const ev = run.evaluation;
+  if (ev) {
+    for (let j = 0; j < ev.holdout; j++) {
+      const bands = ev.fixed.bands.flatMap((b) => [b.lower[j], b.upper[j]]);
+      rows.push([name, formatTime(ev.times[j], f), 'holdout', ev.actual[j], ev.fixed.point[j], ev.rolling.oneStep[j], ...bands]);
+    }
+  }
+  rows.push(...forecastRows(name, f, run.forecast.times, run.forecast.paths));
+  return { columns, rows };
+}
+
+/** A series' records in forecasts.csv the plain way: the rows written by the table writer, header cut off. */
+function forecastsRecords(columns: string[], rows: Cell[][]): string {
+  return toCsv(columns, rows).slice(csvHeader(columns).length);
+}
 
 /** What a cell should read back as: the text written, apostrophe included, or the number's text. */
 function expected(cell: Cell): string {
