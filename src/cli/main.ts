@@ -35,9 +35,25 @@ export interface CliIO {
   isTTY: boolean;
 }
 
+/**
+ * A writer to a process stream that stops writing, quietly, once the reader has gone (EPIPE:
+ * `certa forecast lines.csv | head` closes the pipe after ten lines). The command goes on and
+ * writes its files; only the text nobody reads is dropped. Other stream errors are left to Node.
+ */
+export function pipeWriter(stream: NodeJS.WriteStream): (text: string) => void {
+  let closed = false;
+  stream.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code !== 'EPIPE') throw e;
+    closed = true;
+  });
+  return (text) => {
+    if (!closed) stream.write(text);
+  };
+}
+
 export const processIO: CliIO = {
-  out: (text) => process.stdout.write(text),
-  err: (text) => process.stderr.write(text),
+  out: pipeWriter(process.stdout),
+  err: pipeWriter(process.stderr),
   stdin: readStdin,
   isTTY: Boolean(process.stderr.isTTY),
 };
