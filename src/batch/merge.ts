@@ -21,7 +21,8 @@ import { BATCH_FORMAT, BATCH_VERSION, batchIndexHtml, batchManifest, batchRowFro
 import { rawRecords, type RawRecord } from './csv-records.js';
 import { TOP_LEVEL_NAMES } from './folder-names.js';
 
-interface Manifest {
+/** What batch.json says of a batch folder (`readBatchManifest`). */
+export interface Manifest {
   seriesInFile: number;
   shard: { k: number; n: number } | null;
   levels: number[];
@@ -31,16 +32,18 @@ interface Manifest {
 
 const TOP_LEVEL = new Set(TOP_LEVEL_NAMES);
 
-async function readBytes(file: string, what: string): Promise<Buffer> {
+const SHARD_FOLDER = 'a batch folder written by certa forecast --shard k/n';
+
+async function readBytes(file: string, what: string, expected = SHARD_FOLDER): Promise<Buffer> {
   try {
     return await fsp.readFile(file);
   } catch {
-    throw new DataError('merge-missing', `${what} is missing`, { file, expected: 'a batch folder written by certa forecast --shard k/n' });
+    throw new DataError('merge-missing', `${what} is missing`, { file, expected });
   }
 }
 
-async function readText(file: string, what: string): Promise<string> {
-  return (await readBytes(file, what)).toString('utf8');
+async function readText(file: string, what: string, expected = SHARD_FOLDER): Promise<string> {
+  return (await readBytes(file, what, expected)).toString('utf8');
 }
 
 /** The chart library the shards' reports share: the same bytes in every shard, or a one-line error. */
@@ -55,9 +58,10 @@ async function sharedChartLibrary(dirs: readonly string[]): Promise<Buffer> {
   return first!;
 }
 
-async function readManifest(dir: string): Promise<Manifest> {
+/** batch.json of a batch folder, checked; `expected` says what the folder should have been when it is missing. */
+export async function readBatchManifest(dir: string, expected = SHARD_FOLDER): Promise<Manifest> {
   const file = join(dir, 'batch.json');
-  const text = await readText(file, 'batch.json');
+  const text = await readText(file, 'batch.json', expected);
   let doc: Record<string, unknown>;
   try {
     doc = JSON.parse(text) as Record<string, unknown>;
@@ -123,7 +127,7 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
     if (e instanceof UsageError) throw e;
   }
   const manifests: Manifest[] = [];
-  for (const dir of dirs) manifests.push(await readManifest(dir));
+  for (const dir of dirs) manifests.push(await readBatchManifest(dir));
   const first = manifests[0];
   const seen = new Map<number, string>();
   manifests.forEach((m, i) => {

@@ -15,7 +15,7 @@ import { writeFileAtomic } from '../store/atomic.js';
 import { batchCsv, batchIndexHtml, batchManifest, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
 import { folderNames } from './folder-names.js';
 import { runPool } from './pool.js';
-import { failureText, jobError, type JobSettings, type SeriesOutcome, type SeriesTask } from './series-job.js';
+import { failureText, jobError, type JobError, type JobSettings, type SeriesOutcome, type SeriesTask } from './series-job.js';
 import { shardOf, type Shard } from './shard.js';
 
 export interface BatchOptions {
@@ -107,7 +107,7 @@ export async function runBatch(series: readonly Series[], failedAtLoad: readonly
 }
 
 /** A job failure as the CertaError the CLI prints (for --fail-fast, as before batches). */
-export function outcomeError(o: SeriesOutcome): Error {
+export function outcomeError(o: { row: { series: string }; error: JobError | null }): Error {
   const e = o.error!;
   if (e.internal) return new Error(`series "${o.row.series}": ${e.message}`);
   return new CertaError(e.code, failureText(o.row.series, e.line), e.hint ? { hint: e.hint } : {}, e.exitCode);

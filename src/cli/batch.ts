@@ -35,10 +35,11 @@ export interface CliBatchOptions {
  * The batch options of a command over the series of a file: `--workers`, `--fail-fast`, `--quiet`
  * and, for forecast (`shard`), `--shard`. `certa search` takes no --shard: a search writes no
  * batch tables, so there is nothing for certa merge to join, and --json would hold one shard's
- * series only. `verb` names what is done to a series in the --fail-fast help.
+ * series only; `certa update` none either (it updates a shard's folder in place). `verb` names
+ * what is done to a series in the --fail-fast help, `workersFor` what the workers share out.
  */
-export function addBatchOptions(command: Command, { shard = true, verb = 'forecast' }: { shard?: boolean; verb?: string } = {}): Command {
-  command.option('--workers <n>', 'worker threads for a file of several series (default: one per core); the output does not depend on it');
+export function addBatchOptions(command: Command, { shard = true, verb = 'forecast', workersFor = 'a file of several series' }: { shard?: boolean; verb?: string; workersFor?: string } = {}): Command {
+  command.option('--workers <n>', `worker threads for ${workersFor} (default: one per core); the output does not depend on it`);
   if (shard) command.option('--shard <k/n>', 'process only shard k of n (by a stable hash of the series name), for array jobs; join them with certa merge');
   return command
     .option('--fail-fast', `stop at the first series that cannot be ${verb} (default: report it and go on, exit code 4)`)

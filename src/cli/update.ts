@@ -15,6 +15,7 @@ import type { Series } from '../data/series.js';
 import { DRIFT_POLICIES, update, type DriftPolicy, type UpdateOptions, type UpdateResult } from '../forecast/update.js';
 import { updateCharts, updateFiles, updateSummary, updateSummaryJson, updateText } from '../report/update-report.js';
 import { updateHtml } from '../report/update-html.js';
+import type { ReportOptions } from '../report/html-report.js';
 import { withLock } from '../store/lock.js';
 import { readModelFile, writeModelFile, type ModelBody } from '../store/model-file.js';
 import { addDataOptions, loadSeriesFromCli, parseDataOptions } from './data-options.js';
@@ -22,8 +23,13 @@ import { ExitRequest, type CliIO } from './main.js';
 import { runClock, writeFiles } from './output.js';
 import { BANDS_HELP, parseBands } from './forecast.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
-import { resultDocument, summaryDocument } from '../report/result-json.js';
+import { resultDocument, resultDocumentText, summaryDocument, type WrittenResultEntry } from '../report/result-json.js';
 import { toJson } from '../report/tables.js';
+import { FORECAST_CAUTION } from '../report/cautions.js';
+import { batchInputs, isFolder, updateBatch, type UpdateRow } from '../batch/update-batch.js';
+import { outcomeError } from '../batch/run.js';
+import { addBatchOptions, EXIT_SOME_FAILED, parseBatchOptions } from './batch.js';
+import { BatchProgress } from './progress.js';
 
 export interface CliUpdateOptions {
   onDrift: DriftPolicy;
@@ -91,6 +97,58 @@ export interface UpdateRun {
   text: string;
 }
 
+/** Refuses a --season that differs from the model's (another season needs a new model). */
+export function checkSeason(body: ModelBody, modelPath: string, opts: Record<string, unknown>): void {
+  const season = parseDataOptions(opts).season;
+  if (season !== undefined && season !== body.series.season) {
+    throw new UsageError('season-mismatch', `--season ${season} differs from the model's season (${body.series.season ?? 'none'})`, {
+      file: modelPath,
+      found: `--season ${season}`,
+      expected: `the model's season ${body.series.season ?? '(none)'}; another season needs a new model`,
+      hint: `drop --season, or fit a new model with certa forecast --season ${season}`,
+    });
+  }
+}
+
+/**
+ * Updates the model read from `modelPath` (`body`, its lock held by the caller) with the new rows
+ * of its series and writes the forecast files into `folder`, then the model: what one
+ * `certa update` does after reading its data, and each series of a batch update alike (whose
+ * report.html loads the chart library its batch folder keeps: `html`).
+ */
+export async function applyUpdate(
+  modelPath: string,
+  body: ModelBody,
+  rows: Series,
+  dataFile: string,
+  cli: CliUpdateOptions,
+  notes: readonly string[],
+  folder: string,
+  html: ReportOptions = {},
+): Promise<{ result: UpdateResult; summary: Record<string, unknown> }> {
+  const options: UpdateOptions = { now: runClock(), onDrift: cli.onDrift, acceptRevisions: cli.acceptRevisions };
+  if (cli.horizon !== undefined) options.horizon = cli.horizon;
+  if (cli.levels !== undefined) options.levels = cli.levels;
+  if (cli.bands !== undefined) options.intervals = { method: cli.bands };
+  const result = update(body, { ...rows, source: dataFile }, options);
+  const warnings = [...notes];
+  if (!result.changed) {
+    const summary = updateSummary(result, { model: modelPath, data: dataFile, files: [], outDir: folder, warnings });
+    return { result, summary };
+  }
+  const files: Record<string, string | Uint8Array> = { ...updateFiles(result) };
+  if (cli.charts) Object.assign(files, updateCharts(result));
+  const modelName = join(folder, 'model.json') === modelPath ? ['model.json'] : [];
+  const names = [...Object.keys(files), 'summary.json', ...modelName, ...(cli.report ? ['report.html'] : [])].sort();
+  const summary = updateSummary(result, { model: modelPath, data: dataFile, files: names, outDir: folder, warnings });
+  files['summary.json'] = updateSummaryJson(summaryDocument('update', summary));
+  if (cli.report) files['report.html'] = updateHtml(result, summary, html);
+  await writeFiles(folder, files);
+  const written = await writeModelFile(modelPath, result.body);
+  if (written.note) warnings.push(written.note);
+  return { result, summary };
+}
+
 /** Lock, read, update, write (see the module comment). */
 export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpdateOptions, opts: Record<string, unknown>, io: CliIO): Promise<UpdateRun> {
   const folder = cli.out ?? dirname(modelPath);
@@ -98,40 +156,11 @@ export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpd
     modelPath,
     async () => {
       const body = await readModelFile(modelPath);
-      const season = parseDataOptions(opts).season;
-      if (season !== undefined && season !== body.series.season) {
-        throw new UsageError('season-mismatch', `--season ${season} differs from the model's season (${body.series.season ?? 'none'})`, {
-          file: modelPath,
-          found: `--season ${season}`,
-          expected: `the model's season ${body.series.season ?? '(none)'}; another season needs a new model`,
-          hint: `drop --season, or fit a new model with certa forecast --season ${season}`,
-        });
-      }
+      checkSeason(body, modelPath, opts);
       const dataOpts = { ...opts };
       if (dataOpts.inputs === undefined && body.series.inputs.length > 0) dataOpts.inputs = body.series.inputs.join(',');
       const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io);
-      const rows = pickSeries(series, body, dataFile);
-      const options: UpdateOptions = { now: runClock(), onDrift: cli.onDrift, acceptRevisions: cli.acceptRevisions };
-      if (cli.horizon !== undefined) options.horizon = cli.horizon;
-      if (cli.levels !== undefined) options.levels = cli.levels;
-      if (cli.bands !== undefined) options.intervals = { method: cli.bands };
-      const result = update(body, { ...rows, source: dataFile }, options);
-      const warnings = [...report.notes];
-      if (!result.changed) {
-        const summary = updateSummary(result, { model: modelPath, data: dataFile, files: [], outDir: folder, warnings });
-        return { result, summary };
-      }
-      const files: Record<string, string | Uint8Array> = { ...updateFiles(result) };
-      if (cli.charts) Object.assign(files, updateCharts(result));
-      const modelName = join(folder, 'model.json') === modelPath ? ['model.json'] : [];
-      const names = [...Object.keys(files), 'summary.json', ...modelName, ...(cli.report ? ['report.html'] : [])].sort();
-      const summary = updateSummary(result, { model: modelPath, data: dataFile, files: names, outDir: folder, warnings });
-      files['summary.json'] = updateSummaryJson(summaryDocument('update', summary));
-      if (cli.report) files['report.html'] = updateHtml(result, summary);
-      await writeFiles(folder, files);
-      const written = await writeModelFile(modelPath, result.body);
-      if (written.note) warnings.push(written.note);
-      return { result, summary };
+      return applyUpdate(modelPath, body, pickSeries(series, body, dataFile), dataFile, cli, report.notes, folder);
     },
     { command: `certa update ${modelPath} ${dataFile}` },
   );
@@ -144,7 +173,7 @@ export function register(program: Command, io: CliIO): void {
   const command = program
     .command('update')
     .description('keep a saved model learning: add new observations, watch for drift, forecast again')
-    .argument('<model>', 'the model.json written by certa forecast or certa search')
+    .argument('<model>', 'the model.json written by certa forecast or certa search, or a batch folder (every model in it)')
     .argument('<file>', 'new data: CSV, TSV, XLSX or JSON (may repeat rows the model has seen), or - for standard input')
     .option('--on-drift <policy>', `what to do on a drift alarm: ${DRIFT_POLICIES.join(', ')} (default warn)`)
     .option('--fail-on-drift', 'exit with code 3 when a drift alarm fired (after writing)')
@@ -157,13 +186,94 @@ export function register(program: Command, io: CliIO): void {
     .option('--no-report', 'do not write report.html (written anew, so it never shows an older forecast than forecast.csv)')
     .option('--json', 'print summary.json instead of the text summary');
   addDataOptions(command);
+  addBatchOptions(command, { shard: false, verb: 'updated', workersFor: 'a batch folder' });
   command.action(async (model: string, file: string, opts: Record<string, unknown>) => {
     const cli = parseUpdateOptions(opts);
+    if (await isFolder(model)) return runBatchUpdate(model, file, cli, opts, io);
     const { result, summary, text } = await runUpdate(model, file, cli, opts, io);
     const folder = cli.out ?? dirname(model);
     const name = (result.body.series as { name: string }).name;
     io.out(cli.json ? toJson(resultDocument('update', [{ series: name, status: 'ok', folder, reason: null, detail: summaryDocument('update', summary) }])) : text);
     if (cli.failOnDrift && result.alarms.length > 0) throw new ExitRequest(3);
   });
-  program.addHelpText('after', '\nUpdate a saved model with new data:\n  certa update output/sales/model.json sales-2024.csv --on-drift adapt\n');
+  program.addHelpText(
+    'after',
+    '\nUpdate a saved model with new data:\n  certa update output/sales/model.json sales-2024.csv --on-drift adapt\n' +
+      'Update every model of a batch folder:\n  certa update output lines-2024-07.csv --id line\n',
+  );
+}
+
+/** The line of one series in the text summary of a batch update. */
+export function updateLine(r: UpdateRow): string {
+  if (r.status === 'failed') return `failed     ${r.reason ?? r.series}`;
+  if (r.status === 'unchanged') return `unchanged  ${r.series}: ${r.reason ?? ''}`;
+  const alarms = r.alarms === 0 ? 'no drift alarm' : `${r.alarms} drift alarm${r.alarms === 1 ? '' : 's'} (${r.policy})`;
+  const warn = r.warnings.length > 0 ? `; ${r.warnings.length} warning${r.warnings.length === 1 ? '' : 's'}` : '';
+  return `updated    ${r.series}: ${r.rowsAdded} new row${r.rowsAdded === 1 ? '' : 's'} to ${r.lastTime}; ${alarms}; ${r.structure}${warn} → ${r.folder}`;
+}
+
+/**
+ * `certa update <batch folder> <file>` (batch/update-batch.ts): the new file is read once (with
+ * the inputs of the batch's models unless --inputs is given), its series are updated by the
+ * pool, one line per series and totals are printed (or the one JSON result document). Exit code
+ * 4 when some series failed (1 when a failure was a bug), else 3 with --fail-on-drift when a
+ * drift alarm fired.
+ */
+async function runBatchUpdate(dir: string, file: string, cli: CliUpdateOptions, opts: Record<string, unknown>, io: CliIO): Promise<void> {
+  if (cli.out !== undefined) {
+    throw new UsageError('option-invalid', '--out names the folder of one model’s files; a batch folder is updated in place', {
+      found: `--out ${cli.out}`,
+      expected: 'no --out with a batch folder',
+      hint: `drop --out; to keep the batch as it is, copy ${dir} first and update the copy`,
+    });
+  }
+  const batch = parseBatchOptions(opts);
+  const dataOpts = { ...opts };
+  if (dataOpts.inputs === undefined) {
+    const inputs = await batchInputs(dir);
+    if (inputs.length > 0) dataOpts.inputs = inputs.join(',');
+  }
+  const { series, report } = await loadSeriesFromCli(file, dataOpts, io, { keepGoing: !batch.failFast });
+  let progress: BatchProgress | null = null;
+  const result = await updateBatch(dir, series, report.failed, { opts, data: file, loadNotes: report.notes }, {
+    workers: batch.workers,
+    failFast: batch.failFast,
+    keepSummary: cli.json,
+    onStart: (total) => {
+      if (!batch.quiet) progress = new BatchProgress(io, total);
+    },
+    onOutcome: (o, done) => {
+      if (o.error) {
+        progress?.stop();
+        io.err(`certa: ${o.row.reason}\n`);
+      }
+      progress?.update(done);
+    },
+  });
+  (progress as BatchProgress | null)?.stop();
+  if (result.stoppedBy) throw outcomeError(result.stoppedBy);
+  const rows = result.outcomes.map((o) => o.row);
+  const count = (s: UpdateRow['status']): number => rows.filter((r) => r.status === s).length;
+  const failed = count('failed');
+  const alarms = rows.reduce((a, r) => a + (r.alarms ?? 0), 0);
+  if (cli.json) {
+    const entries: WrittenResultEntry[] = result.outcomes
+      .filter((o) => o.inFile)
+      .map((o) => ({ series: o.row.series, status: o.error ? 'failed' : 'ok', folder: o.row.folder, reason: o.row.reason, detailJson: o.summaryJson }));
+    io.out(resultDocumentText('update', entries));
+  } else if (!batch.quiet) {
+    const shard = result.manifest.shard ? ` (shard ${result.manifest.shard.k} of ${result.manifest.shard.n})` : '';
+    const lines = rows.map(updateLine);
+    lines.push('');
+    lines.push(`${rows.length} series${shard}: ${count('updated')} updated, ${count('unchanged')} unchanged, ${failed} failed; ${alarms} drift alarm${alarms === 1 ? '' : 's'}`);
+    lines.push(`Wrote ${result.tables.join(', ')} and the files of each updated series to ${dir}`);
+    lines.push('');
+    lines.push(FORECAST_CAUTION);
+    io.out(`${lines.join('\n')}\n`);
+  }
+  if (failed > 0) {
+    if (batch.quiet || cli.json) io.err(`certa: ${failed} of ${rows.length} series failed (see updates.csv in ${dir})\n`);
+    throw new ExitRequest(result.outcomes.some((o) => o.error?.internal) ? 1 : EXIT_SOME_FAILED);
+  }
+  if (cli.failOnDrift && alarms > 0) throw new ExitRequest(3);
 }

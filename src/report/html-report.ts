@@ -269,7 +269,7 @@ export interface ReportOptions {
  * The note a report loading the shared chart library carries, hidden until its script finds
  * that the library did not load (the folder was moved out of its batch folder).
  */
-function missingChartsNote(src: string): string {
+export function missingChartsNote(src: string): string {
   return `<section class="caution" id="charts-missing" hidden><p><b>The charts are not shown.</b> This report is part of a batch: it draws its charts with the chart library the batch folder keeps once for all its reports, <code>${esc(CHART_ASSET)}</code>, which this page loads as <code>${esc(src)}</code>, and that file was not found. Open the report inside its batch folder, or put the batch's <code>${esc(CHART_ASSET_FOLDER)}</code> folder beside this report's folder. The text and the tables below are complete.</p></section>`;
 }
 

@@ -10,7 +10,7 @@
 import { cadenceName, formatTime } from '../data/calendar.js';
 import type { UpdateResult } from '../forecast/update.js';
 import { FORECAST_CAUTION } from './cautions.js';
-import { coefficientTableHtml, forecastPageData, forecastSectionHtml } from './html-report.js';
+import { coefficientTableHtml, forecastPageData, forecastSectionHtml, missingChartsNote, type ReportOptions } from './html-report.js';
 import { chartLibraryScript, escapeHtml as esc, page, scriptJson } from './html.js';
 import { reportScript } from './report-script.js';
 import { formatTableNumber } from './table-numbers.js';
@@ -42,7 +42,7 @@ function equationSection(result: UpdateResult): string {
 }
 
 /** The whole `report.html` of an update. `summary` supplies the warnings as summary.json lists them. */
-export function updateHtml(result: UpdateResult, summary: Record<string, unknown>): string {
+export function updateHtml(result: UpdateResult, summary: Record<string, unknown>, options: ReportOptions = {}): string {
   const { series } = result;
   const f = series.frequency;
   const n = series.values.length;
@@ -56,6 +56,7 @@ export function updateHtml(result: UpdateResult, summary: Record<string, unknown
   const body = [
     '<main>',
     `<header class="top"><h1>${esc(series.name)}</h1><p class="sub">${esc(cadenceName(f, series.step))}, ${n} points kept, ${esc(formatTime(series.time[0], f))} to ${esc(formatTime(series.time[n - 1], f))} · certa update report</p></header>`,
+    ...(fc && options.chartLibrarySrc !== undefined ? [missingChartsNote(options.chartLibrarySrc)] : []),
     `<section class="caution" id="caution"><p><b>Read this first.</b> ${esc(FORECAST_CAUTION)}</p></section>`,
     `<section id="update"><h2>What this update did</h2>${updateWords(result).map((w) => `<p>${esc(w)}</p>`).join('')}</section>`,
     headline,
@@ -65,5 +66,6 @@ export function updateHtml(result: UpdateResult, summary: Record<string, unknown
     '</main>',
     fc ? `<script type="application/json" id="certa-data">${scriptJson(forecastPageData(series, fc.times, fc.paths, fc.horizon))}</script>` : '',
   ].join('\n');
-  return page(`${series.name} · certa update report`, body, fc ? [{ inline: chartLibraryScript() }, { inline: reportScript() }] : []);
+  const library = options.chartLibrarySrc !== undefined ? { src: options.chartLibrarySrc } : { inline: chartLibraryScript() };
+  return page(`${series.name} · certa update report`, body, fc ? [library, { inline: reportScript() }] : []);
 }

@@ -20,7 +20,8 @@ export function updateStory(result: UpdateResult): { point: PointStory; bands: B
   const point = pointStory(fc.combination, result.policy.after);
   return { point, bands: bandStory(fc.paths, point, result.series.time, result.series.frequency, result.series.inputs.length > 0) };
 }
-import { tableToCsv, toJson, type Cell, type Table } from './tables.js';
+import { tableToCsv, toCsv, toJson, type Cell, type Table } from './tables.js';
+import { csvHeader, forecastsColumns } from '../batch/batch-table.js';
 
 /** `forecast.csv` after an update: window rows as `history`, then `forecast` rows. */
 export function updateTable(result: UpdateResult): Table {
@@ -138,6 +139,18 @@ export function updateCharts(result: UpdateResult): Record<string, Buffer> {
 function storyText(result: UpdateResult): string {
   const story = updateStory(result);
   return story ? `${storySubtitle(story.point, story.bands)}; ` : '';
+}
+
+/**
+ * The records a batch's forecasts.csv holds for a series after an update (batch-table.ts): its
+ * forecast rows without the rolling_point column, no header; '' when the update made no forecast.
+ */
+export function updateRecords(result: UpdateResult): string {
+  const fc = result.forecast;
+  if (!fc) return '';
+  const rows = forecastRows(result.series.name, result.series.frequency, fc.times, fc.paths).map((r) => [...r.slice(0, 5), ...r.slice(6)]);
+  const columns = forecastsColumns(fc.levels);
+  return toCsv(columns, rows).slice(csvHeader(columns).length);
 }
 
 /** CSV and JSON files of an update, by file name (charts separately; summary.json added by the caller). */
