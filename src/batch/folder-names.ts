@@ -26,10 +26,11 @@ import { CHART_ASSET_FOLDER } from '../report/html.js';
 export const FOLDER_NAME_MAX = 64;
 
 /**
- * The names at the top of a batch folder that are not series folders: its tables, its index
- * page and the folder of the chart library the reports share.
+ * The names at the top of a batch folder that are not series folders: its tables (updates.csv
+ * from `certa update` on the batch), its index page and the folder of the chart library the
+ * reports share.
  */
-export const TOP_LEVEL_NAMES: readonly string[] = ['batch.csv', 'batch.json', 'forecasts.csv', 'index.html', CHART_ASSET_FOLDER];
+export const TOP_LEVEL_NAMES: readonly string[] = ['batch.csv', 'batch.json', 'forecasts.csv', 'updates.csv', 'index.html', CHART_ASSET_FOLDER];
 
 const TOP_LEVEL = new Set(TOP_LEVEL_NAMES.map((n) => n.toLowerCase()));
 

@@ -226,10 +226,10 @@ const BATCH_FOLDER = 'a batch folder written by certa forecast over a file of se
 /** A series of the file that has no model in the batch, as a failed outcome. */
 function withoutModel(index: number, name: string, row: BatchRow | undefined): UpdateOutcome {
   const line = row
-    ? `the series has no model in this batch: its forecast failed (${row.reason ?? 'see batch.csv'}); forecast it again`
-    : 'the series has no model in this batch; forecast it with certa forecast, then it can be updated';
+    ? 'no model in this batch: its forecast failed (see batch.csv); forecast it again once it can be'
+    : 'no model in this batch: the batch was not forecast for it; forecast it with certa forecast first';
   const error: JobError = { code: 'no-model', message: line, line, hint: null, exitCode: 2, internal: false };
-  const reason = failureText(name, line);
+  const reason = `series "${name}": ${line}`;
   return {
     index,
     row: { position: row?.position ?? null, series: name, folder: null, status: 'failed', reason, rowsAdded: null, lastTime: null, alarms: null, policy: null, structure: null, warnings: [] },
@@ -290,12 +290,12 @@ export async function updateBatch(
         if (byName.has(name) || !inShard(name)) continue;
         outcomes.push(withoutModel(outcomes.length, name, undefined));
       }
+      const early = options.failFast ? outcomes.find((o) => o?.error) : undefined;
+      if (early) return { manifest, outcomes: outcomes.filter((o): o is UpdateOutcome => o !== undefined), tables: [], stoppedBy: early };
       const total = outcomes.length;
       options.onStart?.(total);
       let done = 0;
       for (const o of outcomes) if (o) options.onOutcome?.(o, ++done, total);
-      const early = options.failFast ? outcomes.find((o) => o?.error) : undefined;
-      if (early) return { manifest, outcomes: outcomes.filter((o): o is UpdateOutcome => o !== undefined), tables: [], stoppedBy: early };
       const sharedCharts = await isFile(join(dir, CHART_ASSET));
       await runJobPool(UPDATE_JOB, tasks, { ...settings, levels, keepSummary: options.keepSummary, sharedCharts }, {
         workers: options.workers,

@@ -6,7 +6,8 @@
  * Exit codes (EXIT_CODES, also in --help and the README): 0 success; 1 a bug (stack only with
  * --debug); 2 a user-caused error (bad file, bad option, unfit data); 3 a condition a scheduler
  * asked to fail on (drift with --fail-on-drift); 4 a batch in which some series could not be
- * forecast (the others were completed, the failures listed in batch.csv and on stderr).
+ * forecast, searched or updated (the others were completed, the failures listed on stderr and in
+ * batch.csv or updates.csv).
  */
 import { Command, CommanderError } from 'commander';
 import { isCertaError } from '../data/errors.js';
@@ -18,7 +19,7 @@ export const EXIT_CODES: ReadonlyArray<readonly [number, string]> = [
   [1, 'a bug in certa (rerun with --debug for the stack trace)'],
   [2, 'a user-caused error: bad file, bad option, data no model can be fitted to'],
   [3, 'a condition asked to fail on: a drift alarm with certa update --fail-on-drift'],
-  [4, 'some series of a file failed: the others were completed; see stderr (and batch.csv of a forecast batch)'],
+  [4, 'some series of a file failed: the others were completed; see stderr (and batch.csv of a forecast batch, updates.csv of a batch update)'],
 ];
 
 /** The exit codes as a help section (the program's and each command's --help end with it). */

@@ -9,6 +9,7 @@
  * is written. Exit code 3 with --fail-on-drift when a drift alarm fired.
  */
 import type { Command } from 'commander';
+import { existsSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { DataError, UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
@@ -173,7 +174,7 @@ export function register(program: Command, io: CliIO): void {
   const command = program
     .command('update')
     .description('keep a saved model learning: add new observations, watch for drift, forecast again')
-    .argument('<model>', 'the model.json written by certa forecast or certa search, or a batch folder (every model in it)')
+    .argument('<model>', 'the model.json written by certa forecast or certa search (or its folder), or a batch folder: every model in it')
     .argument('<file>', 'new data: CSV, TSV, XLSX or JSON (may repeat rows the model has seen), or - for standard input')
     .option('--on-drift <policy>', `what to do on a drift alarm: ${DRIFT_POLICIES.join(', ')} (default warn)`)
     .option('--fail-on-drift', 'exit with code 3 when a drift alarm fired (after writing)')
@@ -189,7 +190,16 @@ export function register(program: Command, io: CliIO): void {
   addBatchOptions(command, { shard: false, verb: 'updated', workersFor: 'a batch folder' });
   command.action(async (model: string, file: string, opts: Record<string, unknown>) => {
     const cli = parseUpdateOptions(opts);
-    if (await isFolder(model)) return runBatchUpdate(model, file, cli, opts, io);
+    if (await isFolder(model)) {
+      if (existsSync(join(model, 'batch.json'))) return runBatchUpdate(model, file, cli, opts, io);
+      if (!existsSync(join(model, 'model.json'))) {
+        throw new UsageError('not-a-model', 'the folder holds neither a model (model.json) nor a batch (batch.json)', {
+          file: model,
+          expected: 'a model.json written by certa forecast or certa search, or a batch folder written by certa forecast over a file of several series',
+        });
+      }
+      model = join(model, 'model.json');
+    }
     const { result, summary, text } = await runUpdate(model, file, cli, opts, io);
     const folder = cli.out ?? dirname(model);
     const name = (result.body.series as { name: string }).name;
