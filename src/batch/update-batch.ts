@@ -31,6 +31,7 @@ import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
 import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
+import type { Frequency } from '../data/calendar.js';
 import type { LoadFailure } from '../data/load.js';
 import { writeFileAtomic } from '../store/atomic.js';
 import { CHART_ASSET, chartAssetSrc } from '../report/html.js';
@@ -213,12 +214,16 @@ function batchLevels(manifest: Manifest, asked: number[] | undefined, dir: strin
   return [...manifest.levels];
 }
 
-/** The inputs the batch's models read (the first forecast series' model), for loading the new file. */
-export async function batchInputs(dir: string): Promise<string[]> {
+/**
+ * The inputs the batch's models read and their frequency (those of the first forecast series'
+ * model: one forecast run gave every series of the file the same), for loading the new file.
+ */
+export async function batchModels(dir: string): Promise<{ inputs: string[]; frequency: Frequency | null }> {
   const manifest = await readBatchManifest(dir, BATCH_FOLDER);
   const first = manifest.rows.find((r) => r.status === 'forecast' && r.folder !== null);
-  if (!first) return [];
-  return (await readModelFile(join(dir, first.folder!, 'model.json'))).series.inputs;
+  if (!first) return { inputs: [], frequency: null };
+  const body = await readModelFile(join(dir, first.folder!, 'model.json'));
+  return { inputs: body.series.inputs, frequency: body.series.frequency as Frequency };
 }
 
 const BATCH_FOLDER = 'a batch folder written by certa forecast over a file of several series';

@@ -27,7 +27,8 @@ import type { IntervalMethod } from '../forecast/intervals.js';
 import { resultDocument, resultDocumentText, summaryDocument, type WrittenResultEntry } from '../report/result-json.js';
 import { toJson } from '../report/tables.js';
 import { FORECAST_CAUTION } from '../report/cautions.js';
-import { batchInputs, isFolder, updateBatch, type UpdateRow } from '../batch/update-batch.js';
+import { batchModels, isFolder, updateBatch, type UpdateRow } from '../batch/update-batch.js';
+import type { Frequency } from '../data/calendar.js';
 import { outcomeError } from '../batch/run.js';
 import { addBatchOptions, EXIT_SOME_FAILED, parseBatchOptions } from './batch.js';
 import { BatchProgress } from './progress.js';
@@ -160,7 +161,7 @@ export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpd
       checkSeason(body, modelPath, opts);
       const dataOpts = { ...opts };
       if (dataOpts.inputs === undefined && body.series.inputs.length > 0) dataOpts.inputs = body.series.inputs.join(',');
-      const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io);
+      const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io, { singleStampFrequency: body.series.frequency as Frequency });
       return applyUpdate(modelPath, body, pickSeries(series, body, dataFile), dataFile, cli, report.notes, folder);
     },
     { command: `certa update ${modelPath} ${dataFile}` },
@@ -224,7 +225,8 @@ export function updateLine(r: UpdateRow): string {
 
 /**
  * `certa update <batch folder> <file>` (batch/update-batch.ts): the new file is read once (with
- * the inputs of the batch's models unless --inputs is given), its series are updated by the
+ * the inputs of the batch's models unless --inputs is given, and their frequency for a file of
+ * one time stamp per series), its series are updated by the
  * pool, one line per series and totals are printed (or the one JSON result document). Exit code
  * 4 when some series failed (1 when a failure was a bug), else 3 with --fail-on-drift when a
  * drift alarm fired.
@@ -239,11 +241,10 @@ async function runBatchUpdate(dir: string, file: string, cli: CliUpdateOptions, 
   }
   const batch = parseBatchOptions(opts);
   const dataOpts = { ...opts };
-  if (dataOpts.inputs === undefined) {
-    const inputs = await batchInputs(dir);
-    if (inputs.length > 0) dataOpts.inputs = inputs.join(',');
-  }
-  const { series, report } = await loadSeriesFromCli(file, dataOpts, io, { keepGoing: !batch.failFast });
+  const models = await batchModels(dir);
+  if (dataOpts.inputs === undefined && models.inputs.length > 0) dataOpts.inputs = models.inputs.join(',');
+  const single = models.frequency !== null ? { singleStampFrequency: models.frequency } : {};
+  const { series, report } = await loadSeriesFromCli(file, dataOpts, io, { keepGoing: !batch.failFast, ...single });
   let progress: BatchProgress | null = null;
   const result = await updateBatch(dir, series, report.failed, { opts, data: file, loadNotes: report.notes }, {
     workers: batch.workers,

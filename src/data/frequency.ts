@@ -49,7 +49,17 @@ export interface FrequencyEvidence {
 export interface InferOptions {
   /** The frequency the data will be folded into (`--freq`): irregular steps are then allowed. */
   target?: Frequency;
+  /**
+   * The frequency to take when every series holds a single time stamp (no step to read) and each
+   * stamp is the start of its period of this frequency: the new rows of a saved model, one month
+   * written as a date such as `2025-01-01`, are that model's month. Only a frequency at least as
+   * coarse as the stamps' form is taken; otherwise the form decides, as without it.
+   */
+  single?: Frequency;
 }
+
+/** Calendar frequencies from the finest to the coarsest (for `InferOptions.single`). */
+const COARSENESS: readonly Frequency[] = ['hourly', 'daily', 'weekly', 'monthly', 'quarterly', 'yearly'];
 
 /** A step: a positive number of elapsed milliseconds, or minus a number of whole months. */
 type Step = number;
@@ -107,6 +117,11 @@ export function inferFrequency(runs: readonly StampRun[], kind: TimeKind, where:
   }
   if (steps === 0) {
     const f = kindFrequency(kind);
+    const single = options.single;
+    if (single !== undefined && single !== f && COARSENESS.indexOf(single) > COARSENESS.indexOf(f) && COARSENESS.indexOf(f) >= 0) {
+      const fits = runs.every((run) => Array.from(run.times).every((t) => periodStart(t, single) === t));
+      if (fits) return { frequency: single, step: 1, steps: 0, counts: [], text: `${single}: a single time stamp, on the start of a ${periodName(single)}, as asked` };
+    }
     return { frequency: f, step: 1, steps: 0, counts: [], text: `${f}: a single time stamp, frequency taken from its form` };
   }
   let mode: Step = 0;

@@ -60,6 +60,8 @@ export interface LoadOptions extends TableOptions {
   dateFormat?: DateFormat;
   /** Aggregate to this (coarser) frequency. */
   freq?: Frequency;
+  /** The frequency of a file with a single time stamp per series, when the stamps start its periods (frequency.ts `InferOptions.single`; certa update passes the model's). */
+  singleStampFrequency?: Frequency;
   /** How `freq` combines periods (default sum). */
   aggregate?: AggregatorName;
   /** Rows sharing a time stamp (default error). */
@@ -269,7 +271,7 @@ export function seriesFromTable(table: Table, options: LoadOptions = {}): { seri
   }
 
   const runs: StampRun[] = (layout.kind === 'wide' ? resolved.slice(0, 1) : resolved).map((r) => ({ name: r.series.name, times: r.series.times, rows: r.series.rows }));
-  const evidence = inferFrequency(runs, timeCol.kind, { file, column: layout.time }, { target: options.freq });
+  const evidence = inferFrequency(runs, timeCol.kind, { file, column: layout.time }, { target: options.freq, single: options.singleStampFrequency });
   const f = evidence.frequency;
   if (runs.some((run) => run.times.some((t) => periodStart(t, f) !== t))) notes.push(`time stamps moved to the start of their ${f === 'daily' ? 'day' : f.replace(/ly$/, '')}`);
 

@@ -4,8 +4,8 @@
  * for most series, one series without new rows, one absent and one never forecast. Checks the
  * outcome of every series (updates.csv, stdout, stderr, exit code 4), forecasts.csv brought up to
  * date, the series' files equal to those of `certa update` on each model alone, output
- * independent of the worker count, --json, --fail-fast, shards, --fail-on-drift, and the
- * one-line refusals of --levels and --out.
+ * independent of the worker count, --json, --fail-fast, shards, --fail-on-drift, one new month
+ * per series written as a date, and the one-line refusals of --levels and --out.
  */
 import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -234,6 +234,20 @@ describe('certa update on a batch folder', () => {
     expect(k1.fields[3]).toBe('updated');
     expect(Number(k1.fields[7])).toBeGreaterThan(0);
     expect(r.stdout).toMatch(/updated {4}kiosk-1: 2 new rows to 2024-02; \d+ drift alarms? \(warn\)/);
+  });
+
+  it('takes one new month per series written as a date (2024-01-01) as the models’ month, in a batch and alone', () => {
+    const batch = copyBatch(join(dir, 'dated'));
+    const dated = join(dir, 'dated.csv');
+    writeFileSync(dated, 'kiosk,month,sales\nkiosk-1,2024-01-01,101.5\nkiosk-2,2024-01-01,99.25\n');
+    const r = runCli(['update', batch, dated, '--id', 'kiosk', '--no-charts', '--no-report']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toContain('updated    kiosk-1: 1 new row to 2024-01');
+    expect(r.stdout).toContain('updated    kiosk-2: 1 new row to 2024-01');
+    writeFileSync(join(dir, 'dated-3.csv'), 'month,sales\n2024-01-01,88\n');
+    const ok = runCli(['update', join(batch, folderOf('kiosk-3'), 'model.json'), join(dir, 'dated-3.csv'), '--no-charts', '--no-report']);
+    expect(ok.code, ok.stderr).toBe(0);
+    expect(ok.stdout).toMatch(/^certa update: kiosk-3: 1 new row \(2024-01 to 2024-01\)/);
   });
 
   it('refuses --levels other than the batch’s and --out, in one line each (exit 2)', () => {

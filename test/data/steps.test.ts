@@ -162,3 +162,29 @@ describe('decimal commas', () => {
     expect(Array.from(ok.series[0].values)).toEqual([3.5, 4]);
   });
 });
+
+describe('a single time stamp per series, with the frequency of the model it is for', () => {
+  // One new month of two series, written as dates: the form alone says daily.
+  const oneMonth = 'line,month,sales\nA,2025-01-01,600\nB,2025-01-01,70\n';
+
+  it('takes the asked frequency when every stamp starts one of its periods', async () => {
+    const plain = await loadSeries(src(oneMonth), { id: 'line' });
+    expect(plain.series[0].frequency).toBe('daily');
+    const asked = await loadSeries(src(oneMonth), { id: 'line', singleStampFrequency: 'monthly' });
+    expect(asked.series.map((s) => [s.name, s.frequency, formatTime(s.time[0], s.frequency), s.values[0]])).toEqual([
+      ['A', 'monthly', '2025-01', 600],
+      ['B', 'monthly', '2025-01', 70],
+    ]);
+    expect(asked.report.frequency.text).toBe('monthly: a single time stamp, on the start of a month, as asked');
+    // 2025-04-01 starts a quarter; 2025-02-01 does not
+    expect((await loadSeries(src('t,y\n2025-04-01,5\n'), { singleStampFrequency: 'quarterly' })).series[0].frequency).toBe('quarterly');
+    expect((await loadSeries(src('t,y\n2025-02-01,5\n'), { singleStampFrequency: 'quarterly' })).series[0].frequency).toBe('daily');
+  });
+
+  it('keeps the form’s frequency for a stamp inside a period, a finer asked frequency, or several stamps', async () => {
+    expect((await loadSeries(src('line,month,sales\nA,2025-01-15,600\n'), { id: 'line', singleStampFrequency: 'monthly' })).series[0].frequency).toBe('daily');
+    expect((await loadSeries(src('t,y\n2025-01,5\n'), { singleStampFrequency: 'daily' })).series[0].frequency).toBe('monthly');
+    // two stamps a day apart show their step: daily, whatever is asked
+    expect((await loadSeries(src('t,y\n2025-01-01,5\n2025-01-02,6\n'), { singleStampFrequency: 'monthly' })).series[0].frequency).toBe('daily');
+  });
+});
