@@ -87,7 +87,7 @@ import { DEFAULT_LEVELS, forecastWithIntervals, isLinearStructure, type Forecast
 import { Learner } from './online.js';
 import { defaultHorizon, UNCALIBRATED_WARNING } from './pipeline.js';
 import { calibratedPaths, type CalibrationOptions } from './calibrate.js';
-import { combinationMembers, combineForecasts, combinedPaths, type Combination, type Member } from './combine.js';
+import { combinationMembers, combineForecasts, combinedPaths, replacesOwn, type Combination, type Member } from './combine.js';
 
 export type DriftPolicy = 'warn' | 'adapt' | 'research';
 export const DRIFT_POLICIES: readonly DriftPolicy[] = ['warn', 'adapt', 'research'];
@@ -679,32 +679,38 @@ function forecastFrom(model: AssertedState, series: Series, body: ModelBody, opt
     series.inputs.length === 0 ? { values: [], source: 'no inputs' } : options.future ? options.future(series, horizon, Array.from(times)) : futureByPolicy(series, horizon, defaultInputPolicy(series));
   const wanted = options.intervals?.method ?? (typeof body.meta.intervalMethod === 'string' ? (body.meta.intervalMethod as IntervalMethod) : 'calibrated');
   const method = wanted === 'calibrated' ? (isLinearStructure(structure) ? 'analytic' : 'bootstrap') : wanted;
-  const residuals = method === 'bootstrap' ? windowResiduals(structure, learner.theta, series) : new Float64Array(0);
-  const estimate = { theta: learner.theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };
-  const own = forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method });
+  const theta = learner.theta;
+  // The asserted equation's own bands (analytic, or a bootstrap of 1,000 paths) are made only
+  // when they are delivered: asked for, or in place of calibrated bands the window cannot give.
+  let own: ForecastPaths | null = null;
+  const ownPaths = (): ForecastPaths => {
+    const residuals = method === 'bootstrap' ? windowResiduals(structure, theta, series) : new Float64Array(0);
+    const estimate = { theta, cov: learner.cov, sigma2: learner.sigma2, active: learner.active };
+    return (own ??= forecastWithIntervals(structure, estimate, series, inputs.values, horizon, residuals, { levels, ...options.intervals, method }));
+  };
   const members = body.combination ? storedMembers(body.combination, model) : null;
   const combination = members ? combineForecasts(members, horizon, (s, e) => s.simulate(e.theta, series, inputs.values, horizon), series.values) : null;
-  const moved = combination ? combinedPaths(own, combination, structure.key) : null;
+  const replaced = combination !== null && replacesOwn(combination, structure.key);
   // Calibrated bands on the stored window: the members of the point (or the asserted equation
   // alone) re-run from rolling origins inside it, as `certa forecast` does on the whole series.
   let calibrated: ForecastPaths | null = null;
   if (wanted === 'calibrated') {
-    const point = moved ? moved.point : own.point;
-    const shares = new Map((moved && combination ? combination.members : []).map((m) => [m.key, m.share]));
-    const used = moved && members ? members.filter((m) => (shares.get(m.key) ?? 0) > 0).map((m) => ({ structure: m.structure, estimate: { active: m.key === structure.key ? learner.active : Array.from(m.estimate.theta, (v) => v !== 0) }, share: shares.get(m.key) ?? 0 })) : [{ structure, estimate: { active: learner.active }, share: 1 }];
+    const point = replaced ? Float64Array.from(combination.point) : structure.simulate(theta, series, inputs.values, horizon);
+    const shares = new Map((replaced ? combination.members : []).map((m) => [m.key, m.share]));
+    const used = replaced && members ? members.filter((m) => (shares.get(m.key) ?? 0) > 0).map((m) => ({ structure: m.structure, estimate: { active: m.key === structure.key ? learner.active : Array.from(m.estimate.theta, (v) => v !== 0) }, share: shares.get(m.key) ?? 0 })) : [{ structure, estimate: { active: learner.active }, share: 1 }];
     const from = Math.max(1, ...used.map((m) => m.structure.history));
-    const spread = moved && combination ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
+    const spread = replaced ? combination.members.filter((m) => !m.excluded && m.share > 0) : [];
     calibrated = calibratedPaths(point, used, spread, series, from, levels, options.intervals?.calibration);
     if (calibrated === null) warnings.push(UNCALIBRATED_WARNING.replace('the series is', "the model's stored window is"));
   }
-  const paths = calibrated ?? moved ?? own;
+  const paths = calibrated ?? (replaced ? (combinedPaths(ownPaths(), combination, structure.key) as ForecastPaths) : ownPaths());
   for (let j = 0; j < horizon; j++) {
     if (!Number.isFinite(paths.point[j])) {
       warnings.push(`the forecast is not finite from step ${j + 1} on: the updated equation diverges over this horizon`);
       break;
     }
   }
-  return { times, paths, inputs, horizon, levels, combination: moved ? combination : null };
+  return { times, paths, inputs, horizon, levels, combination: replaced ? combination : null };
 }
 
 /** Member structures rebuilt from a body's combination, kept while the combination object lives. */
