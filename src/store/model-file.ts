@@ -274,7 +274,23 @@ export async function readModelFile(path: string): Promise<ModelBody> {
     (error as { cause?: unknown }).cause = e;
     throw error;
   }
-  return parseModel(text, path);
+  const body = parseModel(text, path);
+  rememberValid(path, text);
+  return body;
+}
+
+/**
+ * The texts of the model files this process last read and found valid, by path (a few: the
+ * updates in flight in one thread). Keeping the previous version of a model that was just read
+ * under its lock then compares the file with that text instead of parsing it a second time.
+ */
+const validTexts = new Map<string, string>();
+const VALID_TEXTS_KEPT = 8;
+
+function rememberValid(path: string, text: string): void {
+  validTexts.delete(path);
+  validTexts.set(path, text);
+  if (validTexts.size > VALID_TEXTS_KEPT) validTexts.delete(validTexts.keys().next().value as string);
 }
 
 export interface WriteModelOptions {
@@ -325,7 +341,7 @@ export async function keepPreviousModel(path: string): Promise<WriteModelResult>
   if (existing !== null) {
     let valid = true;
     try {
-      parseModel(existing, path);
+      if (validTexts.get(path) !== existing) parseModel(existing, path);
     } catch (e) {
       if (!(e instanceof StoreError)) throw e;
       valid = false;

@@ -225,6 +225,25 @@ describe('readModelFile / writeModelFile', () => {
     expect(await readModelFile(path)).toEqual(sampleBody(2));
   });
 
+  it('keeps a file it read as valid without parsing it again, but never one changed since it was read', async () => {
+    const path = join(dir, 'model.json');
+    await writeModelFile(path, sampleBody(0));
+    // read (and found valid), then kept unchanged: copied as it is
+    await readModelFile(path);
+    const first = readFileSync(path, 'utf8');
+    const kept = await writeModelFile(path, sampleBody(1));
+    expect(kept.previous).toBe(join(dir, 'model.prev.json'));
+    expect(readFileSync(join(dir, 'model.prev.json'), 'utf8')).toBe(first);
+    // read, then damaged on disk before the write: not kept, as for a file never read
+    await readModelFile(path);
+    const prev = readFileSync(join(dir, 'model.prev.json'), 'utf8');
+    writeFileSync(path, readFileSync(path, 'utf8').replace('"format"', '"fromat"'));
+    const refused = await writeModelFile(path, sampleBody(2));
+    expect(refused.previous).toBeNull();
+    expect(refused.note).toContain('was not kept');
+    expect(readFileSync(join(dir, 'model.prev.json'), 'utf8')).toBe(prev);
+  });
+
   it('does not copy a damaged current file over a good model.prev.json, and says so', async () => {
     const path = join(dir, 'model.json');
     await writeModelFile(path, sampleBody(0));
