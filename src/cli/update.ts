@@ -204,7 +204,8 @@ export function register(program: Command, io: CliIO): void {
     const { result, summary, text } = await runUpdate(model, file, cli, opts, io);
     const folder = cli.out ?? dirname(model);
     const name = (result.body.series as { name: string }).name;
-    io.out(cli.json ? toJson(resultDocument('update', [{ series: name, status: 'ok', folder, reason: null, detail: summaryDocument('update', summary) }])) : text);
+    if (cli.json) io.out(toJson(resultDocument('update', [{ series: name, status: 'ok', folder, reason: null, detail: summaryDocument('update', summary) }])));
+    else if (!opts.quiet) io.out(text);
     if (cli.failOnDrift && result.alarms.length > 0) throw new ExitRequest(3);
   });
   program.addHelpText(

@@ -273,5 +273,8 @@ describe('certa update on a batch folder', () => {
     const doc = parseResult(r.stdout);
     expect(doc.results.map((e: { series: string; folder: string }) => [e.series, e.folder])).toEqual([['kiosk-1', folder]]);
     expect(JSON.parse(readFileSync(join(folder, 'model.json'), 'utf8')).body.series.lastTimeLabel).toBe('2024-02');
+    // --quiet: nothing on standard output (the rows are known now: nothing to learn)
+    const again = runCli(['update', folder, newRows, '--id', 'kiosk', '--series', 'kiosk-1', '--quiet']);
+    expect([again.code, again.stdout, again.stderr]).toEqual([0, '', '']);
   });
 });
