@@ -14,7 +14,7 @@
  *
  * `BatchRow` is also what a later index page of a batch reads.
  */
-import { renderBatchIndex } from '../report/batch-index.js';
+import { renderBatchIndex, type BatchIndexUpdate, type BatchIndexUpdateTotals } from '../report/batch-index.js';
 import { toCsv, toJson, type Cell } from '../report/tables.js';
 import type { Shard } from './shard.js';
 
@@ -115,10 +115,15 @@ export function batchManifest(m: BatchManifest): string {
   });
 }
 
-/** `index.html` of a batch: every series with its status, linked to its report when it has one. */
-export function batchIndexHtml(rows: readonly BatchRow[]): string {
+/**
+ * `index.html` of a batch: every series with its status, linked to its report when it has one;
+ * after a batch update (`updates`: each series' part by its name, and the totals) also what the
+ * update did.
+ */
+export function batchIndexHtml(rows: readonly BatchRow[], updates: { bySeries: ReadonlyMap<string, BatchIndexUpdate>; totals: BatchIndexUpdateTotals } | null = null): string {
   return renderBatchIndex(
     rows.map((r) => ({
+      ...(updates?.bySeries.has(r.series) ? { update: updates.bySeries.get(r.series)! } : {}),
       series: r.series,
       folder: r.folder ?? '',
       status: r.status,
@@ -127,5 +132,7 @@ export function batchIndexHtml(rows: readonly BatchRow[]): string {
       holdoutMase: r.holdoutMase,
       bestBaseline: r.bestBaseline !== null && r.baselineMase !== null ? { name: r.bestBaseline, mase: r.baselineMase } : null,
     })),
+    undefined,
+    updates?.totals ?? null,
   );
 }

@@ -24,8 +24,10 @@
  *   new forecast rows, the other series' records kept;
  * - `updates.csv`: the last update, one row per outcome (`UPDATE_COLUMNS`): the batch's series in
  *   their order, then the file's series without a model in file order.
- * batch.csv, batch.json and index.html stay those of the forecast run (its holdout scores); each
- * series' summary.json and report.html tell its last update.
+ * - `index.html` (when the batch has reports): the forecast run's page with a column saying what
+ *   this update did to each series (a drift alarm tagged), and its totals at the top.
+ * batch.csv and batch.json stay those of the forecast run (its holdout scores); each series'
+ * summary.json and report.html tell its last update.
  */
 import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
@@ -41,7 +43,8 @@ import { applyUpdate, checkSeason, parseUpdateOptions } from '../cli/update.js';
 import { summaryDocument } from '../report/result-json.js';
 import { updateRecords, updateSummaryJson } from '../report/update-report.js';
 import { csvField, toCsv, type Cell } from '../report/tables.js';
-import { csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
+import { batchIndexHtml, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
+import type { BatchIndexUpdate, BatchIndexUpdateTotals } from '../report/batch-index.js';
 import { rawRecords } from './csv-records.js';
 import { readBatchManifest, type Manifest } from './merge.js';
 import { runJobPool, type PoolJob } from './pool.js';
@@ -317,11 +320,42 @@ export async function updateBatch(
       }
       await writeFileAtomic(join(dir, 'forecasts.csv'), await mergedForecasts(dir, manifest, finished, levels), { mkdir: true });
       await writeFileAtomic(join(dir, 'updates.csv'), updatesCsv(finished.map((o) => o.row)), { mkdir: true });
-      return { manifest, outcomes: finished, tables: ['forecasts.csv', 'updates.csv'], stoppedBy: null };
+      const tables = ['forecasts.csv', 'updates.csv'];
+      if (manifest.report) {
+        await writeFileAtomic(join(dir, 'index.html'), batchIndexHtml(manifest.rows, indexUpdates(manifest, finished)), { mkdir: true });
+        tables.push('index.html');
+      }
+      return { manifest, outcomes: finished, tables, stoppedBy: null };
     },
     { command: `certa update ${dir} ${settings.data}` },
   );
   return locked.value;
+}
+
+/** What the update did to each series of the batch, in words, and its totals, for index.html. */
+function indexUpdates(manifest: Manifest, outcomes: readonly UpdateOutcome[]): { bySeries: Map<string, BatchIndexUpdate>; totals: BatchIndexUpdateTotals } {
+  const structures = new Map(manifest.rows.map((r) => [r.series, r.structure]));
+  const bySeries = new Map<string, BatchIndexUpdate>();
+  const totals: BatchIndexUpdateTotals = { updated: 0, unchanged: 0, failed: 0, alarms: 0, withoutModel: 0 };
+  for (const o of outcomes) {
+    const r = o.row;
+    totals[r.status]++;
+    totals.alarms += r.alarms ?? 0;
+    if (r.position === null) {
+      totals.withoutModel++;
+      continue;
+    }
+    const prefix = `series "${r.series}": `;
+    const reason = (r.reason ?? '').startsWith(prefix) ? (r.reason ?? '').slice(prefix.length) : (r.reason ?? '');
+    let text = reason;
+    if (r.status === 'updated') {
+      text = `${r.rowsAdded} new row${r.rowsAdded === 1 ? '' : 's'} to ${r.lastTime}`;
+      if ((r.alarms ?? 0) > 0) text += `; policy ${r.policy}`;
+      if (r.structure !== structures.get(r.series)) text += `; now ${r.structure}`;
+    }
+    bySeries.set(r.series, { status: r.status, text, alarms: r.alarms ?? 0 });
+  }
+  return { bySeries, totals };
 }
 
 /**

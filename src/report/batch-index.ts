@@ -1,6 +1,7 @@
 /**
  * `index.html` of a batch: one row per series linking its `report.html`, with its status, the
- * asserted structure, the holdout MASE and the best baseline. A static table (no chart library)
+ * asserted structure, the holdout MASE and the best baseline, and after a `certa update` of the
+ * batch what that update did to each series. A static table (no chart library)
  * with a small inline filter, so a page of 1,000 series opens at once; self-contained and offline
  * like every certa page, every input text escaped.
  */
@@ -21,6 +22,27 @@ export interface BatchIndexRow {
   structure: string | null;
   holdoutMase: number | null;
   bestBaseline: { name: string; mase: number } | null;
+  /** What the last `certa update` of the batch did to the series (absent before any). */
+  update?: BatchIndexUpdate;
+}
+
+/** A series' part in the last update of its batch (updates.csv). */
+export interface BatchIndexUpdate {
+  status: 'updated' | 'unchanged' | 'failed';
+  /** In words: the rows learnt and to when, or why nothing changed or what failed. */
+  text: string;
+  /** Drift alarms the update raised. */
+  alarms: number;
+}
+
+/** The totals of the last update, for the page's header. */
+export interface BatchIndexUpdateTotals {
+  updated: number;
+  unchanged: number;
+  failed: number;
+  alarms: number;
+  /** Series of the new data without a model in the batch (listed in updates.csv, not here). */
+  withoutModel: number;
 }
 
 /** A relative folder as a link target: each path segment percent-encoded, `/` kept. */
@@ -49,8 +71,23 @@ const FILTER_SCRIPT = `(function () {
   });
 })();`;
 
-/** The whole index page of a batch, rows in the order given. */
-export function renderBatchIndex(rows: readonly BatchIndexRow[], title = 'certa batch'): string {
+function plural(n: number, one: string): string {
+  return `${n} ${one}${n === 1 ? '' : 's'}`;
+}
+
+/** The cell of a series' last update: a tag (a drift alarm is the bad news) and the words. */
+function updateCell(u: BatchIndexUpdate | undefined): string {
+  if (!u) return '<td class="status"></td>';
+  const [cls, tag] = u.status === 'failed' ? [' bad', 'failed'] : u.alarms > 0 ? [' bad', plural(u.alarms, 'drift alarm')] : u.status === 'updated' ? [' good', 'updated'] : ['', 'unchanged'];
+  return `<td class="status"><span class="tag${cls}">${esc(tag)}</span> <span class="note">${esc(u.text)}</span></td>`;
+}
+
+/**
+ * The whole index page of a batch, rows in the order given. With `updates` (the totals of the
+ * batch's last `certa update`) the page says what that update did, and each row has a column for
+ * it; the other columns stay those of the forecast run.
+ */
+export function renderBatchIndex(rows: readonly BatchIndexRow[], title = 'certa batch', updates: BatchIndexUpdateTotals | null = null): string {
   const ok = rows.filter((r) => r.status === 'forecast').length;
   const beaten = rows.filter((r) => r.holdoutMase !== null && r.bestBaseline !== null && r.bestBaseline.mase < r.holdoutMase).length;
   const body = rows
@@ -58,15 +95,18 @@ export function renderBatchIndex(rows: readonly BatchIndexRow[], title = 'certa 
       const linked = r.status === 'forecast' ? `<a href="${esc(href(r.folder))}">${esc(r.series)}</a>` : esc(r.series);
       const statusTag = `<span class="tag${r.status === 'forecast' ? ' good' : ' bad'}">${esc(r.status)}</span>`;
       const base = r.bestBaseline ? `${esc(r.bestBaseline.name)} ${mase(r.bestBaseline.mase)}` : '';
-      return `<tr><td>${linked}</td><td class="status">${statusTag}${r.reason ? ` <span class="note">${esc(r.reason)}</span>` : ''}</td><td>${esc(r.structure ?? '')}</td><td class="n">${mase(r.holdoutMase)}</td><td class="nowrap">${base}</td></tr>`;
+      return `<tr><td class="nowrap">${linked}</td><td class="status">${statusTag}${r.reason ? ` <span class="note">${esc(r.reason)}</span>` : ''}</td><td>${esc(r.structure ?? '')}</td><td class="n">${mase(r.holdoutMase)}</td><td class="nowrap">${base}</td>${updates ? updateCell(r.update) : ''}</tr>`;
     })
     .join('\n');
+  const updateLine = updates
+    ? `<p class="sub">Last update (updates.csv): ${updates.updated} updated, ${updates.unchanged} unchanged, ${updates.failed} failed; ${plural(updates.alarms, 'drift alarm')}${updates.withoutModel > 0 ? `; ${plural(updates.withoutModel, 'series')} of the new data without a model here` : ''}. The other columns are those of the forecast run.</p>`
+    : '';
   const html = [
     '<main>',
-    `<header class="top"><h1>${esc(title)}</h1><p class="sub">${rows.length} series: ${ok} forecast, ${rows.length - ok} not; the best baseline beat the model on ${beaten}</p></header>`,
+    `<header class="top"><h1>${esc(title)}</h1><p class="sub">${rows.length} series: ${ok} forecast, ${rows.length - ok} not; the best baseline beat the model on ${beaten}</p>${updateLine}</header>`,
     `<section class="caution"><p>${esc(FORECAST_CAUTION)}</p></section>`,
     `<section><p><input class="filter" id="filter" type="search" placeholder="filter by any text in a row" aria-label="filter rows"> <span class="note"><span id="shown">${rows.length}</span> shown</span></p>`,
-    '<table id="series"><thead><tr><th>series</th><th>status</th><th>asserted structure</th><th class="n">holdout MASE</th><th>best baseline (MASE)</th></tr></thead><tbody>',
+    `<table id="series"><thead><tr><th>series</th><th>status</th><th>asserted structure</th><th class="n">holdout MASE</th><th>best baseline (MASE)</th>${updates ? '<th>last update</th>' : ''}</tr></thead><tbody>`,
     body,
     '</tbody></table></section>',
     '</main>',

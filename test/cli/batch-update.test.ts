@@ -123,6 +123,11 @@ describe('certa update on a batch folder', () => {
     for (const name of ['kiosk-2', 'kiosk-3']) {
       for (const [path, bytes] of before) if (path.startsWith(`${folderOf(name)}/`)) expect(after.get(path), path).toBe(bytes);
     }
+    // index.html: the forecast run's page with what the update did
+    const index = readFileSync(join(batch, 'index.html'), 'utf8');
+    expect(index).toContain('Last update (updates.csv): 3 updated, 2 unchanged, 2 failed; 0 drift alarms; 1 series of the new data without a model here.');
+    expect(index).toContain('<span class="tag good">updated</span> <span class="note">2 new rows to 2024-02</span>');
+    expect(index).toContain('<span class="note">not in the new data</span>');
     expect(after.get('batch.csv')).toBe(before.get('batch.csv'));
     expect(after.get('batch.json')).toBe(before.get('batch.json'));
     expect(existsSync(join(batch, 'batch.json.lock'))).toBe(false);

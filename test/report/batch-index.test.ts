@@ -30,6 +30,25 @@ describe('renderBatchIndex', () => {
   it('is deterministic', () => {
     expect(renderBatchIndex(rows)).toBe(renderBatchIndex(rows));
   });
+  it('after an update: a column of what it did to each series, a drift alarm tagged, and its totals', () => {
+    const plain = renderBatchIndex(rows);
+    expect(plain).not.toContain('last update');
+    const updated: BatchIndexRow[] = [
+      { ...rows[0], update: { status: 'updated', text: '2 new rows to 2025-02; policy adapt', alarms: 1 } },
+      { ...rows[1], update: { status: 'unchanged', text: 'not in the <new> data', alarms: 0 } },
+      { ...rows[2], update: { status: 'failed', text: 'no model in this batch', alarms: 0 } },
+    ];
+    const html = renderBatchIndex(updated, 'certa batch', { updated: 1, unchanged: 1, failed: 2, alarms: 1, withoutModel: 1 });
+    expect(html).toContain('<th>last update</th>');
+    expect(html).toContain('<span class="tag bad">1 drift alarm</span> <span class="note">2 new rows to 2025-02; policy adapt</span>');
+    expect(html).toContain('<span class="tag">unchanged</span> <span class="note">not in the &lt;new&gt; data</span>');
+    expect(html).toContain('<span class="tag bad">failed</span>');
+    expect(html).toContain('Last update (updates.csv): 1 updated, 1 unchanged, 2 failed; 1 drift alarm; 1 series of the new data without a model here.');
+    // every row has the column, so the table stays rectangular
+    const bodyRows = html.split('<tbody>')[1].split('</tbody>')[0].split('</tr>').filter((r) => r.includes('<td'));
+    expect(bodyRows.map((r) => r.match(/<td/g)!.length)).toEqual([6, 6, 6]);
+    expect(html.split('</thead>')[0].match(/<th/g)).toHaveLength(6);
+  });
 });
 
 const skip = browserSkipReason();
