@@ -21,7 +21,8 @@
  * Written at the top of the batch folder, after every series (each atomically, under a lock on
  * batch.json so that two batch updates never interleave):
  * - `forecasts.csv`: as a forecast run writes it, each updated series' records replaced by its
- *   new forecast rows, the other series' records kept;
+ *   new forecast rows, the other series' records kept (unless they no longer start where the
+ *   model's forecast does: a run cut short after updating a series is mended by running again);
  * - `updates.csv`: the last update, one row per outcome (`UPDATE_COLUMNS`): the batch's series in
  *   their order, then the file's series without a model in file order.
  * - `index.html` (when the batch has reports): the forecast run's page with a column saying what
@@ -110,7 +111,11 @@ export interface UpdateSettings {
 export interface UpdateOutcome {
   index: number;
   row: UpdateRow;
-  /** The series' new forecasts.csv records, or null to keep its old ones. */
+  /**
+   * The forecasts.csv records of the series' model as it now stands (null when the series was not
+   * updated: absent from the file, or failed). An unchanged series keeps its old records unless
+   * they no longer start where its model's forecast starts (`mergedForecasts`).
+   */
   forecasts: string | null;
   /** The series' summary.json text when the settings keep it (for --json). */
   summaryJson: string | null;
@@ -155,7 +160,7 @@ export async function runUpdateJob(task: UpdateTask, settings: UpdateSettings): 
     return {
       index: task.index,
       row,
-      forecasts: result.changed ? updateRecords(result) : null,
+      forecasts: updateRecords(result),
       summaryJson: settings.keepSummary ? updateSummaryJson(summaryDocument('update', summary)) : null,
       inFile: true,
       error: null,
@@ -381,11 +386,26 @@ async function mergedForecasts(dir: string, manifest: Manifest, outcomes: readon
     if (list) list.push(r.text);
     else kept.set(r.fields[0], [r.text]);
   }
-  const fresh = new Map(outcomes.filter((o) => o.forecasts !== null).map((o) => [o.row.series, o.forecasts as string]));
+  const current = new Map(outcomes.filter((o) => o.forecasts !== null).map((o) => [o.row.series, o]));
   let out = header;
   for (const row of manifest.rows) {
-    const mine = fresh.get(row.series);
-    out += mine ?? (kept.get(csvField(row.series)) ?? []).join('');
+    const old = kept.get(csvField(row.series)) ?? [];
+    const now = current.get(row.series);
+    const stale = now !== undefined && (now.row.status === 'updated' || forecastStart(old) !== forecastStart(rawRecords(now.forecasts!).map((r) => r.text)));
+    out += stale ? now.forecasts : old.join('');
   }
   return out;
+}
+
+/**
+ * The time of the first forecast record of a series (as written), or null. An unchanged series
+ * whose old records start elsewhere than its model's forecast was updated by a run that stopped
+ * before it rewrote forecasts.csv: its records are replaced, so a repeated run mends the table.
+ */
+function forecastStart(records: readonly string[]): string | null {
+  for (const text of records) {
+    const [r] = rawRecords(text);
+    if (r && r.fields[2] === 'forecast') return r.fields[1];
+  }
+  return null;
 }

@@ -171,6 +171,24 @@ describe('certa update on a batch folder', () => {
     }
   });
 
+  it('mends forecasts.csv when a run stopped after updating a series but before writing the tables', () => {
+    const batch = copyBatch(join(dir, 'mend'));
+    // kiosk-1's model learns the new rows alone, as a batch run cut short after it would have left it
+    const single = runCli(['update', join(batch, folderOf('kiosk-1'), 'model.json'), newRows, '--id', 'kiosk', '--series', 'kiosk-1', '--no-charts', '--no-report']);
+    expect(single.code, single.stderr).toBe(0);
+    const r = update(batch, '--no-report');
+    expect(r.code).toBe(4);
+    const rows = rawRecords(readFileSync(join(batch, 'updates.csv'), 'utf8')).slice(1);
+    expect(rows[0].fields.slice(1, 4)).toEqual(['kiosk-1', folderOf('kiosk-1'), 'unchanged']);
+    const now = rawRecords(readFileSync(join(batch, 'forecasts.csv'), 'utf8')).filter((x) => x.fields[0] === 'kiosk-1');
+    const own = rawRecords(readFileSync(join(batch, folderOf('kiosk-1'), 'forecast.csv'), 'utf8')).filter((x) => x.fields[2] === 'forecast');
+    expect(now.map((x) => x.fields)).toEqual(own.map((x) => [...x.fields.slice(0, 5), ...x.fields.slice(6)]));
+    // kiosk-2 (no new row, never updated) keeps the forecast run's records, holdout rows included
+    const old = rawRecords(readFileSync(join(original, 'forecasts.csv'), 'utf8')).filter((x) => x.fields[0] === 'kiosk-2');
+    expect(rawRecords(readFileSync(join(batch, 'forecasts.csv'), 'utf8')).filter((x) => x.fields[0] === 'kiosk-2').map((x) => x.text)).toEqual(old.map((x) => x.text));
+    expect(old.some((x) => x.fields[2] === 'holdout')).toBe(true);
+  });
+
   it('writes the same bytes with one worker and with three', () => {
     const one = copyBatch(join(dir, 'w1'));
     const three = join(dir, 'w3');
