@@ -37,6 +37,7 @@ import { resultDocument, type ResultEntry } from '../report/result-json.js';
 import { addBatchOptions, EXIT_SOME_FAILED, parseBatchOptions, type CliBatchOptions } from './batch.js';
 import { failureText, jobError, type JobError } from '../batch/series-job.js';
 import { runJobPool, type PoolJob } from '../batch/pool.js';
+import { BatchProgress } from './progress.js';
 
 interface CliSearchOptions {
   search: SearchOptions;
@@ -144,6 +145,8 @@ const SEARCH_JOB: PoolJob<SearchTask, SearchSettings, SearchOutcome> = { run: se
 async function searchSeveral(series: readonly Series[], folders: readonly string[], opts: Record<string, unknown>, batch: CliBatchOptions, io: CliIO): Promise<SearchOutcome[]> {
   const tasks: SearchTask[] = series.map((s, i) => ({ position: i + 1, series: s, folder: folders[i] }));
   const outcomes: (SearchOutcome | undefined)[] = new Array(tasks.length).fill(undefined);
+  // "series k of n" on a terminal; cleared before each failure line and at the end
+  const progress = batch.quiet ? null : new BatchProgress(io, tasks.length);
   let shown = 0;
   let stopper: SearchOutcome | null = null;
   const show = (): void => {
@@ -151,7 +154,10 @@ async function searchSeveral(series: readonly Series[], folders: readonly string
       const o = outcomes[shown]!;
       if (o.error && (o.error.internal || batch.failFast)) stopper = o;
       else {
-        if (o.error) io.err(`certa: ${o.entry.reason}\n`);
+        if (o.error) {
+          progress?.stop();
+          io.err(`certa: ${o.entry.reason}\n`);
+        }
         shown++;
       }
     }
@@ -159,11 +165,13 @@ async function searchSeveral(series: readonly Series[], folders: readonly string
   await runJobPool(SEARCH_JOB, tasks, { opts }, {
     workers: batch.workers,
     failFast: batch.failFast,
-    onOutcome: (o) => {
+    onOutcome: (o, done) => {
       outcomes[o.position - 1] = o;
       show();
+      progress?.update(done);
     },
   });
+  progress?.stop();
   if (stopper) throw commandError(stopper);
   return outcomes as SearchOutcome[];
 }

@@ -93,6 +93,27 @@ describe('certa search on several series, by the worker pool', () => {
     }
   });
 
+  it('shows "series k of n" on a terminal, cleared before each failure line and at the end', async () => {
+    const out = join(dir, 'tty');
+    const c = capture();
+    const code = await main(['node', 'certa', 'search', file, '--id', 'landing', '--out', out, '--workers', '1'], { ...c.io, isTTY: true });
+    expect(code).toBe(4);
+    const err = c.err();
+    const blank = `\r${' '.repeat(48)}\r`;
+    expect(err).toContain(`\r${'series 6 of 6'.padEnd(48)}`);
+    expect(err.endsWith(blank)).toBe(true);
+    // what a terminal shows once each line is rewritten in place (the text after its last \r): the two failure lines
+    const lines = err
+      .split('\n')
+      .map((l) => l.slice(l.lastIndexOf('\r') + 1))
+      .filter((l) => l.trim() !== '');
+    expect(lines.map((l) => l.match(/^certa: series "(\w+)"/)?.[1])).toEqual(['short', 'tiny']);
+    // not on a pipe, nor with --quiet
+    const quiet = capture();
+    await main(['node', 'certa', 'search', file, '--id', 'landing', '--out', `${out}-q`, '--workers', '1', '--quiet'], { ...quiet.io, isTTY: true });
+    expect(quiet.err()).not.toContain('series 1 of 6');
+  });
+
   it('prints the same --json document with 1 and 3 workers, the failures with their reason', async () => {
     const out = join(dir, 'json');
     const one = await search(out, 'w1', ['--workers', '1', '--json']);
