@@ -236,33 +236,30 @@ export async function batchModels(dir: string): Promise<{ inputs: string[]; freq
 
 const BATCH_FOLDER = 'a batch folder written by certa forecast over a file of several series';
 
-/** A series of the file that has no model in the batch, as a failed outcome. */
+/** An outcome decided without updating: the series' row of updates.csv with nothing learnt. */
+function outcomeOf(index: number, series: string, row: BatchRow | undefined, status: UpdateStatus, reason: string, error: JobError | null, inFile = true): UpdateOutcome {
+  return {
+    index,
+    row: { position: row?.position ?? null, series, folder: row?.folder ?? null, status, reason, rowsAdded: status === 'unchanged' ? 0 : null, lastTime: null, alarms: null, policy: null, structure: null, warnings: [] },
+    forecasts: null,
+    summaryJson: null,
+    inFile,
+    error,
+  };
+}
+
+/** A series of the file that has no model in the batch (`row` when its forecast failed), as a failed outcome. */
 function withoutModel(index: number, name: string, row: BatchRow | undefined): UpdateOutcome {
   const line = row
     ? 'no model in this batch: its forecast failed (see batch.csv); forecast it again once it can be'
     : 'no model in this batch: the batch was not forecast for it; forecast it with certa forecast first';
   const error: JobError = { code: 'no-model', message: line, line, hint: null, exitCode: 2, internal: false };
-  const reason = `series "${name}": ${line}`;
-  return {
-    index,
-    row: { position: row?.position ?? null, series: name, folder: null, status: 'failed', reason, rowsAdded: null, lastTime: null, alarms: null, policy: null, structure: null, warnings: [] },
-    forecasts: null,
-    summaryJson: null,
-    inFile: true,
-    error,
-  };
+  return outcomeOf(index, name, row && { ...row, folder: null }, 'failed', `series "${name}": ${line}`, error);
 }
 
 function failedAtLoad(index: number, f: LoadFailure, row: BatchRow | undefined): UpdateOutcome {
   const error = jobError(f.error);
-  return {
-    index,
-    row: { position: row?.position ?? null, series: f.name, folder: row?.folder ?? null, status: 'failed', reason: failureText(f.name, error.line), rowsAdded: null, lastTime: null, alarms: null, policy: null, structure: null, warnings: [] },
-    forecasts: null,
-    summaryJson: null,
-    inFile: true,
-    error,
-  };
+  return outcomeOf(index, f.name, row, 'failed', failureText(f.name, error.line), error);
 }
 
 /** The batch update (see the module comment). `series` and `failed` are the new file's series as loaded. */
@@ -289,7 +286,7 @@ export async function updateBatch(
         const s = loaded.get(row.series);
         const bad = unreadable.get(row.series);
         if (bad) outcomes.push(failedAtLoad(index, bad, row));
-        else if (!s) outcomes.push({ index, row: { position: row.position, series: row.series, folder: row.folder, status: 'unchanged', reason: 'not in the new data', rowsAdded: 0, lastTime: null, alarms: null, policy: null, structure: null, warnings: [] }, forecasts: null, summaryJson: null, inFile: false, error: null });
+        else if (!s) outcomes.push(outcomeOf(index, row.series, row, 'unchanged', 'not in the new data', null, false));
         else if (row.status !== 'forecast' || row.folder === null) outcomes.push(withoutModel(index, row.series, row));
         else {
           outcomes.push(undefined);
