@@ -48,3 +48,16 @@ export function rawRecords(text: string): RawRecord[] {
   }
   return out;
 }
+
+/**
+ * Records grouped by their first field as written (the series of a forecasts.csv record), each
+ * group in the order met; added to `groups` when given (the tables of several shards).
+ */
+export function byFirstField(records: readonly RawRecord[], groups: Map<string, RawRecord[]> = new Map()): Map<string, RawRecord[]> {
+  for (const r of records) {
+    const list = groups.get(r.fields[0]);
+    if (list) list.push(r);
+    else groups.set(r.fields[0], [r]);
+  }
+  return groups;
+}

@@ -18,7 +18,7 @@ import { DataError, UsageError } from '../data/errors.js';
 import { isAnyTemporaryName, writeFileAtomic } from '../store/atomic.js';
 import { CHART_ASSET } from '../report/html.js';
 import { BATCH_FORMAT, BATCH_VERSION, batchIndexHtml, batchManifest, batchRowFromJson, type BatchRow } from './batch-table.js';
-import { rawRecords, type RawRecord } from './csv-records.js';
+import { byFirstField, rawRecords, type RawRecord } from './csv-records.js';
 import { TOP_LEVEL_NAMES } from './folder-names.js';
 
 /** What batch.json says of a batch folder (`readBatchManifest`). */
@@ -150,7 +150,7 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   const batchTable = { header: null as RawRecord | null };
   const forecastsTable = { header: null as RawRecord | null };
   const rows: { position: number; record: RawRecord }[] = [];
-  const groups = new Map<string, string[]>();
+  const groups = new Map<string, RawRecord[]>();
   const folders = new Map<string, string>();
   for (const dir of dirs) {
     for (const r of await shardRecords(dir, 'batch.csv', batchTable)) {
@@ -158,12 +158,7 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
       if (!Number.isInteger(position) || position < 1) throw new DataError('merge-position', 'a batch.csv record has no position', { file: join(dir, 'batch.csv'), found: r.fields[0] });
       rows.push({ position, record: r });
     }
-    for (const r of await shardRecords(dir, 'forecasts.csv', forecastsTable)) {
-      const key = r.fields[0];
-      const list = groups.get(key);
-      if (list) list.push(r.text);
-      else groups.set(key, [r.text]);
-    }
+    byFirstField(await shardRecords(dir, 'forecasts.csv', forecastsTable), groups);
     for (const entry of await fsp.readdir(dir, { withFileTypes: true })) {
       if (!entry.isDirectory() || TOP_LEVEL.has(entry.name)) continue;
       const other = folders.get(entry.name);
@@ -182,7 +177,7 @@ export async function mergeBatches(dirs: readonly string[], out: string): Promis
   let forecasts = forecastsTable.header!.text;
   for (const r of rows) {
     const list = groups.get(r.record.fields[1]);
-    if (list) forecasts += list.join('');
+    if (list) forecasts += list.map((x) => x.text).join('');
   }
   for (const [name, dir] of [...folders.entries()].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))) await copyTree(join(dir, name), join(out, name));
   await writeFileAtomic(join(out, 'batch.csv'), batchTable.header!.text + rows.map((r) => r.record.text).join(''), { mkdir: true });

@@ -64,8 +64,13 @@ export function failureText(series: string, line: string): string {
 
 /** Warnings of one series: those of its run and the load notes that name it. */
 function seriesWarnings(name: string, runWarnings: string[], notes: string[]): string[] {
+  return [...notesNaming(name, notes).map((n) => n.replace(/^warning: /, '')), ...runWarnings];
+}
+
+/** The notes from loading a file that name this series (a batch gives each series its own). */
+export function notesNaming(name: string, notes: readonly string[]): string[] {
   const tag = `series "${name}"`;
-  return [...notes.filter((n) => n.includes(tag)).map((n) => n.replace(/^warning: /, '')), ...runWarnings];
+  return notes.filter((n) => n.includes(tag));
 }
 
 export async function runSeriesJob(task: SeriesTask, settings: JobSettings): Promise<SeriesOutcome> {

@@ -30,7 +30,7 @@
  * batch.csv and batch.json stay those of the forecast run (its holdout scores); each series'
  * summary.json and report.html tell its last update.
  */
-import { promises as fsp } from 'node:fs';
+import { existsSync, promises as fsp } from 'node:fs';
 import { join } from 'node:path';
 import { UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
@@ -40,16 +40,16 @@ import { writeFileAtomic } from '../store/atomic.js';
 import { CHART_ASSET, chartAssetSrc } from '../report/html.js';
 import { withLock } from '../store/lock.js';
 import { readModelFile } from '../store/model-file.js';
-import { applyUpdate, checkSeason, parseUpdateOptions } from '../cli/update.js';
+import { parseUpdateOptions, updateModel } from '../cli/update.js';
 import { summaryDocument } from '../report/result-json.js';
 import { updateRecords, updateSummaryJson } from '../report/update-report.js';
 import { csvField, toCsv, type Cell } from '../report/tables.js';
 import { batchIndexHtml, csvHeader, forecastsColumns, type BatchRow } from './batch-table.js';
 import type { BatchIndexUpdate, BatchIndexUpdateTotals } from '../report/batch-index.js';
-import { rawRecords } from './csv-records.js';
+import { byFirstField, rawRecords, type RawRecord } from './csv-records.js';
 import { readBatchManifest, type Manifest } from './merge.js';
 import { runJobPool, type PoolJob } from './pool.js';
-import { failureText, jobError, type JobError } from './series-job.js';
+import { failureText, jobError, notesNaming, type JobError } from './series-job.js';
 import { shardOf } from './shard.js';
 
 export type UpdateStatus = 'updated' | 'unchanged' | 'failed';
@@ -124,28 +124,14 @@ export interface UpdateOutcome {
   error: JobError | null;
 }
 
-function notesOf(name: string, notes: readonly string[]): string[] {
-  const tag = `series "${name}"`;
-  return notes.filter((n) => n.includes(tag));
-}
-
 /** The update of one series (in a worker or in this thread): a failure is an outcome, not an exception. */
 export async function runUpdateJob(task: UpdateTask, settings: UpdateSettings): Promise<UpdateOutcome> {
   const base: UpdateRow = { position: task.row.position, series: task.row.series, folder: task.row.folder, status: 'failed', reason: null, rowsAdded: null, lastTime: null, alarms: null, policy: null, structure: null, warnings: [] };
   try {
     const cli = { ...parseUpdateOptions(settings.opts), levels: settings.levels };
-    const locked = await withLock(
-      task.model,
-      async () => {
-        const body = await readModelFile(task.model);
-        checkSeason(body, task.model, settings.opts);
-        const html = settings.sharedCharts ? { chartLibrarySrc: chartAssetSrc(task.row.folder!) } : {};
-        return applyUpdate(task.model, body, task.series, settings.data, cli, notesOf(task.series.name, settings.loadNotes), task.path, html);
-      },
-      { command: `certa update ${task.model} ${settings.data}` },
-    );
-    const { result, summary } = locked.value;
-    if (locked.note) (summary.warnings as string[]).push(locked.note);
+    const html = settings.sharedCharts ? { chartLibrarySrc: chartAssetSrc(task.row.folder!) } : {};
+    const rows = { rows: task.series, notes: notesNaming(task.series.name, settings.loadNotes) };
+    const { result, summary } = await updateModel(task.model, settings.data, cli, settings.opts, task.path, async () => rows, html);
     const row: UpdateRow = {
       ...base,
       status: result.changed ? 'updated' : 'unchanged',
@@ -190,23 +176,6 @@ export interface UpdateBatchResult {
   tables: string[];
   /** The first failure when failFast stopped the update (nothing written at the top then). */
   stoppedBy: UpdateOutcome | null;
-}
-
-async function isFile(path: string): Promise<boolean> {
-  try {
-    return (await fsp.stat(path)).isFile();
-  } catch {
-    return false;
-  }
-}
-
-/** True when `path` is a folder (`certa update` takes a folder as a batch folder). */
-export async function isFolder(path: string): Promise<boolean> {
-  try {
-    return (await fsp.stat(path)).isDirectory();
-  } catch {
-    return false;
-  }
 }
 
 /** The batch's interval levels, or a UsageError when --levels asks for others. */
@@ -306,7 +275,7 @@ export async function updateBatch(
       options.onStart?.(total);
       let done = 0;
       for (const o of outcomes) if (o) options.onOutcome?.(o, ++done, total);
-      const sharedCharts = await isFile(join(dir, CHART_ASSET));
+      const sharedCharts = existsSync(join(dir, CHART_ASSET));
       await runJobPool(UPDATE_JOB, tasks, { ...settings, levels, keepSummary: options.keepSummary, sharedCharts }, {
         workers: options.workers,
         failFast: options.failFast,
@@ -347,9 +316,8 @@ function indexUpdates(manifest: Manifest, outcomes: readonly UpdateOutcome[]): {
       totals.withoutModel++;
       continue;
     }
-    const prefix = `series "${r.series}": `;
-    const reason = (r.reason ?? '').startsWith(prefix) ? (r.reason ?? '').slice(prefix.length) : (r.reason ?? '');
-    let text = reason;
+    // a failure in its own words (the row's reason names the series, which the page's row does)
+    let text = o.error?.line ?? r.reason ?? '';
     if (r.status === 'updated') {
       text = `${r.rowsAdded} new row${r.rowsAdded === 1 ? '' : 's'} to ${r.lastTime}`;
       if ((r.alarms ?? 0) > 0) text += `; policy ${r.policy}`;
@@ -374,22 +342,18 @@ async function mergedForecasts(dir: string, manifest: Manifest, outcomes: readon
     if ((e as NodeJS.ErrnoException).code !== 'ENOENT') throw e;
   }
   const [head, ...records] = rawRecords(old);
+  const updated = new Set(outcomes.filter((o) => o.row.status === 'updated').map((o) => o.row.series));
   if (head && head.text !== header) {
     throw new UsageError('batch-forecasts', 'forecasts.csv has other columns than the batch’s levels give', { file, found: head.text.trim(), expected: header.trim() });
   }
-  const kept = new Map<string, string[]>();
-  for (const r of records) {
-    const list = kept.get(r.fields[0]);
-    if (list) list.push(r.text);
-    else kept.set(r.fields[0], [r.text]);
-  }
-  const current = new Map(outcomes.filter((o) => o.forecasts !== null).map((o) => [o.row.series, o]));
+  const kept = byFirstField(records);
+  const current = new Map(outcomes.filter((o) => o.forecasts !== null).map((o) => [o.row.series, o.forecasts as string]));
   let out = header;
   for (const row of manifest.rows) {
     const old = kept.get(csvField(row.series)) ?? [];
     const now = current.get(row.series);
-    const stale = now !== undefined && (now.row.status === 'updated' || forecastStart(old) !== forecastStart(rawRecords(now.forecasts!).map((r) => r.text)));
-    out += stale ? now.forecasts : old.join('');
+    const replace = now !== undefined && (updated.has(row.series) || forecastStart(old) !== forecastStart(rawRecords(now)));
+    out += replace ? now : old.map((r) => r.text).join('');
   }
   return out;
 }
@@ -399,10 +363,6 @@ async function mergedForecasts(dir: string, manifest: Manifest, outcomes: readon
  * whose old records start elsewhere than its model's forecast was updated by a run that stopped
  * before it rewrote forecasts.csv: its records are replaced, so a repeated run mends the table.
  */
-function forecastStart(records: readonly string[]): string | null {
-  for (const text of records) {
-    const [r] = rawRecords(text);
-    if (r && r.fields[2] === 'forecast') return r.fields[1];
-  }
-  return null;
+function forecastStart(records: readonly RawRecord[]): string | null {
+  return records.find((r) => r.fields[2] === 'forecast')?.fields[1] ?? null;
 }

@@ -80,7 +80,7 @@ export async function runForecastBatch(
   io: CliIO,
 ): Promise<void> {
   const out = cli.out ?? 'output';
-  let progress: BatchProgress | null = null;
+  const report = batchReporter(io, batch.quiet);
   const result = await runBatch(series, failedAtLoad, {
     out,
     workers: batch.workers,
@@ -89,18 +89,10 @@ export async function runForecastBatch(
     levels: cli.forecast.levels ?? [...DEFAULT_LEVELS],
     report: cli.report !== false,
     settings: { opts, loadNotes, keepSummary: cli.json },
-    onStart: (total) => {
-      if (!batch.quiet) progress = new BatchProgress(io, total);
-    },
-    onOutcome: (o, done) => {
-      if (o.error) {
-        progress?.stop();
-        io.err(`certa: ${failureText(o.row.series, o.error.line)}\n`);
-      }
-      progress?.update(done);
-    },
+    onStart: report.start,
+    onOutcome: (o, done) => report.outcome(o.error ? failureText(o.row.series, o.error.line) : null, done),
   });
-  (progress as BatchProgress | null)?.stop();
+  report.stop();
   if (result.stoppedBy) throw outcomeError(result.stoppedBy);
   const rows = result.rows;
   const failed = rows.filter((r) => r.status === 'failed');
@@ -114,17 +106,55 @@ export async function runForecastBatch(
     }));
     io.out(resultDocumentText('forecast', entries));
   } else if (!batch.quiet) {
-    const lines = rows.map(batchLine);
     const shard = batch.shard ? ` (shard ${batch.shard.k} of ${batch.shard.n} of ${series.length + failedAtLoad.length} series in the file)` : '';
-    lines.push('');
-    lines.push(`${rows.length} series${shard}: ${rows.length - failed.length} forecast, ${failed.length} failed`);
-    lines.push(`Wrote ${result.tables.join(', ')} and one folder per forecast series to ${out}`);
-    lines.push('');
-    lines.push(FORECAST_CAUTION);
-    io.out(`${lines.join('\n')}\n`);
+    io.out(batchText(rows.map(batchLine), `${rows.length} series${shard}: ${rows.length - failed.length} forecast, ${failed.length} failed`, `Wrote ${result.tables.join(', ')} and one folder per forecast series to ${out}`));
   }
-  if (failed.length > 0) {
-    if (batch.quiet || cli.json) io.err(`certa: ${failed.length} of ${rows.length} series failed (see batch.csv in ${out})\n`);
-    throw new ExitRequest(result.outcomes.some((o) => o.error?.internal) ? 1 : EXIT_SOME_FAILED);
-  }
+  failIfSome(io, failed.length, rows.length, !(batch.quiet || cli.json), `batch.csv in ${out}`, result.outcomes.some((o) => o.error?.internal));
+}
+
+/**
+ * "series k of n" on standard error while a batch runs (a terminal only; nothing with --quiet),
+ * cleared for the `certa:` line of each failure as it comes.
+ */
+export interface BatchReporter {
+  start: (total: number) => void;
+  /** A failure's `certa:` line (`failure`), when one came, then the count done. */
+  outcome: (failure: string | null, done: number) => void;
+  /** A failure's line alone (the count follows with `outcome`). */
+  fail: (failure: string) => void;
+  stop: () => void;
+}
+
+export function batchReporter(io: CliIO, quiet: boolean): BatchReporter {
+  let progress: BatchProgress | null = null;
+  const fail = (failure: string): void => {
+    progress?.stop();
+    io.err(`certa: ${failure}\n`);
+  };
+  return {
+    start: (total) => {
+      if (!quiet) progress = new BatchProgress(io, total);
+    },
+    outcome: (failure, done) => {
+      if (failure !== null) fail(failure);
+      progress?.update(done);
+    },
+    fail,
+    stop: () => progress?.stop(),
+  };
+}
+
+/** The text summary of a batch: one line per series, its totals, what it wrote, and the caution once. */
+export function batchText(lines: readonly string[], totals: string, wrote: string): string {
+  return `${[...lines, '', totals, wrote, '', FORECAST_CAUTION].join('\n')}\n`;
+}
+
+/**
+ * Exit code 4 when some series of a batch failed (1 when a failure was a bug), with a line on
+ * standard error saying how many when the text summary did not (`shown` false: --quiet, --json).
+ */
+export function failIfSome(io: CliIO, failed: number, total: number, shown: boolean, where: string, internal: boolean): void {
+  if (failed === 0) return;
+  if (!shown) io.err(`certa: ${failed} of ${total} series failed (see ${where})\n`);
+  throw new ExitRequest(internal ? 1 : EXIT_SOME_FAILED);
 }

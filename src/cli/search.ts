@@ -34,10 +34,9 @@ import { outputFolders, runClock } from './output.js';
 import { ExitRequest, type CliIO } from './main.js';
 import { CertaError } from '../data/errors.js';
 import { resultDocument, type ResultEntry } from '../report/result-json.js';
-import { addBatchOptions, EXIT_SOME_FAILED, parseBatchOptions, type CliBatchOptions } from './batch.js';
+import { addBatchOptions, batchReporter, EXIT_SOME_FAILED, parseBatchOptions, type CliBatchOptions } from './batch.js';
 import { failureText, jobError, type JobError } from '../batch/series-job.js';
 import { runJobPool, type PoolJob } from '../batch/pool.js';
-import { BatchProgress } from './progress.js';
 
 interface CliSearchOptions {
   search: SearchOptions;
@@ -145,8 +144,8 @@ const SEARCH_JOB: PoolJob<SearchTask, SearchSettings, SearchOutcome> = { run: se
 async function searchSeveral(series: readonly Series[], folders: readonly string[], opts: Record<string, unknown>, batch: CliBatchOptions, io: CliIO): Promise<SearchOutcome[]> {
   const tasks: SearchTask[] = series.map((s, i) => ({ position: i + 1, series: s, folder: folders[i] }));
   const outcomes: (SearchOutcome | undefined)[] = new Array(tasks.length).fill(undefined);
-  // "series k of n" on a terminal; cleared before each failure line and at the end
-  const progress = batch.quiet ? null : new BatchProgress(io, tasks.length);
+  const progress = batchReporter(io, batch.quiet);
+  progress.start(tasks.length);
   let shown = 0;
   let stopper: SearchOutcome | null = null;
   const show = (): void => {
@@ -154,10 +153,7 @@ async function searchSeveral(series: readonly Series[], folders: readonly string
       const o = outcomes[shown]!;
       if (o.error && (o.error.internal || batch.failFast)) stopper = o;
       else {
-        if (o.error) {
-          progress?.stop();
-          io.err(`certa: ${o.entry.reason}\n`);
-        }
+        if (o.error) progress.fail(o.entry.reason ?? o.error.line);
         shown++;
       }
     }
@@ -168,10 +164,10 @@ async function searchSeveral(series: readonly Series[], folders: readonly string
     onOutcome: (o, done) => {
       outcomes[o.position - 1] = o;
       show();
-      progress?.update(done);
+      progress.outcome(null, done);
     },
   });
-  progress?.stop();
+  progress.stop();
   if (stopper) throw commandError(stopper);
   return outcomes as SearchOutcome[];
 }

@@ -9,7 +9,7 @@
  * is written. Exit code 3 with --fail-on-drift when a drift alarm fired.
  */
 import type { Command } from 'commander';
-import { existsSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { DataError, UsageError } from '../data/errors.js';
 import type { Series } from '../data/series.js';
@@ -26,12 +26,10 @@ import { BANDS_HELP, parseBands } from './forecast.js';
 import type { IntervalMethod } from '../forecast/intervals.js';
 import { resultDocument, resultDocumentText, summaryDocument, type WrittenResultEntry } from '../report/result-json.js';
 import { toJson } from '../report/tables.js';
-import { FORECAST_CAUTION } from '../report/cautions.js';
-import { batchModels, isFolder, updateBatch, type UpdateRow } from '../batch/update-batch.js';
+import { batchModels, updateBatch, type UpdateRow } from '../batch/update-batch.js';
 import type { Frequency } from '../data/calendar.js';
 import { outcomeError } from '../batch/run.js';
-import { addBatchOptions, EXIT_SOME_FAILED, parseBatchOptions } from './batch.js';
-import { BatchProgress } from './progress.js';
+import { addBatchOptions, batchReporter, batchText, failIfSome, parseBatchOptions } from './batch.js';
 
 export interface CliUpdateOptions {
   onDrift: DriftPolicy;
@@ -100,7 +98,7 @@ export interface UpdateRun {
 }
 
 /** Refuses a --season that differs from the model's (another season needs a new model). */
-export function checkSeason(body: ModelBody, modelPath: string, opts: Record<string, unknown>): void {
+function checkSeason(body: ModelBody, modelPath: string, opts: Record<string, unknown>): void {
   const season = parseDataOptions(opts).season;
   if (season !== undefined && season !== body.series.season) {
     throw new UsageError('season-mismatch', `--season ${season} differs from the model's season (${body.series.season ?? 'none'})`, {
@@ -118,7 +116,7 @@ export function checkSeason(body: ModelBody, modelPath: string, opts: Record<str
  * `certa update` does after reading its data, and each series of a batch update alike (whose
  * report.html loads the chart library its batch folder keeps: `html`).
  */
-export async function applyUpdate(
+async function applyUpdate(
   modelPath: string,
   body: ModelBody,
   rows: Series,
@@ -151,23 +149,44 @@ export async function applyUpdate(
   return { result, summary };
 }
 
-/** Lock, read, update, write (see the module comment). */
-export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpdateOptions, opts: Record<string, unknown>, io: CliIO): Promise<UpdateRun> {
-  const folder = cli.out ?? dirname(modelPath);
+/**
+ * One model's update under its lock (store/lock.ts): read the model, check --season, take its new
+ * rows (`rowsFor`: the rows of the model's series and the load notes for its summary), update and
+ * write (`applyUpdate`); a note of the lock joins the summary's warnings. `certa update` on one
+ * model and each series of a batch update go through it.
+ */
+export async function updateModel(
+  modelPath: string,
+  dataFile: string,
+  cli: CliUpdateOptions,
+  opts: Record<string, unknown>,
+  folder: string,
+  rowsFor: (body: ModelBody) => Promise<{ rows: Series; notes: readonly string[] }>,
+  html: ReportOptions = {},
+): Promise<{ result: UpdateResult; summary: Record<string, unknown> }> {
   const locked = await withLock(
     modelPath,
     async () => {
       const body = await readModelFile(modelPath);
       checkSeason(body, modelPath, opts);
-      const dataOpts = { ...opts };
-      if (dataOpts.inputs === undefined && body.series.inputs.length > 0) dataOpts.inputs = body.series.inputs.join(',');
-      const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io, { singleStampFrequency: body.series.frequency as Frequency });
-      return applyUpdate(modelPath, body, pickSeries(series, body, dataFile), dataFile, cli, report.notes, folder);
+      const { rows, notes } = await rowsFor(body);
+      return applyUpdate(modelPath, body, rows, dataFile, cli, notes, folder, html);
     },
     { command: `certa update ${modelPath} ${dataFile}` },
   );
   const { result, summary } = locked.value;
   if (locked.note) (summary.warnings as string[]).push(locked.note);
+  return { result, summary };
+}
+
+/** Lock, read, update, write (see the module comment). */
+export async function runUpdate(modelPath: string, dataFile: string, cli: CliUpdateOptions, opts: Record<string, unknown>, io: CliIO): Promise<UpdateRun> {
+  const { result, summary } = await updateModel(modelPath, dataFile, cli, opts, cli.out ?? dirname(modelPath), async (body) => {
+    const dataOpts = { ...opts };
+    if (dataOpts.inputs === undefined && body.series.inputs.length > 0) dataOpts.inputs = body.series.inputs.join(',');
+    const { series, report } = await loadSeriesFromCli(dataFile, dataOpts, io, { singleStampFrequency: body.series.frequency as Frequency });
+    return { rows: pickSeries(series, body, dataFile), notes: report.notes };
+  });
   return { result, summary, text: updateText(result, summary) };
 }
 
@@ -191,7 +210,7 @@ export function register(program: Command, io: CliIO): void {
   addBatchOptions(command, { shard: false, verb: 'updated', workersFor: 'a batch folder' });
   command.action(async (model: string, file: string, opts: Record<string, unknown>) => {
     const cli = parseUpdateOptions(opts);
-    if (await isFolder(model)) {
+    if (statSync(model, { throwIfNoEntry: false })?.isDirectory()) {
       if (existsSync(join(model, 'batch.json'))) return runBatchUpdate(model, file, cli, opts, io);
       if (!existsSync(join(model, 'model.json'))) {
         throw new UsageError('not-a-model', 'the folder holds neither a model (model.json) nor a batch (batch.json)', {
@@ -246,23 +265,15 @@ async function runBatchUpdate(dir: string, file: string, cli: CliUpdateOptions, 
   if (dataOpts.inputs === undefined && models.inputs.length > 0) dataOpts.inputs = models.inputs.join(',');
   const single = models.frequency !== null ? { singleStampFrequency: models.frequency } : {};
   const { series, report } = await loadSeriesFromCli(file, dataOpts, io, { keepGoing: !batch.failFast, ...single });
-  let progress: BatchProgress | null = null;
+  const progress = batchReporter(io, batch.quiet);
   const result = await updateBatch(dir, series, report.failed, { opts, data: file, loadNotes: report.notes }, {
     workers: batch.workers,
     failFast: batch.failFast,
     keepSummary: cli.json,
-    onStart: (total) => {
-      if (!batch.quiet) progress = new BatchProgress(io, total);
-    },
-    onOutcome: (o, done) => {
-      if (o.error) {
-        progress?.stop();
-        io.err(`certa: ${o.row.reason}\n`);
-      }
-      progress?.update(done);
-    },
+    onStart: progress.start,
+    onOutcome: (o, done) => progress.outcome(o.error ? o.row.reason : null, done),
   });
-  (progress as BatchProgress | null)?.stop();
+  progress.stop();
   if (result.stoppedBy) throw outcomeError(result.stoppedBy);
   const rows = result.outcomes.map((o) => o.row);
   const count = (s: UpdateRow['status']): number => rows.filter((r) => r.status === s).length;
@@ -275,17 +286,9 @@ async function runBatchUpdate(dir: string, file: string, cli: CliUpdateOptions, 
     io.out(resultDocumentText('update', entries));
   } else if (!batch.quiet) {
     const shard = result.manifest.shard ? ` (shard ${result.manifest.shard.k} of ${result.manifest.shard.n})` : '';
-    const lines = rows.map(updateLine);
-    lines.push('');
-    lines.push(`${rows.length} series${shard}: ${count('updated')} updated, ${count('unchanged')} unchanged, ${failed} failed; ${alarms} drift alarm${alarms === 1 ? '' : 's'}`);
-    lines.push(`Wrote ${result.tables.join(', ')} and the files of each updated series to ${dir}`);
-    lines.push('');
-    lines.push(FORECAST_CAUTION);
-    io.out(`${lines.join('\n')}\n`);
+    const totals = `${rows.length} series${shard}: ${count('updated')} updated, ${count('unchanged')} unchanged, ${failed} failed; ${alarms} drift alarm${alarms === 1 ? '' : 's'}`;
+    io.out(batchText(rows.map(updateLine), totals, `Wrote ${result.tables.join(', ')} and the files of each updated series to ${dir}`));
   }
-  if (failed > 0) {
-    if (batch.quiet || cli.json) io.err(`certa: ${failed} of ${rows.length} series failed (see updates.csv in ${dir})\n`);
-    throw new ExitRequest(result.outcomes.some((o) => o.error?.internal) ? 1 : EXIT_SOME_FAILED);
-  }
+  failIfSome(io, failed, rows.length, !(batch.quiet || cli.json), `updates.csv in ${dir}`, result.outcomes.some((o) => o.error?.internal));
   if (cli.failOnDrift && alarms > 0) throw new ExitRequest(3);
 }
